@@ -1,0 +1,7 @@
+#!/usr/bin/env node
+// Thin launcher: runs the TypeScript command line (src/cli) through tsx,
+// so `npx rungbook ...` works right after `npm ci` with no build step.
+import { register } from 'tsx/esm/api';
+register();
+const { main } = await import('../src/cli/main.ts');
+process.exitCode = await main(process.argv.slice(2));

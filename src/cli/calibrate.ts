@@ -1,0 +1,84 @@
+/**
+ * `rungbook calibrate <release-dir> [--json FILE]`: run the ladder on one release, print a
+ * readable summary to stdout and write results.json (default ./results.json).
+ */
+import { resolve } from 'node:path';
+import type { Results } from '../types/results.ts';
+import { loadRelease } from '../io/release.ts';
+import { calibrateRelease } from '../ladder/calibrate.ts';
+import { serializeResults } from '../io/results.ts';
+import { writeFileAtomic } from '../io/atomicWrite.ts';
+import { codeVersion } from '../version.ts';
+import { parseArgs, UsageError, type CliIO } from './output.ts';
+
+/** Calibrate the release in a folder (the function the report build and the comparison call). */
+export async function calibrateReleaseDir(dir: string): Promise<Results> {
+  const release = loadRelease(dir);
+  return calibrateRelease(release, { codeVersion: codeVersion() });
+}
+
+function fmt(x: number, digits: number): string {
+  return x.toFixed(digits);
+}
+
+export function summaryText(r: Results): string {
+  const lines: string[] = [];
+  lines.push(`Release ${r.release.id}: ${r.release.title} (${r.release.date})`);
+  lines.push('Internal result for collaboration review.');
+  if (r.h0) {
+    const tag = r.blinded ? '  [BLINDED: carries a hidden offset]' : '';
+    lines.push(
+      `H0 = ${fmt(r.h0.value, 2)} ± ${fmt(r.h0.stat, 2)} (stat) ± ${fmt(r.h0.sys, 2)} (sys) km/s/Mpc` +
+        `  [total ± ${fmt(r.h0.total, 2)}, ${fmt((100 * r.h0.total) / r.h0.value, 1)} %]${tag}`,
+    );
+  } else {
+    lines.push(`H0 not measured: the ladder stops at the ${r.reached.replace('_', ' ')} rung.`);
+  }
+  lines.push('');
+  lines.push('Parameters');
+  for (const [name, p] of Object.entries(r.parameters)) {
+    const note = p.fixed ? ' (fixed)' : p.blinded ? ' (blinded)' : '';
+    lines.push(`  ${name.padEnd(20)} ${fmt(p.value, 4).padStart(10)} ± ${fmt(p.err, 4).padEnd(8)} ${p.unit}${note}`);
+  }
+  lines.push('');
+  const f = r.fit;
+  lines.push(
+    `Fit: chi2 = ${fmt(f.chi2, 1)} for ${f.dof} degrees of freedom (chi2/dof = ${fmt(f.dof > 0 ? f.chi2 / f.dof : 0, 3)}, ` +
+      `p = ${fmt(f.p_value, 3)}); ${f.n_data} rows, ${f.n_parameters} parameters, ${f.iterations} iterations` +
+      (f.converged ? '' : ', NOT CONVERGED'),
+  );
+  lines.push(`Rejected as outliers: ${r.rejected.length}`);
+  for (const x of r.rejected.slice(0, 10)) {
+    lines.push(`  ${x.table}:${x.line} ${x.id}${x.system ? ` (${x.system})` : ''}  ${fmt(x.residual_sigma, 2)} sigma`);
+  }
+  if (r.rejected.length > 10) lines.push(`  ... and ${r.rejected.length - 10} more (see results.json)`);
+  if (r.variants.length) {
+    lines.push('');
+    lines.push('Systematic variants (sys = RMS of the shifts about the baseline)');
+    for (const v of r.variants) {
+      lines.push(
+        v.h0 === null
+          ? `  ${v.name.padEnd(28)} failed: ${v.error}`
+          : `  ${v.name.padEnd(28)} H0 = ${fmt(v.h0, 2)}  (${v.delta_h0! >= 0 ? '+' : ''}${fmt(v.delta_h0!, 2)})`,
+      );
+    }
+  }
+  const failed = r.checks.filter((c) => !c.passed && c.severity === 'warning');
+  if (failed.length) {
+    lines.push('');
+    lines.push('Warnings');
+    for (const c of failed) lines.push(`  ${c.title}: ${c.detail}`);
+  }
+  return lines.join('\n') + '\n';
+}
+
+export async function runCalibrate(args: string[], io: CliIO): Promise<number> {
+  const { positional, values } = parseArgs(args, { values: ['json'] });
+  if (positional.length !== 1) throw new UsageError('usage: rungbook calibrate <release-dir> [--json FILE]');
+  const results = await calibrateReleaseDir(positional[0]);
+  const out = resolve(values.json ?? 'results.json');
+  writeFileAtomic(out, serializeResults(results));
+  io.stdout(summaryText(results));
+  io.stdout(`\nresults written to ${out}\n`);
+  return 0;
+}

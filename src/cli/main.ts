@@ -1,0 +1,63 @@
+/**
+ * The rungbook command line. Exit codes: 0 success, 1 invalid input or failed check,
+ * 2 usage error. Results go to stdout; messages and progress to stderr.
+ */
+import { InputError, AnalysisError, formatIssue } from '../types/issues.ts';
+import { processIO, UsageError, type CliIO } from './output.ts';
+
+const USAGE = `rungbook: calibrate the distance ladder from data releases and build the report
+
+usage:
+  rungbook check     <release-dir>...                  validate releases (exit 1 on any problem)
+  rungbook calibrate <release-dir> [--json FILE]       run the ladder, print a summary, write results.json
+  rungbook diff      <release-a> <release-b> [--format text|markdown|json]
+  rungbook build     [--releases DIR] [--out DIR]      calibrate every release and build the static report
+`;
+
+type Command = (args: string[], io: CliIO) => Promise<number>;
+
+const COMMANDS: Record<string, () => Promise<Command>> = {
+  check: async () => {
+    const m = await import('./check.ts');
+    return (args, io) => {
+      if (args.length === 0) throw new UsageError('usage: rungbook check <release-dir>...');
+      return m.runCheck(args, io);
+    };
+  },
+  calibrate: async () => (await import('./calibrate.ts')).runCalibrate,
+  build: async () => (await import('./build.ts')).runBuild,
+  diff: async () => (await import('./diff.ts')).runDiff,
+};
+
+export async function main(argv: string[], io: CliIO = processIO): Promise<number> {
+  const [name, ...args] = argv;
+  if (!name || name === '--help' || name === '-h' || name === 'help') {
+    io.stdout(USAGE);
+    return name ? 0 : 2;
+  }
+  const load = COMMANDS[name];
+  if (!load) {
+    io.stderr(`rungbook: unknown command "${name}"\n\n${USAGE}`);
+    return 2;
+  }
+  try {
+    const command = await load();
+    return await command(args, io);
+  } catch (e) {
+    if (e instanceof UsageError) {
+      io.stderr(`rungbook ${name}: ${e.message}\n`);
+      return 2;
+    }
+    if (e instanceof InputError) {
+      for (const issue of e.issues) io.stderr(`${formatIssue(issue)}\n`);
+      if (e.omitted > 0) io.stderr(`... and ${e.omitted} more problems\n`);
+      io.stderr(`rungbook ${name}: ${e.issues.length + e.omitted} input problem(s); nothing was written\n`);
+      return 1;
+    }
+    if (e instanceof AnalysisError) {
+      io.stderr(`rungbook ${name}: ${e.message}\n${e.hint ? `  hint: ${e.hint}\n` : ''}`);
+      return 1;
+    }
+    throw e;
+  }
+}

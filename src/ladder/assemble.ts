@@ -1,0 +1,355 @@
+/**
+ * Turns one ladder run (plus variants and budget) into the results.json structure.
+ * Only bookkeeping here: every number was computed by a rung or the global fit.
+ */
+import { createHash } from 'node:crypto';
+import type { Release } from '../types/release.ts';
+import type {
+  BudgetEntry,
+  CepheidResult,
+  CheckResult,
+  ParameterResult,
+  Rejection,
+  Results,
+  SupernovaResult,
+  SystemResult,
+  SystemRole,
+  VariantResult,
+} from '../types/results.ts';
+import { RESULTS_SCHEMA } from '../types/results.ts';
+import type { LadderRun } from './calibrate.ts';
+import { PARAM, systemParam } from './globalModel.ts';
+import { wesenheitMagnitude } from './cepheids.ts';
+import { correctedMagnitude, correctedMagnitudeVariance } from './supernovae.ts';
+import { hubbleFlowLogFactor } from './kinematics.ts';
+import { distanceMpcFromModulus } from './distance.ts';
+import { chiSquarePValue } from '../math/special.ts';
+import type { CalibrateOptions } from './calibrate.ts';
+
+/** chi2/dof outside this band gets a warning (common practice, no source). */
+const CHI2_PER_DOF_WARN: readonly [number, number] = [0.7, 1.5];
+
+const PARAMETER_INFO: Record<string, { unit: string; description: string }> = {
+  M_W: { unit: 'mag', description: 'Cepheid Wesenheit absolute magnitude at the pivot period' },
+  b_W: { unit: 'mag/dex', description: 'slope of the period-luminosity relation in log10 P' },
+  Z_W: { unit: 'mag/dex', description: 'metallicity term of the period-luminosity relation ([O/H])' },
+  M_B: { unit: 'mag', description: 'absolute peak magnitude of a standardised type Ia supernova' },
+  a_B: { unit: '', description: 'intercept of the Hubble-flow magnitude-redshift relation' },
+  alpha: { unit: '', description: 'supernova stretch coefficient (Tripp)' },
+  beta: { unit: '', description: 'supernova colour coefficient (Tripp)' },
+  sigma_int_cepheid: { unit: 'mag', description: 'intrinsic scatter of the Cepheid Wesenheit relation (estimated)' },
+  sigma_int_sn: { unit: 'mag', description: 'intrinsic scatter of standardised supernovae (estimated)' },
+  parallax_zero_point: { unit: 'mas', description: 'parallax zero point after the global fit (prior: release value)' },
+};
+
+const BLINDED_PARAMS = new Set(['M_B', 'a_B']);
+
+function sha256(text: string): string {
+  return createHash('sha256').update(text).digest('hex');
+}
+
+/** Canonical JSON (sorted keys) so hashes do not depend on key order. */
+export function canonicalJson(value: unknown): string {
+  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
+  if (value && typeof value === 'object') {
+    const keys = Object.keys(value as object).sort();
+    return `{${keys.map((k) => `${JSON.stringify(k)}:${canonicalJson((value as Record<string, unknown>)[k])}`).join(',')}}`;
+  }
+  return JSON.stringify(value);
+}
+
+/** Approximate standard error of an intrinsic scatter from the Fisher information of s^2. */
+function scatterError(s: number, variances: number[]): number {
+  if (variances.length === 0) return 0;
+  const info = 0.5 * variances.reduce((a, v) => a + 1 / (v * v), 0);
+  const errS2 = Math.sqrt(1 / info);
+  return s > 0 ? errS2 / (2 * s) : Math.sqrt(errS2);
+}
+
+export function assembleResults(
+  release: Release,
+  run: LadderRun,
+  variants: VariantResult[],
+  sys: number,
+  budget: BudgetEntry[],
+  options: CalibrateOptions,
+): Results {
+  const { fit, analysis } = run;
+  const blinded = release.manifest.blinded;
+  const parameters: Record<string, ParameterResult> = {};
+  const p = fit?.paramNames.length ?? 0;
+  const idx = (name: string) => (fit ? fit.paramNames.indexOf(name) : -1);
+  const value = (name: string) => fit!.q[idx(name)];
+  const err = (name: string) => Math.sqrt(fit!.cov[idx(name) * p + idx(name)]);
+  const put = (name: string, v: number, e: number, extra: Partial<ParameterResult> = {}) => {
+    parameters[name] = { value: v, err: e, ...PARAMETER_INFO[name], ...extra };
+    if (blinded && BLINDED_PARAMS.has(name)) parameters[name].blinded = true;
+  };
+  if (fit) {
+    for (const name of [PARAM.MW, PARAM.bW, PARAM.ZW, PARAM.MB, PARAM.aB]) {
+      if (idx(name) >= 0) put(name, value(name), err(name));
+    }
+    if (idx(PARAM.MW) >= 0 && idx(PARAM.ZW) < 0) put('Z_W', 0, 0, { fixed: true });
+    if (release.snCalibrators.length + release.snHubbleFlow.length > 0) {
+      put('alpha', fit.alpha.value, fit.alpha.err, { fixed: fit.alpha.fixed });
+      put('beta', fit.beta.value, fit.beta.err, { fixed: fit.beta.fixed });
+    }
+    const residualVariances = (tables: string[]) =>
+      fit.residuals.filter((r) => tables.includes(r.ref.table) && !r.rejected).map((r) => r.variance);
+    if (release.cepheids.length) {
+      put('sigma_int_cepheid', fit.scatter.cepheids, scatterError(fit.scatter.cepheids, residualVariances(['cepheids'])));
+    }
+    if (release.snCalibrators.length + release.snHubbleFlow.length > 0) {
+      put(
+        'sigma_int_sn',
+        fit.scatter.supernovae,
+        scatterError(fit.scatter.supernovae, residualVariances(['sn_calibrators', 'sn_hubble_flow'])),
+      );
+    }
+    if (idx(PARAM.zeta) >= 0) {
+      put('parallax_zero_point', analysis.parallax_zero_point + value(PARAM.zeta), err(PARAM.zeta));
+    }
+  }
+
+  // systems
+  const priors = run.priors;
+  const priorIndex = new Map(priors.systems.map((s, i) => [s, i]));
+  const priorErr = (i: number) => {
+    let v = priors.zpLoading[i] ** 2 * analysis.parallax_zero_point_err ** 2;
+    for (const part of priors.parts) v += part.cov[i][i];
+    return Math.sqrt(v);
+  };
+  const count = (rows: { system: string }[], s: string) => rows.filter((r) => r.system === s).length;
+  const systems: SystemResult[] = release.systems.map((s) => {
+    const rows = {
+      parallax: count(release.parallax, s.system),
+      main_sequence: count(release.mainSequence, s.system),
+      cepheids: count(release.cepheids, s.system),
+      sn_calibrators: count(release.snCalibrators, s.system),
+    };
+    const roles: SystemRole[] = [];
+    if (rows.parallax > 0) roles.push(s.kind === 'field' ? 'field_star' : 'anchor');
+    if (rows.parallax === 0 && rows.main_sequence > 0) roles.push('main_sequence_target');
+    if (rows.cepheids > 0) roles.push('cepheid_system');
+    if (rows.sn_calibrators > 0) roles.push('sn_host');
+    const pi = priorIndex.get(s.system);
+    const fi = idx(systemParam(s.system));
+    let mu: number | null = null;
+    let muErr: number | null = null;
+    if (fi >= 0) {
+      mu = fit!.q[fi];
+      muErr = Math.sqrt(fit!.cov[fi * p + fi]);
+    } else if (pi !== undefined) {
+      mu = priors.mu[pi];
+      muErr = priorErr(pi);
+    }
+    const target = run.mainSequence.targets.find((t) => t.system === s.system);
+    const method: SystemResult['method'] =
+      rows.parallax > 0 ? 'parallax' : rows.main_sequence > 0 ? 'main_sequence' : mu !== null ? 'cepheid' : 'none';
+    return {
+      id: s.system,
+      kind: s.kind,
+      roles,
+      method,
+      mu,
+      mu_err: muErr,
+      distance_mpc: mu === null ? null : distanceMpcFromModulus(mu),
+      mu_prior: pi !== undefined ? priors.mu[pi] : null,
+      mu_prior_err: pi !== undefined ? priorErr(pi) : null,
+      rows,
+      feh: s.feh ?? null,
+      ebv: target ? target.ebv : (s.ebv ?? null),
+      ebv_err: target ? target.ebv_err : (s.ebvErr ?? null),
+    };
+  });
+
+  // per-object rows
+  const residualByKey = new Map<string, { residual: number; variance: number; rejected: boolean }>();
+  if (fit) {
+    for (const r of [...fit.residuals, ...fit.rejected]) {
+      residualByKey.set(`${r.ref.table}:${r.ref.id}`, { residual: r.residual, variance: r.variance, rejected: r.rejected });
+    }
+  }
+  const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
+  const cepheids: CepheidResult[] = release.cepheids.map((c) => {
+    const wm = wesenheitMagnitude(c, analysis.wesenheit_r);
+    const name = fieldSystems.has(c.system) ? `mu:${c.system}/${c.star}` : systemParam(c.system);
+    const mi = idx(name);
+    const mu = mi >= 0 ? fit!.q[mi] : NaN;
+    const r = residualByKey.get(`cepheids:${c.star}`);
+    return {
+      star: c.star,
+      system: c.system,
+      line: c.line,
+      log_period: wm.logPeriod,
+      w: wm.w,
+      w_err: wm.wErr,
+      oh: c.oh,
+      abs_w: mi >= 0 ? wm.w - mu : NaN,
+      residual: r ? r.residual : NaN,
+      rejected: r ? r.rejected : false,
+    };
+  }).filter((c) => Number.isFinite(c.abs_w));
+
+  const alpha = fit?.alpha.value ?? 0;
+  const beta = fit?.beta.value ?? 0;
+  const mB = idx(PARAM.MB) >= 0 ? value(PARAM.MB) : NaN;
+  const aB = idx(PARAM.aB) >= 0 ? value(PARAM.aB) : NaN;
+  const calibrators: SupernovaResult[] = fit
+    ? release.snCalibrators.map((sn) => {
+        const r = residualByKey.get(`sn_calibrators:${sn.sn}`);
+        const mCorr = correctedMagnitude(sn, alpha, beta);
+        return {
+          sn: sn.sn,
+          system: sn.system,
+          line: sn.line,
+          z: null,
+          m_b: sn.mB,
+          x1: sn.x1,
+          c: sn.c,
+          m_corr: mCorr,
+          m_corr_err: Math.sqrt(correctedMagnitudeVariance(sn, alpha, beta)),
+          mu: mCorr - mB,
+          residual: r ? r.residual : NaN,
+          in_sample: true,
+          rejected: r ? r.rejected : false,
+        };
+      })
+    : [];
+  const usedIds = new Set(run.hubbleFlow.used.map((h) => h.row.sn));
+  const hubbleFlow: SupernovaResult[] = fit && idx(PARAM.aB) >= 0
+    ? release.snHubbleFlow.map((sn) => {
+        const r = residualByKey.get(`sn_hubble_flow:${sn.sn}`);
+        const mCorr = correctedMagnitude(sn, alpha, beta);
+        return {
+          sn: sn.sn,
+          system: null,
+          line: sn.line,
+          z: sn.z,
+          m_b: sn.mB,
+          x1: sn.x1,
+          c: sn.c,
+          m_corr: mCorr,
+          m_corr_err: Math.sqrt(correctedMagnitudeVariance(sn, alpha, beta)),
+          mu: mCorr - mB,
+          residual: r ? r.residual : mCorr - (5 * hubbleFlowLogFactor(sn.z, analysis.q0, analysis.j0) - 5 * aB),
+          in_sample: usedIds.has(sn.sn),
+          rejected: r ? r.rejected : false,
+        };
+      })
+    : [];
+
+  const rejected: Rejection[] = (fit?.rejected ?? []).map((r) => ({
+    table: r.ref.table as Rejection['table'],
+    id: r.ref.id,
+    system: r.ref.system,
+    line: r.ref.line,
+    residual_sigma: r.standardised,
+  }));
+
+  const checks: CheckResult[] = [...run.checks];
+  if (fit) {
+    const ratio = fit.chi2 / fit.dof;
+    checks.push({
+      id: 'fit-quality',
+      title: 'Global fit quality (chi2 per degree of freedom)',
+      passed: ratio >= CHI2_PER_DOF_WARN[0] && ratio <= CHI2_PER_DOF_WARN[1],
+      severity: 'warning',
+      detail: `chi2/dof = ${ratio.toFixed(3)} (${fit.chi2.toFixed(1)} / ${fit.dof}); expected near 1 because the intrinsic scatters are estimated`,
+    });
+    checks.push({
+      id: 'outliers',
+      title: 'Outlier rejection',
+      passed: rejected.length <= 0.05 * fit.nData,
+      severity: 'info',
+      detail:
+        analysis.clip_sigma === null
+          ? 'outlier rejection disabled (clip_sigma: null)'
+          : `${rejected.length} rows rejected beyond ${analysis.clip_sigma} sigma`,
+    });
+  }
+
+  const mainNames = [PARAM.MW, PARAM.bW, PARAM.ZW, PARAM.MB, PARAM.aB, PARAM.zeta].filter((n) => idx(n) >= 0);
+  const corr = mainNames.map((a) =>
+    mainNames.map((b) => {
+      const i = idx(a);
+      const j = idx(b);
+      return fit!.cov[i * p + j] / Math.sqrt(fit!.cov[i * p + i] * fit!.cov[j * p + j]);
+    }),
+  );
+
+  let h0: Results['h0'] = null;
+  if (run.log10H0) {
+    const value = 10 ** run.log10H0.value;
+    const stat = value * Math.LN10 * Math.sqrt(run.log10H0.variance);
+    h0 = { value, stat, sys, total: Math.sqrt(stat * stat + sys * sys) };
+  }
+
+  const analysisHash = sha256(canonicalJson({ analysis: release.analysis, variants: release.variants }));
+  const inputsHash = sha256(release.inputs.map((i) => `${i.file}:${i.sha256}`).join('\n'));
+  return {
+    schema: RESULTS_SCHEMA,
+    release: {
+      id: release.manifest.id,
+      title: release.manifest.title,
+      date: release.manifest.date,
+      previous: release.manifest.previous,
+    },
+    blinded,
+    unblinding: null,
+    reached: run.reached,
+    h0,
+    parameters,
+    systems,
+    budget,
+    variants,
+    fit: fit
+      ? {
+          chi2: fit.chi2,
+          dof: fit.dof,
+          p_value: chiSquarePValue(fit.chi2, fit.dof),
+          n_data: fit.nData,
+          n_parameters: p,
+          n_rejected: rejected.length,
+          converged: fit.converged,
+          iterations: fit.iterations,
+          scatter: fit.scatter,
+        }
+      : {
+          chi2: 0,
+          dof: 0,
+          p_value: 1,
+          n_data: 0,
+          n_parameters: 0,
+          n_rejected: 0,
+          converged: true,
+          iterations: 0,
+          scatter: { cepheids: 0, supernovae: 0 },
+        },
+    rejected,
+    checks,
+    correlation: { names: mainNames, matrix: corr },
+    rungs: {
+      parallax: {
+        anchors: run.parallax.anchors,
+        stars: run.parallax.stars,
+        anchor_covariance: run.parallax.anchorCovariance,
+      },
+      main_sequence: {
+        locus: run.mainSequence.locus,
+        targets: run.mainSequence.targets,
+        stars: run.mainSequence.stars,
+      },
+      cepheids,
+      supernovae: { calibrators, hubble_flow: hubbleFlow },
+    },
+    analysis: release.analysis,
+    analysis_set: release.analysisKeysSet,
+    provenance: {
+      inputs: release.inputs,
+      code_version: options.codeVersion,
+      analysis_hash: analysisHash,
+      inputs_hash: inputsHash,
+    },
+  };
+}

@@ -1,0 +1,157 @@
+/**
+ * The whole ladder for one release: rungs in order, the global fit, H0, the error budget and
+ * the systematic variants, assembled into results.json (src/types/results.ts).
+ * Pure given (release, code version): no clock, no randomness, stable ordering.
+ */
+import type { AnalysisChoices } from '../types/analysis.ts';
+import { withOverrides } from '../types/analysis.ts';
+import type { Release } from '../types/release.ts';
+import type { CheckResult, Results, VariantResult } from '../types/results.ts';
+import { RESULTS_SCHEMA } from '../types/results.ts';
+import { AnalysisError } from '../types/issues.ts';
+import type { DistancePriorBlock } from './types.ts';
+import { fitParallaxRung } from './parallax.ts';
+import { fitMainSequenceRung, buildDistancePriors } from './mainSequence.ts';
+import { selectHubbleFlow, log10H0 } from './hubbleFlow.ts';
+import { cepheidChecks } from './cepheids.ts';
+import { fitGlobal } from './globalFit.ts';
+import { PARAM } from './globalModel.ts';
+import { assembleResults } from './assemble.ts';
+import { errorBudget } from './budget.ts';
+import { systematicError } from './variants.ts';
+
+/** Everything one pass of the ladder produces (before variants). */
+export interface LadderRun {
+  analysis: AnalysisChoices;
+  parallax: ReturnType<typeof fitParallaxRung>;
+  mainSequence: ReturnType<typeof fitMainSequenceRung>;
+  priors: DistancePriorBlock;
+  hubbleFlow: ReturnType<typeof selectHubbleFlow>;
+  fit: ReturnType<typeof fitGlobal> | null;
+  /** log10 H0 and its statistical variance, when the Hubble flow is reached. */
+  log10H0: { value: number; variance: number; gradient: Float64Array } | null;
+  checks: CheckResult[];
+  reached: Results['reached'];
+}
+
+/** One pass of the ladder with the given analysis choices. */
+export function runLadder(release: Release, analysis: AnalysisChoices): LadderRun {
+  const checks: CheckResult[] = [];
+  const parallax = fitParallaxRung(release, analysis);
+  checks.push(...parallax.checks);
+  const mainSequence = fitMainSequenceRung(release, analysis, parallax);
+  checks.push(...mainSequence.checks);
+  const priors = buildDistancePriors(parallax, mainSequence);
+  const hubbleFlow = selectHubbleFlow(release.snHubbleFlow, analysis);
+  checks.push(...cepheidChecks(release.cepheids));
+  if (release.snHubbleFlow.length > 0) {
+    checks.push({
+      id: 'hubble-flow-redshift-cut',
+      title: 'Hubble-flow supernovae inside the redshift range',
+      passed: hubbleFlow.used.length > 0,
+      severity: 'warning',
+      detail: `${hubbleFlow.used.length} of ${release.snHubbleFlow.length} supernovae have ${analysis.z_min} <= z <= ${analysis.z_max}; ${hubbleFlow.excluded.length} left out`,
+    });
+    if (hubbleFlow.used.length === 0) {
+      throw new AnalysisError(
+        `No Hubble-flow supernova lies inside ${analysis.z_min} <= z <= ${analysis.z_max} (all ${release.snHubbleFlow.length} are cut).`,
+        'Widen z_min/z_max in release.yaml or check the redshift column.',
+      );
+    }
+  }
+  const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
+  let reached: Results['reached'] = release.mainSequence.length > 0 ? 'main_sequence' : 'parallax';
+  if (release.cepheids.length === 0) {
+    return { analysis, parallax, mainSequence, priors, hubbleFlow, fit: null, log10H0: null, checks, reached };
+  }
+  linkageCheck(release, priors.systems, parallax.fieldStars.map((s) => s.star));
+  const fit = fitGlobal({
+    analysis,
+    priors,
+    fieldStars: parallax.fieldStars,
+    zeroPointErrMas: release.parallax.length > 0 ? analysis.parallax_zero_point_err : 0,
+    cepheids: release.cepheids,
+    fieldSystems,
+    calibrators: release.snCalibrators,
+    hubbleFlow: hubbleFlow.used,
+  });
+  reached = 'cepheids';
+  let h0: LadderRun['log10H0'] = null;
+  const iMB = fit.paramNames.indexOf(PARAM.MB);
+  const iAB = fit.paramNames.indexOf(PARAM.aB);
+  if (iMB >= 0) reached = 'sn_calibrators';
+  if (iMB >= 0 && iAB >= 0) {
+    reached = 'hubble_flow';
+    const p = fit.paramNames.length;
+    const g = new Float64Array(p);
+    g[iMB] = 0.2;
+    g[iAB] = 1;
+    let variance = 0;
+    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) variance += g[i] * fit.cov[i * p + j] * g[j];
+    h0 = { value: log10H0(fit.q[iMB], fit.q[iAB]), variance, gradient: g };
+  }
+  checks.push({
+    id: 'global-fit-converged',
+    title: 'Global fit converged',
+    passed: fit.converged,
+    severity: 'warning',
+    detail: `${fit.iterations} iterations; chi2/dof = ${(fit.chi2 / fit.dof).toFixed(3)} with ${fit.dof} degrees of freedom`,
+  });
+  return { analysis, parallax, mainSequence, priors, hubbleFlow, fit, log10H0: h0, checks, reached };
+}
+
+/** Every Cepheid system must be tied to a distance for M_W to be determined; say which are not. */
+function linkageCheck(release: Release, priorSystems: string[], fieldStarIds: string[]): void {
+  const anchored = new Set(priorSystems);
+  const fieldStars = new Set(fieldStarIds);
+  const tied = release.cepheids.some((c) => anchored.has(c.system) || fieldStars.has(c.star));
+  if (!tied) {
+    throw new AnalysisError(
+      'No Cepheid system can reach a geometric anchor: none has a parallax or main-sequence distance, ' +
+        'and no field Cepheid has its own parallax.',
+      'Add parallaxes or main-sequence photometry for at least one Cepheid system.',
+    );
+  }
+  const hosts = new Set(release.cepheids.map((c) => c.system));
+  const orphans = [...new Set(release.snCalibrators.map((s) => s.system))].filter((s) => !hosts.has(s) && !anchored.has(s));
+  if (orphans.length > 0 && orphans.length === new Set(release.snCalibrators.map((s) => s.system)).size) {
+    throw new AnalysisError(
+      `No supernova host can reach a geometric anchor: ${orphans.join(', ')} ${orphans.length === 1 ? 'has' : 'have'} no Cepheids and no distance of ${orphans.length === 1 ? 'its' : 'their'} own.`,
+      'Supernova calibrators need Cepheids (or another distance) in their host.',
+    );
+  }
+}
+
+export interface CalibrateOptions {
+  codeVersion: string;
+}
+
+/** The full calibration of a release: baseline, variants, budget, results.json content. */
+export function calibrateRelease(release: Release, options: CalibrateOptions): Results {
+  const baseline = runLadder(release, release.analysis);
+  const variants: VariantResult[] = release.variants.map((variant) => {
+    try {
+      const run = runLadder(release, withOverrides(release.analysis, variant.overrides));
+      const h0 = run.log10H0 ? 10 ** run.log10H0.value : null;
+      const base = baseline.log10H0 ? 10 ** baseline.log10H0.value : null;
+      return {
+        name: variant.name,
+        overrides: variant.overrides,
+        h0,
+        h0_stat: run.log10H0 && h0 !== null ? h0 * Math.LN10 * Math.sqrt(run.log10H0.variance) : null,
+        delta_h0: h0 !== null && base !== null ? h0 - base : null,
+        error: null,
+      };
+    } catch (e) {
+      if (e instanceof AnalysisError) {
+        return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: e.message };
+      }
+      throw e;
+    }
+  });
+  const sys = systematicError(variants);
+  const budget = errorBudget(baseline, variants);
+  return assembleResults(release, baseline, variants, sys, budget, options);
+}
+
+export const RESULTS_SCHEMA_ID = RESULTS_SCHEMA;

@@ -1,0 +1,534 @@
+/**
+ * The global fit: all Cepheid systems, supernovae and the Hubble-flow intercept at once,
+ * by structured GLS (gls.ts) on the model of globalModel.ts, iterating on what is not linear:
+ *  - field-star parallaxes are re-linearised at the current distances (Gauss-Newton);
+ *  - intrinsic scatters of the Cepheid rows and of the supernova rows are estimated from
+ *    sum r^2/v = n - sum h (h: leverages), the restricted-likelihood condition (methods.md k);
+ *  - alpha and beta (when not fixed) minimise the chi-square with their variance terms inside
+ *    it (an effective-variance estimator; freezing the weights biases beta low, methods.md k);
+ *  - outliers beyond clip_sigma standardised residuals are rejected, iteratively, all rows
+ *    above the threshold at once, until none is left (deterministic).
+ * The covariance of alpha and beta comes from a sandwich (delta-method) estimator and is
+ * propagated to every parameter through the fit's Jacobian.
+ */
+import { AnalysisError } from '../types/issues.ts';
+import {
+  blockLeverages,
+  blockResiduals,
+  blockVariance,
+  inverseFromFactor,
+  SingularFitError,
+  solveGls,
+  varianceBySource,
+  type GlsSolution,
+} from './gls.ts';
+import {
+  buildModel,
+  fieldStarParam,
+  ParameterIndex,
+  rowKey,
+  type BuiltModel,
+  type FitState,
+  type GlobalFitInput,
+  type RowRef,
+} from './globalModel.ts';
+import { correctedMagnitudeVarianceGradient, TYPICAL_ALPHA, TYPICAL_BETA } from './supernovae.ts';
+import { distanceModulusFromParallaxMas } from './distance.ts';
+
+/** Convergence and safety limits of the iteration (numerical choices, no physical meaning). */
+const LIMITS = {
+  maxInner: 300,
+  maxClipRounds: 20,
+  /** Never reject more than this fraction of a table's rows. */
+  maxRejectedFraction: 0.2,
+  tolAlpha: 1e-8,
+  tolBeta: 1e-7,
+  tolScatterSq: 1e-10,
+  tolMu: 1e-9,
+  /** Largest step (mag) of a field star's linearisation point per iteration. */
+  maxMuStep: 1.0,
+  /** Finite-difference steps for alpha and beta. */
+  hAlpha: 1e-3,
+  hBeta: 1e-2,
+};
+
+/** Start value of the intrinsic scatters (mag); the fit estimates them (common practice, no source). */
+const START_SCATTER = { cepheid: 0.08, supernova: 0.1 };
+
+export interface RowResidual {
+  ref: RowRef;
+  residual: number;
+  /** Total variance of the row (measurement, scatter, redshift terms). */
+  variance: number;
+  standardised: number;
+  rejected: boolean;
+}
+
+export interface GlobalFitResult {
+  paramNames: string[];
+  /** Best-fit values, in paramNames order. */
+  q: Float64Array;
+  /** Covariance of q including the propagated uncertainty of alpha and beta (flat p x p). */
+  cov: Float64Array;
+  /** Covariance of q at fixed alpha, beta (the GLS part). */
+  covGls: Float64Array;
+  alpha: { value: number; err: number; fixed: boolean };
+  beta: { value: number; err: number; fixed: boolean };
+  /** Covariance of the free ones of (alpha, beta) and d q / d(alpha, beta). */
+  standardisation: { names: ('alpha' | 'beta')[]; cov: number[][]; jacobian: number[][] };
+  scatter: { cepheids: number; supernovae: number };
+  chi2: number;
+  dof: number;
+  nData: number;
+  converged: boolean;
+  iterations: number;
+  residuals: RowResidual[];
+  /** Rows rejected as outliers (in the order they were rejected). */
+  rejected: RowResidual[];
+  /** Variance of g^T q split by source, including 'sn_standardisation'. */
+  budget(g: ArrayLike<number>): Map<string, number>;
+  /** Linearisation points of the field stars at convergence. */
+  fieldStarMu: Float64Array;
+  model: BuiltModel;
+}
+
+function initialFieldMu(input: GlobalFitInput): Float64Array {
+  return Float64Array.from(input.fieldStars, (s) =>
+    distanceModulusFromParallaxMas(Math.max(s.parallaxCorrMas, 3 * s.parallaxErrMas)),
+  );
+}
+
+function solveOrExplain(model: BuiltModel): GlsSolution {
+  try {
+    return solveGls(model.problem);
+  } catch (e) {
+    if (e instanceof SingularFitError) {
+      throw new AnalysisError(
+        `The global fit cannot determine ${describeParam(e.parameter)}.`,
+        'Check that every rung has data linking it to a geometric anchor (Cepheids in an anchored system, ' +
+          'Cepheids in the supernova hosts, Hubble-flow supernovae inside the redshift range).',
+      );
+    }
+    throw e;
+  }
+}
+
+function describeParam(name: string): string {
+  if (name.startsWith('mu:')) return `the distance of "${name.slice(3)}"`;
+  const known: Record<string, string> = {
+    M_W: 'the Cepheid zero point M_W (no Cepheid system has a geometric or main-sequence distance)',
+    b_W: 'the period-luminosity slope b_W (the Cepheid periods do not span a range)',
+    Z_W: 'the metallicity term Z_W (all Cepheids share one [O/H]; set fit_pl_metallicity: false)',
+    M_B: 'the supernova absolute magnitude M_B (no calibrator host has a Cepheid distance)',
+    a_B: 'the Hubble-flow intercept a_B',
+    zeta: 'the parallax zero point',
+  };
+  return known[name] ?? `the parameter ${name}`;
+}
+
+/** Profile chi-square at (alpha, beta), everything else held. */
+function profileChi2(input: GlobalFitInput, params: ParameterIndex, state: FitState, alpha: number, beta: number): number {
+  return solveOrExplain(buildModel(input, params, { ...state, alpha, beta })).chi2;
+}
+
+/** Gradient and Hessian of f at x by central differences (2-D or 1-D via mask). */
+function numericalDerivatives(
+  f: (a: number, b: number) => number,
+  a: number,
+  b: number,
+  free: [boolean, boolean],
+): { g: [number, number]; h: [[number, number], [number, number]]; f0: number } {
+  const ha = LIMITS.hAlpha;
+  const hb = LIMITS.hBeta;
+  const f0 = f(a, b);
+  const g: [number, number] = [0, 0];
+  const h: [[number, number], [number, number]] = [
+    [1, 0],
+    [0, 1],
+  ];
+  if (free[0]) {
+    const fp = f(a + ha, b);
+    const fm = f(a - ha, b);
+    g[0] = (fp - fm) / (2 * ha);
+    h[0][0] = (fp - 2 * f0 + fm) / ha ** 2;
+  }
+  if (free[1]) {
+    const fp = f(a, b + hb);
+    const fm = f(a, b - hb);
+    g[1] = (fp - fm) / (2 * hb);
+    h[1][1] = (fp - 2 * f0 + fm) / hb ** 2;
+  }
+  if (free[0] && free[1]) {
+    const fpp = f(a + ha, b + hb);
+    const fpm = f(a + ha, b - hb);
+    const fmp = f(a - ha, b + hb);
+    const fmm = f(a - ha, b - hb);
+    h[0][1] = h[1][0] = (fpp - fpm - fmp + fmm) / (4 * ha * hb);
+  }
+  return { g, h, f0 };
+}
+
+/** One damped Newton step on the profile chi-square in (alpha, beta). */
+function standardisationStep(input: GlobalFitInput, params: ParameterIndex, state: FitState, free: [boolean, boolean]) {
+  const f = (a: number, b: number) => profileChi2(input, params, state, a, b);
+  const { g, h, f0 } = numericalDerivatives(f, state.alpha, state.beta, free);
+  const det = h[0][0] * h[1][1] - h[0][1] * h[1][0];
+  let da: number;
+  let db: number;
+  if (h[0][0] > 0 && h[1][1] > 0 && det > 0) {
+    da = -(h[1][1] * g[0] - h[0][1] * g[1]) / det;
+    db = -(-h[1][0] * g[0] + h[0][0] * g[1]) / det;
+  } else {
+    // not convex here: a small gradient step
+    da = -0.01 * g[0] / Math.max(1, Math.abs(g[0]));
+    db = -0.1 * g[1] / Math.max(1, Math.abs(g[1]));
+  }
+  if (!free[0]) da = 0;
+  if (!free[1]) db = 0;
+  // backtracking: never accept a step that raises the objective
+  let t = 1;
+  for (let k = 0; k < 20; k++) {
+    if (f(state.alpha + t * da, state.beta + t * db) <= f0 + 1e-12) break;
+    t /= 2;
+    if (k === 19) t = 0;
+  }
+  return { alpha: state.alpha + t * da, beta: state.beta + t * db, hessian: h };
+}
+
+interface GroupStats {
+  sumChi2: number;
+  sumOneMinusH: number;
+  sumOneMinusHOverV: number;
+  n: number;
+}
+
+/** Newton update of an intrinsic scatter from sum r^2/v = sum (1 - h). */
+function updatedScatter(s: number, st: GroupStats, baseVarianceMin: number): number {
+  if (st.n === 0 || st.sumOneMinusH <= 0) return s;
+  const s2 = s * s + (st.sumChi2 - st.sumOneMinusH) / st.sumOneMinusHOverV;
+  void baseVarianceMin;
+  return Math.sqrt(Math.max(0, s2));
+}
+
+function groupOf(table: string): 'cep' | 'sn' | null {
+  if (table === 'cepheids') return 'cep';
+  if (table === 'sn_calibrators' || table === 'sn_hubble_flow') return 'sn';
+  return null;
+}
+
+function residualsOf(model: BuiltModel, sol: GlsSolution, rejected: ReadonlySet<string>): RowResidual[] {
+  const out: RowResidual[] = [];
+  model.problem.blocks.forEach((block, b) => {
+    const r = blockResiduals(block, sol.q);
+    const v = blockVariance(block);
+    const diag = block.diagonal ? (v as number[]) : (v as number[][]).map((row, i) => row[i]);
+    model.refs[b].forEach((ref, i) => {
+      out.push({
+        ref,
+        residual: r[i],
+        variance: diag[i],
+        standardised: r[i] / Math.sqrt(diag[i]),
+        rejected: rejected.has(rowKey(ref.table, ref.id)),
+      });
+    });
+  });
+  return out;
+}
+
+export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
+  const params = new ParameterIndex(input);
+  const p = params.size;
+  const { analysis } = input;
+  const hasSn = input.calibrators.length + input.hubbleFlow.length > 0;
+  const free: [boolean, boolean] = [hasSn && analysis.sn_alpha === null, hasSn && analysis.sn_beta === null];
+  let state: FitState = {
+    alpha: analysis.sn_alpha ?? TYPICAL_ALPHA,
+    beta: analysis.sn_beta ?? TYPICAL_BETA,
+    scatterCepheid: input.cepheids.length ? START_SCATTER.cepheid : 0,
+    scatterSupernova: hasSn ? START_SCATTER.supernova : 0,
+    linearisedMu: initialFieldMu(input),
+    rejected: new Set<string>(),
+  };
+  const rejectedOrder: string[] = [];
+  let converged = false;
+  let iterations = 0;
+  let lastHessian: [[number, number], [number, number]] = [
+    [1, 0],
+    [0, 1],
+  ];
+
+  const tableCounts = {
+    cepheids: input.cepheids.length,
+    sn_calibrators: input.calibrators.length,
+    sn_hubble_flow: input.hubbleFlow.length,
+  };
+
+  for (let round = 0; round <= LIMITS.maxClipRounds; round++) {
+    converged = false;
+    for (let it = 0; it < LIMITS.maxInner; it++) {
+      iterations++;
+      const model = buildModel(input, params, state);
+      const sol = solveOrExplain(model);
+      // 1. re-linearise the field stars at the fitted distances
+      const lin = Float64Array.from(input.fieldStars, (s, i) => {
+        const mu = sol.q[params.get(fieldStarParam(s.system, s.star))!];
+        const mu0 = state.linearisedMu[i];
+        return mu0 + Math.max(-LIMITS.maxMuStep, Math.min(LIMITS.maxMuStep, mu - mu0));
+      });
+      // 2. intrinsic scatters from sum r^2/v = n - sum h, per group
+      const fInv = inverseFromFactor(sol.factor, p);
+      const stats: Record<'cep' | 'sn', GroupStats> = {
+        cep: { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0 },
+        sn: { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0 },
+      };
+      model.problem.blocks.forEach((block, b) => {
+        if (!block.diagonal) return;
+        const group = groupOf(model.refs[b][0]?.table ?? '');
+        if (!group) return;
+        const r = blockResiduals(block, sol.q);
+        const v = blockVariance(block) as number[];
+        const h = blockLeverages(block, fInv, p);
+        const st = stats[group];
+        for (let i = 0; i < r.length; i++) {
+          st.sumChi2 += (r[i] * r[i]) / v[i];
+          st.sumOneMinusH += 1 - h[i];
+          st.sumOneMinusHOverV += (1 - h[i]) / v[i];
+          st.n++;
+        }
+      });
+      const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep, 0);
+      const scatterSupernova = updatedScatter(state.scatterSupernova, stats.sn, 0);
+      let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova };
+      // 3. alpha, beta
+      if (free[0] || free[1]) {
+        const step = standardisationStep(input, params, next, free);
+        lastHessian = step.hessian;
+        next = { ...next, alpha: step.alpha, beta: step.beta };
+      }
+      const dMu = lin.reduce((m, x, i) => Math.max(m, Math.abs(x - state.linearisedMu[i])), 0);
+      const done =
+        Math.abs(next.alpha - state.alpha) < LIMITS.tolAlpha &&
+        Math.abs(next.beta - state.beta) < LIMITS.tolBeta &&
+        Math.abs(next.scatterCepheid ** 2 - state.scatterCepheid ** 2) < LIMITS.tolScatterSq &&
+        Math.abs(next.scatterSupernova ** 2 - state.scatterSupernova ** 2) < LIMITS.tolScatterSq &&
+        dMu < LIMITS.tolMu;
+      state = next;
+      if (done) {
+        converged = true;
+        break;
+      }
+    }
+    if (analysis.clip_sigma === null) break;
+    // outlier rejection on the data rows (Cepheids and supernovae), all beyond the threshold at once
+    const model = buildModel(input, params, state);
+    const sol = solveOrExplain(model);
+    const res = residualsOf(model, sol, state.rejected);
+    const clip = analysis.clip_sigma;
+    const candidates = res
+      .filter((r) => groupOf(r.ref.table) && Math.abs(r.standardised) > clip)
+      .sort((a, b) => Math.abs(b.standardised) - Math.abs(a.standardised) || a.ref.line - b.ref.line);
+    const newlyRejected: string[] = [];
+    const count: Record<string, number> = {};
+    for (const key of state.rejected) {
+      const t = key.slice(0, key.indexOf(':'));
+      count[t] = (count[t] ?? 0) + 1;
+    }
+    for (const c of candidates) {
+      const t = c.ref.table as keyof typeof tableCounts;
+      if ((count[t] ?? 0) + 1 > LIMITS.maxRejectedFraction * tableCounts[t]) continue;
+      count[t] = (count[t] ?? 0) + 1;
+      newlyRejected.push(rowKey(c.ref.table, c.ref.id));
+    }
+    if (newlyRejected.length === 0) break;
+    rejectedOrder.push(...newlyRejected);
+    state = { ...state, rejected: new Set([...state.rejected, ...newlyRejected]) };
+  }
+
+  // final solution and covariances
+  const model = buildModel(input, params, state);
+  const sol = solveOrExplain(model);
+  const covGls = inverseFromFactor(sol.factor, p);
+  const names: ('alpha' | 'beta')[] = [];
+  if (free[0]) names.push('alpha');
+  if (free[1]) names.push('beta');
+  const jacobian = names.map((name) => standardisationJacobian(input, params, state, name));
+  const covTheta = names.length
+    ? sandwichCovariance(input, params, state, model, sol, covGls, free, lastHessian)
+    : [];
+  const cov = Float64Array.from(covGls);
+  for (let i = 0; i < p; i++) {
+    for (let j = 0; j < p; j++) {
+      let s = 0;
+      for (let a = 0; a < names.length; a++) for (let b = 0; b < names.length; b++) {
+        s += jacobian[a][i] * covTheta[a][b] * jacobian[b][j];
+      }
+      cov[i * p + j] += s;
+    }
+  }
+  const thetaErr = (name: 'alpha' | 'beta') => {
+    const k = names.indexOf(name);
+    return k < 0 ? 0 : Math.sqrt(covTheta[k][k]);
+  };
+  const residuals = residualsOf(model, sol, state.rejected);
+  // rejected rows are not in the model: compute their residuals against the final solution
+  const rejectedRows = rejectedResiduals(input, params, state, sol, rejectedOrder);
+  const nData = model.problem.blocks.reduce((s, b) => s + b.rows.length, 0);
+  const nScatter = (input.cepheids.length ? 1 : 0) + (hasSn ? 1 : 0);
+  return {
+    paramNames: params.names,
+    q: sol.q,
+    cov,
+    covGls,
+    alpha: { value: state.alpha, err: thetaErr('alpha'), fixed: !free[0] },
+    beta: { value: state.beta, err: thetaErr('beta'), fixed: !free[1] },
+    standardisation: { names, cov: covTheta, jacobian },
+    scatter: { cepheids: state.scatterCepheid, supernovae: state.scatterSupernova },
+    chi2: sol.chi2,
+    dof: nData - p - names.length - nScatter,
+    nData,
+    converged,
+    iterations,
+    residuals,
+    rejected: rejectedRows,
+    fieldStarMu: state.linearisedMu,
+    model,
+    budget(g: ArrayLike<number>) {
+      const parts = varianceBySource(model.problem, sol.factor, g);
+      let s = 0;
+      for (let a = 0; a < names.length; a++) {
+        let ga = 0;
+        for (let i = 0; i < p; i++) ga += g[i] * jacobian[a][i];
+        for (let b = 0; b < names.length; b++) {
+          let gb = 0;
+          for (let i = 0; i < p; i++) gb += g[i] * jacobian[b][i];
+          s += ga * covTheta[a][b] * gb;
+        }
+      }
+      if (names.length) parts.set('sn_standardisation', s);
+      return parts;
+    },
+  };
+}
+
+/** d q / d theta by central differences at fixed scatters and linearisation. */
+function standardisationJacobian(input: GlobalFitInput, params: ParameterIndex, state: FitState, name: 'alpha' | 'beta'): number[] {
+  const h = name === 'alpha' ? LIMITS.hAlpha : LIMITS.hBeta;
+  const at = (d: number) =>
+    solveOrExplain(
+      buildModel(input, params, name === 'alpha' ? { ...state, alpha: state.alpha + d } : { ...state, beta: state.beta + d }),
+    ).q;
+  const qp = at(h);
+  const qm = at(-h);
+  return Array.from(qp, (x, i) => (x - qm[i]) / (2 * h));
+}
+
+/**
+ * Sandwich covariance of (alpha, beta): A^-1 B A^-1 with A = half the Hessian of the profile
+ * chi-square and B = sum over rows of the outer products of each row's efficient score
+ * (its score in theta minus the part explained by the linear parameters),
+ *   s_i = psi_theta,i - A_theta,q F^-1 psi_q,i,
+ * with residuals inflated by 1/sqrt(1 - h_i) (leverage correction). Without the row-wise B the
+ * curvature alone understates the errors, because x1 and c are measured with noise.
+ */
+function sandwichCovariance(
+  input: GlobalFitInput,
+  params: ParameterIndex,
+  state: FitState,
+  model: BuiltModel,
+  sol: GlsSolution,
+  fInv: Float64Array,
+  free: [boolean, boolean],
+  hessian: [[number, number], [number, number]],
+): number[][] {
+  const p = params.size;
+  const which = ([0, 1] as const).filter((k) => free[k]);
+  const m = which.length;
+  // collect per-row quantities of the diagonal blocks
+  interface RowTerm {
+    x: { idx: number[]; coef: number[] };
+    r: number;
+    v: number;
+    h: number;
+    dr: number[];
+    dv: number[];
+  }
+  const rows: RowTerm[] = [];
+  model.problem.blocks.forEach((block, b) => {
+    if (!block.diagonal) return; // prior rows carry no alpha/beta; their q-scores are small and omitted
+    const r = blockResiduals(block, sol.q);
+    const v = blockVariance(block) as number[];
+    const h = blockLeverages(block, fInv, p);
+    model.refs[b].forEach((ref, i) => {
+      let dr = [0, 0];
+      let dv = [0, 0];
+      if (ref.table === 'sn_calibrators' || ref.table === 'sn_hubble_flow') {
+        const sn = ref.table === 'sn_calibrators' ? input.calibrators[ref.index] : input.hubbleFlow[ref.index].row;
+        dr = [sn.x1, -sn.c];
+        dv = correctedMagnitudeVarianceGradient(sn, state.alpha, state.beta);
+      }
+      rows.push({ x: block.rows[i], r: r[i], v: v[i], h: h[i], dr: which.map((k) => dr[k]), dv: which.map((k) => dv[k]) });
+    });
+  });
+  // A_theta,q = sum_i d psi_theta,i / d q
+  const aTq = Array.from({ length: m }, () => new Float64Array(p));
+  for (const t of rows) {
+    for (let a = 0; a < m; a++) {
+      if (t.dr[a] === 0 && t.dv[a] === 0) continue;
+      for (let s = 0; s < t.x.idx.length; s++) {
+        aTq[a][t.x.idx[s]] += t.x.coef[s] * (-t.dr[a] / t.v + (t.r * t.dv[a]) / (t.v * t.v));
+      }
+    }
+  }
+  // G = A_theta,q F^-1 (m x p)
+  const gMat = aTq.map((row) => {
+    const out = new Float64Array(p);
+    for (let j = 0; j < p; j++) {
+      let s = 0;
+      for (let k = 0; k < p; k++) s += row[k] * fInv[k * p + j];
+      out[j] = s;
+    }
+    return out;
+  });
+  const bMat = Array.from({ length: m }, () => new Array<number>(m).fill(0));
+  for (const t of rows) {
+    const inflate = 1 / Math.sqrt(Math.max(1e-6, 1 - t.h));
+    const r = t.r * inflate;
+    const s = new Array<number>(m);
+    for (let a = 0; a < m; a++) {
+      const psiTheta = (r * t.dr[a]) / t.v - (r * r * t.dv[a]) / (2 * t.v * t.v);
+      let proj = 0;
+      for (let k = 0; k < t.x.idx.length; k++) proj += gMat[a][t.x.idx[k]] * (-r * t.x.coef[k]) / t.v;
+      s[a] = psiTheta - proj;
+    }
+    for (let a = 0; a < m; a++) for (let b = 0; b < m; b++) bMat[a][b] += s[a] * s[b];
+  }
+  // A = half the profile Hessian, restricted to the free parameters
+  const aMat = which.map((i) => which.map((j) => hessian[i][j] / 2));
+  const aInv = invertSmall(aMat);
+  const tmp = aInv.map((row) => bMat[0].map((_, j) => row.reduce((s, x, k) => s + x * bMat[k][j], 0)));
+  return tmp.map((row) => aInv[0].map((_, j) => row.reduce((s, x, k) => s + x * aInv[k][j], 0)));
+}
+
+function invertSmall(a: number[][]): number[][] {
+  if (a.length === 1) return [[1 / a[0][0]]];
+  const det = a[0][0] * a[1][1] - a[0][1] * a[1][0];
+  return [
+    [a[1][1] / det, -a[0][1] / det],
+    [-a[1][0] / det, a[0][0] / det],
+  ];
+}
+
+function rejectedResiduals(
+  input: GlobalFitInput,
+  params: ParameterIndex,
+  state: FitState,
+  sol: GlsSolution,
+  order: string[],
+): RowResidual[] {
+  if (order.length === 0) return [];
+  // rebuild the model with nothing rejected to get the rows, then keep the rejected ones
+  const full = buildModel(input, params, { ...state, rejected: new Set() });
+  const all = residualsOf(full, sol, state.rejected);
+  const byKey = new Map(all.map((r) => [rowKey(r.ref.table, r.ref.id), r]));
+  return order.map((k) => byKey.get(k)!).filter(Boolean);
+}

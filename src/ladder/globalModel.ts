@@ -1,0 +1,270 @@
+/**
+ * The linear model of the global fit: which parameters exist and which rows the data give,
+ * for fixed values of the non-linear quantities (alpha, beta, intrinsic scatters, and the
+ * point about which field-star parallaxes are linearised). globalFit.ts iterates on those.
+ *
+ * Parameters: one distance modulus per system (and per field Cepheid with its own parallax),
+ * then zeta (parallax zero-point offset), M_W, b_W, Z_W, M_B, a_B. Systems come first so that a
+ * degenerate relation parameter is the one named when the normal matrix is singular.
+ *
+ * Rows (each with its covariance source for the error budget):
+ *  - distance priors (dense block): mu_prior_i = mu_i - K_i zeta             [anchors, main_sequence]
+ *  - zero point prior: 0 = zeta, variance sigma_Z^2                           [parallax_zero_point]
+ *  - field star, in parallax space, linearised at mu0:
+ *      parallax_corr = p(mu0) + p'(mu0)(mu - mu0) + zeta, p(mu) = 10^(-0.2 (mu - 10))   [anchors]
+ *  - Cepheid: W = mu + M_W + b_W (log P - pivot) + Z_W [O/H]                  [cepheids]
+ *  - calibrator: m_B + alpha x1 - beta c = mu_host + M_B                      [sn_calibrators]
+ *  - Hubble flow: m_B + alpha x1 - beta c - 5 log10(c z f) = -5 a_B           [hubble_flow]
+ */
+import type { AnalysisChoices } from '../types/analysis.ts';
+import type { CepheidRow, SnCalibratorRow } from '../types/release.ts';
+import type { DistancePriorBlock, FieldStarAnchor } from './types.ts';
+import type { GlsProblem, RowBlock, SparseRow } from './gls.ts';
+import type { HubbleFlowSupernova } from './hubbleFlow.ts';
+import { wesenheitMagnitude } from './cepheids.ts';
+import { correctedMagnitude, correctedMagnitudeVariance } from './supernovae.ts';
+import { parallaxMasFromModulus } from './distance.ts';
+
+export interface GlobalFitInput {
+  analysis: AnalysisChoices;
+  priors: DistancePriorBlock;
+  fieldStars: FieldStarAnchor[];
+  /** sigma_Z of the parallax zero point (mas); 0 when no parallax enters. */
+  zeroPointErrMas: number;
+  cepheids: CepheidRow[];
+  /** Systems of kind `field`: their Cepheids each get their own distance. */
+  fieldSystems: ReadonlySet<string>;
+  calibrators: SnCalibratorRow[];
+  hubbleFlow: HubbleFlowSupernova[];
+}
+
+export interface FitState {
+  alpha: number;
+  beta: number;
+  /** Intrinsic scatter of Cepheid W rows and of supernova rows (mag). */
+  scatterCepheid: number;
+  scatterSupernova: number;
+  /** Linearisation point (distance modulus) of each field star, in fieldStars order. */
+  linearisedMu: Float64Array;
+  /** Keys "<table>:<id>" of rows rejected as outliers. */
+  rejected: ReadonlySet<string>;
+}
+
+export type RowTable = 'priors' | 'zero_point' | 'field_parallax' | 'cepheids' | 'sn_calibrators' | 'sn_hubble_flow';
+
+export interface RowRef {
+  table: RowTable;
+  id: string;
+  system: string | null;
+  line: number;
+  /** Index into the input array of its table. */
+  index: number;
+}
+
+export interface BuiltModel {
+  problem: GlsProblem;
+  /** refs[b][i] describes row i of block b. */
+  refs: RowRef[][];
+}
+
+export const PARAM = {
+  zeta: 'zeta',
+  MW: 'M_W',
+  bW: 'b_W',
+  ZW: 'Z_W',
+  MB: 'M_B',
+  aB: 'a_B',
+} as const;
+
+export function systemParam(system: string): string {
+  return `mu:${system}`;
+}
+
+export function fieldStarParam(system: string, star: string): string {
+  return `mu:${system}/${star}`;
+}
+
+export function rowKey(table: RowTable, id: string): string {
+  return `${table}:${id}`;
+}
+
+/** The parameter set of a fit: fixed for all values of the non-linear quantities. */
+export class ParameterIndex {
+  readonly names: string[] = [];
+  private readonly index = new Map<string, number>();
+
+  constructor(input: GlobalFitInput) {
+    const fieldStarIds = new Set(input.fieldStars.map((s) => `${s.system}/${s.star}`));
+    const add = (name: string) => {
+      if (!this.index.has(name)) {
+        this.index.set(name, this.names.length);
+        this.names.push(name);
+      }
+    };
+    for (const s of input.priors.systems) add(systemParam(s));
+    for (const s of input.fieldStars) add(fieldStarParam(s.system, s.star));
+    for (const c of input.cepheids) {
+      if (input.fieldSystems.has(c.system)) {
+        if (fieldStarIds.has(`${c.system}/${c.star}`)) add(fieldStarParam(c.system, c.star));
+      } else add(systemParam(c.system));
+    }
+    for (const sn of input.calibrators) add(systemParam(sn.system));
+    const needsZeta =
+      input.zeroPointErrMas > 0 && (input.fieldStars.length > 0 || input.priors.zpLoading.some((k) => k !== 0));
+    if (needsZeta) add(PARAM.zeta);
+    if (input.cepheids.length > 0) {
+      add(PARAM.MW);
+      add(PARAM.bW);
+      if (input.analysis.fit_pl_metallicity) add(PARAM.ZW);
+    }
+    if (input.calibrators.length > 0) add(PARAM.MB);
+    if (input.hubbleFlow.length > 0) add(PARAM.aB);
+  }
+
+  get(name: string): number | undefined {
+    return this.index.get(name);
+  }
+
+  has(name: string): boolean {
+    return this.index.has(name);
+  }
+
+  get size(): number {
+    return this.names.length;
+  }
+}
+
+/** d parallax / d mu = -0.2 ln 10 * parallax(mu). */
+function parallaxSlope(mu: number): number {
+  return -0.2 * Math.LN10 * parallaxMasFromModulus(mu);
+}
+
+/** Build the GLS problem for the given state. Pure: the inputs are not modified. */
+export function buildModel(input: GlobalFitInput, params: ParameterIndex, state: FitState): BuiltModel {
+  const blocks: RowBlock[] = [];
+  const refs: RowRef[][] = [];
+  const zeta = params.get(PARAM.zeta);
+  const { analysis } = input;
+
+  // distance priors of anchors and main-sequence targets (one dense block)
+  if (input.priors.systems.length > 0) {
+    const rows: SparseRow[] = input.priors.systems.map((s, i) => {
+      const mu = params.get(systemParam(s))!;
+      const k = input.priors.zpLoading[i];
+      return zeta !== undefined && k !== 0 ? { idx: [mu, zeta], coef: [1, -k] } : { idx: [mu], coef: [1] };
+    });
+    blocks.push({
+      rows,
+      y: [...input.priors.mu],
+      components: input.priors.parts.map((p) => ({ source: p.source, dense: p.cov })),
+      diagonal: false,
+    });
+    refs.push(input.priors.systems.map((s, i) => ({ table: 'priors', id: s, system: s, line: 0, index: i })));
+  }
+
+  if (zeta !== undefined) {
+    blocks.push({
+      rows: [{ idx: [zeta], coef: [1] }],
+      y: [0],
+      components: [{ source: 'parallax_zero_point', diagonal: [input.zeroPointErrMas ** 2] }],
+      diagonal: true,
+    });
+    refs.push([{ table: 'zero_point', id: 'zero_point', system: null, line: 0, index: 0 }]);
+  }
+
+  if (input.fieldStars.length > 0) {
+    const rows: SparseRow[] = [];
+    const y: number[] = [];
+    const v: number[] = [];
+    const r: RowRef[] = [];
+    input.fieldStars.forEach((s, i) => {
+      const mu0 = state.linearisedMu[i];
+      const slope = parallaxSlope(mu0);
+      const idx = [params.get(fieldStarParam(s.system, s.star))!];
+      const coef = [slope];
+      if (zeta !== undefined) {
+        idx.push(zeta);
+        coef.push(1);
+      }
+      rows.push({ idx, coef });
+      y.push(s.parallaxCorrMas - parallaxMasFromModulus(mu0) + slope * mu0);
+      v.push(s.parallaxErrMas ** 2);
+      r.push({ table: 'field_parallax', id: s.star, system: s.system, line: s.line, index: i });
+    });
+    blocks.push({ rows, y, components: [{ source: 'anchors', diagonal: v }], diagonal: true });
+    refs.push(r);
+  }
+
+  if (input.cepheids.length > 0) {
+    const mW = params.get(PARAM.MW)!;
+    const bW = params.get(PARAM.bW)!;
+    const zW = params.get(PARAM.ZW);
+    const rows: SparseRow[] = [];
+    const y: number[] = [];
+    const v: number[] = [];
+    const r: RowRef[] = [];
+    input.cepheids.forEach((c, i) => {
+      if (state.rejected.has(rowKey('cepheids', c.star))) return;
+      const name = input.fieldSystems.has(c.system) ? fieldStarParam(c.system, c.star) : systemParam(c.system);
+      const mu = params.get(name);
+      if (mu === undefined) return; // a field Cepheid without its own parallax: no distance to tie it to
+      const wm = wesenheitMagnitude(c, analysis.wesenheit_r);
+      const idx = [mu, mW, bW];
+      const coef = [1, 1, wm.logPeriod - analysis.pl_pivot_logp];
+      if (zW !== undefined) {
+        idx.push(zW);
+        coef.push(c.oh);
+      }
+      rows.push({ idx, coef });
+      y.push(wm.w);
+      v.push(wm.wErr ** 2 + state.scatterCepheid ** 2);
+      r.push({ table: 'cepheids', id: c.star, system: c.system, line: c.line, index: i });
+    });
+    if (rows.length > 0) {
+      blocks.push({ rows, y, components: [{ source: 'cepheids', diagonal: v }], diagonal: true });
+      refs.push(r);
+    }
+  }
+
+  if (input.calibrators.length > 0) {
+    const mB = params.get(PARAM.MB)!;
+    const rows: SparseRow[] = [];
+    const y: number[] = [];
+    const v: number[] = [];
+    const r: RowRef[] = [];
+    input.calibrators.forEach((sn, i) => {
+      if (state.rejected.has(rowKey('sn_calibrators', sn.sn))) return;
+      rows.push({ idx: [params.get(systemParam(sn.system))!, mB], coef: [1, 1] });
+      y.push(correctedMagnitude(sn, state.alpha, state.beta));
+      v.push(correctedMagnitudeVariance(sn, state.alpha, state.beta) + state.scatterSupernova ** 2);
+      r.push({ table: 'sn_calibrators', id: sn.sn, system: sn.system, line: sn.line, index: i });
+    });
+    if (rows.length > 0) {
+      blocks.push({ rows, y, components: [{ source: 'sn_calibrators', diagonal: v }], diagonal: true });
+      refs.push(r);
+    }
+  }
+
+  if (input.hubbleFlow.length > 0) {
+    const aB = params.get(PARAM.aB)!;
+    const rows: SparseRow[] = [];
+    const y: number[] = [];
+    const v: number[] = [];
+    const r: RowRef[] = [];
+    input.hubbleFlow.forEach((h, i) => {
+      if (state.rejected.has(rowKey('sn_hubble_flow', h.row.sn))) return;
+      rows.push({ idx: [aB], coef: [-5] });
+      y.push(correctedMagnitude(h.row, state.alpha, state.beta) - 5 * h.logCzf);
+      v.push(
+        correctedMagnitudeVariance(h.row, state.alpha, state.beta) + state.scatterSupernova ** 2 + h.redshiftVariance,
+      );
+      r.push({ table: 'sn_hubble_flow', id: h.row.sn, system: null, line: h.row.line, index: i });
+    });
+    if (rows.length > 0) {
+      blocks.push({ rows, y, components: [{ source: 'hubble_flow', diagonal: v }], diagonal: true });
+      refs.push(r);
+    }
+  }
+
+  return { problem: { nParams: params.size, paramNames: params.names, blocks }, refs };
+}
