@@ -1,0 +1,43 @@
+/**
+ * Named tolerances for the tests, and the error helpers that go with them.
+ * A test states which tolerance it uses and why; no bare 1e-6 in test files.
+ * Relative tolerances are dimensionless; MAG_* are absolute, in magnitudes.
+ */
+
+/** Exact: defined values and integer relations must match bit for bit. */
+export const EXACT_DEFINITION = 0;
+
+/** A few units in the last place of a double (2.2e-16): the same number reached by another short route. */
+export const REL_1E15 = 1e-15;
+
+/** Two careful computations of one smooth quantity (closed form vs converged quadrature, independent codes). */
+export const REL_1E12 = 1e-12;
+
+/** Iterative solvers and quadratures stopped at a practical, not machine, precision. */
+export const REL_1E9 = 1e-9;
+
+/** Loose relative agreement: published values quoted to about six significant digits. */
+export const REL_1E6 = 1e-6;
+
+/** Magnitudes that must agree far below any measurement error (1 micro-mag). */
+export const MAG_1E6 = 1e-6;
+
+/** Magnitudes computed two ways with float round-off only (1e-9 mag). */
+export const MAG_1E9 = 1e-9;
+
+/** Half a unit in the 4th decimal: a value tabulated to 4 decimals matches to within its rounding. */
+export const HALF_UNIT_4TH_DECIMAL = 5e-5;
+
+/** Relative error |a - b| / |b| (b is the reference); exact zero only when both are zero. */
+export function relErr(a: number, b: number): number {
+  if (a === b) return 0;
+  return Math.abs(a - b) / Math.abs(b);
+}
+
+/** Absolute error |a - b|. */
+export function absErr(a: number, b: number): number {
+  return Math.abs(a - b);
+}
+
+/** Half a unit in the 3rd decimal: a value quoted to 3 decimals matches to within its rounding. */
+export const HALF_UNIT_3RD_DECIMAL = 5e-4;
