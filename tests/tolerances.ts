@@ -41,3 +41,32 @@ export function absErr(a: number, b: number): number {
 
 /** Half a unit in the 3rd decimal: a value quoted to 3 decimals matches to within its rounding. */
 export const HALF_UNIT_3RD_DECIMAL = 5e-4;
+
+/**
+ * Statistical checks of seeded simulations (tests/demo): a sample statistic may
+ * differ from its expectation by this many of its own standard errors. A
+ * two-sided 4-sigma tail holds 6e-5 of the probability, so a pass at a fixed seed
+ * is no accident, while a model wrong by tens of per cent fails by far.
+ */
+export const STAT_SIGMAS = 4;
+
+/**
+ * A maximum located by brute-force search on a grid, or a derivative by central
+ * finite differences, agrees with the exact value to about the grid step (1e-4
+ * relative in these tests).
+ */
+export const REL_GRID_SEARCH = 1e-4;
+
+/**
+ * Posterior quantiles read off a few-thousand-point grid (trapezoid rule, linear
+ * interpolation of the cumulative distribution) against exact or finely integrated
+ * quantiles.
+ */
+export const REL_GRID_QUANTILE = 1e-4;
+
+/**
+ * First-order (implicit-function) derivatives of an EM fit against central finite
+ * differences of the whole refit: the dependence of the variance weights on the
+ * fitted slope is a second-order effect left out of the propagation (about 1 %).
+ */
+export const REL_FIRST_ORDER_PROPAGATION = 0.02;
