@@ -1,0 +1,214 @@
+/**
+ * Load a data release folder into the typed, in-memory Release: the manifest
+ * and analysis choices (release.yaml), every table present, the notes, and a
+ * description of every input file. All problems of all files are collected and
+ * thrown together as one InputError. The folder is only read, never written.
+ */
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { basename, join, resolve } from 'node:path';
+import { InputError, type InputIssue } from '../types/issues.ts';
+import { TABLE_NAMES, type InputFile, type Release, type TableName } from '../types/release.ts';
+import { classifyFolder, MANIFEST_FILE, NOTES_FILE } from './folder.ts';
+import { finishFileIssues, newFileIssues, shown, type FileIssues, type Problem } from './issues.ts';
+import { readManifestFile, type ManifestRead } from './manifest.ts';
+import { TABLE_SPECS, type TableRows } from './schema.ts';
+import { nearest } from './suggest.ts';
+import { readTableFile, type TableRead } from './table.ts';
+import { decodeUtf8, sha256Hex } from './text.ts';
+
+/** Tables whose `system` column must name a row of `systems`. */
+const REFERENCING_TABLES = TABLE_NAMES.filter((t) => TABLE_SPECS[t].systemRef !== undefined);
+
+type Reads = { [T in TableName]?: TableRead<T> };
+
+function listFiles(abs: string): string[] {
+  return readdirSync(abs, { withFileTypes: true })
+    .filter((d) => d.isFile() || (d.isSymbolicLink() && statSync(join(abs, d.name), { throwIfNoEntry: false })?.isFile()))
+    .map((d) => d.name);
+}
+
+/**
+ * Only release.yaml of the release in `dir` (for listing and ordering releases
+ * without reading their tables). Throws InputError with its problems.
+ */
+export function readManifest(dir: string): Pick<Release, 'manifest' | 'analysis' | 'analysisKeysSet' | 'variants'> {
+  const fileName = join(dir, MANIFEST_FILE);
+  const path = join(resolve(dir), MANIFEST_FILE);
+  if (!statSync(path, { throwIfNoEntry: false })?.isFile()) {
+    throw new InputError([{ code: 'missing-file', file: fileName, message: 'the release has no release.yaml', expected: 'release.yaml with id, title and date', found: 'no such file' }]);
+  }
+  const read = readManifestFile(path, basename(resolve(dir)));
+  const c = newFileIssues(fileName);
+  c.problems.push(...read.problems);
+  const { issues, omitted } = finishFileIssues(c);
+  if (issues.length > 0 || !read.manifest) throw new InputError(issues, omitted);
+  return { manifest: read.manifest, analysis: read.analysis, analysisKeysSet: read.analysisKeysSet, variants: read.variants };
+}
+
+/** Read and validate the release in `dir`; throws InputError listing every problem found. */
+export function loadRelease(dir: string): Release {
+  const abs = resolve(dir);
+  const folderName = basename(abs);
+  const stat = statSync(abs, { throwIfNoEntry: false });
+  if (!stat?.isDirectory()) {
+    throw new InputError([
+      {
+        code: 'no-release-folder',
+        file: dir,
+        message: stat ? 'not a folder' : 'no such folder',
+        expected: 'a release folder holding release.yaml and systems.ecsv',
+        found: stat ? 'a file' : 'nothing',
+      },
+    ]);
+  }
+
+  const collectors = new Map<string, FileIssues>();
+  const issuesOf = (fileName: string): Problem[] => {
+    let c = collectors.get(fileName);
+    if (!c) {
+      c = newFileIssues(join(dir, fileName));
+      collectors.set(fileName, c);
+    }
+    return c.problems;
+  };
+  const inputs: InputFile[] = [];
+
+  const layout = classifyFolder(listFiles(abs));
+  // Issues are listed per file in this order: release.yaml, the tables, then other files.
+  issuesOf(MANIFEST_FILE);
+  for (const table of TABLE_NAMES) issuesOf(layout.tables[table]?.fileName ?? `${table}.ecsv`);
+  for (const { fileName, problem } of layout.problems) issuesOf(fileName).push(problem);
+
+  // release.yaml
+  let manifest: ManifestRead | undefined;
+  if (!layout.hasManifest) {
+    issuesOf(MANIFEST_FILE).push({
+      code: 'missing-file',
+      message: 'the release has no release.yaml',
+      expected: 'release.yaml with id, title and date',
+      found: 'no such file',
+    });
+  } else {
+    const read = readManifestFile(join(abs, MANIFEST_FILE), folderName);
+    manifest = read;
+    issuesOf(MANIFEST_FILE).push(...read.problems);
+    inputs.push({ table: 'release', file: MANIFEST_FILE, format: 'yaml', sha256: sha256Hex(read.bytes), rows: 0, extraColumns: [], columnUnits: {} });
+  }
+
+  // tables
+  const reads: Reads = {};
+  const absentTables: TableName[] = [];
+  for (const table of TABLE_NAMES) {
+    const ref = layout.tables[table];
+    if (!ref) {
+      absentTables.push(table);
+      if (table === 'systems') {
+        issuesOf('systems.ecsv').push({
+          code: 'missing-table',
+          message: 'the release has no systems table; every release needs one',
+          expected: 'systems.ecsv (or systems.csv, .vot, .xml)',
+          found: 'no such file',
+        });
+      }
+      continue;
+    }
+    const read = readTableFile(table, join(abs, ref.fileName), ref.fileName, ref.format);
+    (reads as Record<string, TableRead<TableName>>)[table] = read;
+    issuesOf(ref.fileName).push(...read.problems);
+    inputs.push(read.input);
+  }
+
+  crossCheckTables(reads, layout.tables, issuesOf);
+
+  // notes.md
+  let notes: string | null = null;
+  if (layout.hasNotes) {
+    const bytes = readFileSync(join(abs, NOTES_FILE));
+    const decoded = decodeUtf8(bytes);
+    if ('problem' in decoded) issuesOf(NOTES_FILE).push(decoded.problem);
+    else notes = decoded.text;
+    inputs.push({ table: 'notes', file: NOTES_FILE, format: 'markdown', sha256: sha256Hex(bytes), rows: 0, extraColumns: [], columnUnits: {} });
+  }
+
+  // One error for the whole release.
+  const issues: InputIssue[] = [];
+  let omitted = 0;
+  for (const collector of collectors.values()) {
+    const done = finishFileIssues(collector);
+    issues.push(...done.issues);
+    omitted += done.omitted;
+  }
+  if (issues.length > 0 || !manifest?.manifest) {
+    if (issues.length === 0) throw new Error('release.yaml was not read but no problem was recorded');
+    throw new InputError(issues, omitted);
+  }
+
+  return {
+    manifest: manifest.manifest,
+    analysis: manifest.analysis,
+    analysisKeysSet: manifest.analysisKeysSet,
+    variants: manifest.variants,
+    systems: reads.systems?.rows ?? [],
+    parallax: reads.parallax?.rows ?? [],
+    mainSequence: reads.main_sequence?.rows ?? [],
+    cepheids: reads.cepheids?.rows ?? [],
+    snCalibrators: reads.sn_calibrators?.rows ?? [],
+    snHubbleFlow: reads.sn_hubble_flow?.rows ?? [],
+    absentTables,
+    inputs,
+    notes,
+    dir: abs,
+  };
+}
+
+/**
+ * Rules across tables: every system named in parallax, main_sequence, cepheids
+ * and sn_calibrators exists in systems; a star in both parallax and cepheids
+ * (a Cepheid anchored by its own parallax) belongs to the same system in both.
+ */
+function crossCheckTables(reads: Reads, files: Partial<Record<TableName, { fileName: string }>>, issuesOf: (fileName: string) => Problem[]): void {
+  const systems = reads.systems;
+  // Without a readable list of system ids every reference would look unknown: those
+  // problems are reported on the systems file itself, so skip the check.
+  if (systems?.structured && systems.keys.size > 0) {
+    const known = [...systems.keys.keys()];
+    for (const table of REFERENCING_TABLES) {
+      const read = reads[table];
+      const fileName = files[table]?.fileName;
+      if (!read || !fileName) continue;
+      for (const ref of read.systemRefs) {
+        if (systems.keys.has(ref.system)) continue;
+        const near = nearest(ref.system, known);
+        issuesOf(fileName).push({
+          code: 'unknown-system',
+          line: ref.line,
+          column: 'system',
+          message: 'the row names a system that the systems table does not list',
+          expected: `a system of ${files.systems?.fileName ?? 'systems'}`,
+          found: shown(ref.system),
+          hint: near ? `did you mean "${near}"?` : 'add the system to the systems table',
+        });
+      }
+    }
+  }
+
+  const parallax = reads.parallax;
+  const cepheids = reads.cepheids;
+  const cepheidFile = files.cepheids?.fileName;
+  if (parallax && cepheids && cepheidFile) {
+    const anchorSystem = new Map<string, TableRows['parallax']>(parallax.rows.map((r) => [r.star, r]));
+    for (const c of cepheids.rows) {
+      const p = anchorSystem.get(c.star);
+      if (p && p.system !== c.system) {
+        issuesOf(cepheidFile).push({
+          code: 'star-system-mismatch',
+          line: c.line,
+          column: 'system',
+          message: `the star also has a parallax (${files.parallax?.fileName} line ${p.line}) but in another system`,
+          expected: JSON.stringify(p.system),
+          found: JSON.stringify(c.system),
+        });
+      }
+    }
+  }
+}

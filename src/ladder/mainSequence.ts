@@ -1,0 +1,208 @@
+/**
+ * Main-sequence rung: the locus from the geometric anchors' members, then each
+ * target's (mu, E) against it, with every error carried through: the target's own
+ * stars, the locus statistics, the anchors' moduli (and through them the parallax
+ * zero point), the anchors' reddening and metallicity errors and the target's
+ * metallicity error. Targets share the locus, so they come out correlated with each
+ * other and with the anchors; buildDistancePriors assembles that covariance.
+ */
+import type { AnalysisChoices } from '../types/analysis.ts';
+import { AnalysisError } from '../types/issues.ts';
+import type { MainSequenceRow, Release, SystemRow } from '../types/release.ts';
+import type { CheckResult, LocusResult, MainSequenceStarResult, MainSequenceTargetResult } from '../types/results.ts';
+import { addMatrices, diag, matMul, sandwich, symmetrize, type Matrix } from '../math/matrix.ts';
+import { polyDerivative } from '../math/polynomial.ts';
+import { fitLocus, type LocusStarInput } from './mainSequenceLocus.ts';
+import { fitTarget, type ReddeningPrior, type TargetFit } from './mainSequenceTarget.ts';
+import { mainSequenceChecks, type CheckInputs } from './mainSequenceChecks.ts';
+import type { ParallaxRungResult } from './parallax.ts';
+
+export { buildDistancePriors } from './mainSequencePriors.ts';
+
+/** Locus stars needed per polynomial coefficient (the mixture also fits a fraction and a scatter). */
+export const MIN_LOCUS_STARS_PER_COEFF = 5;
+/** Stars needed in a target's colour range: two parameters and a binary fraction, with margin. */
+export const MIN_TARGET_STARS = 5;
+
+export interface MainSequenceRungResult {
+  locus: LocusResult | null;
+  targets: MainSequenceTargetResult[];
+  stars: MainSequenceStarResult[];
+  checks: CheckResult[];
+  /** The parallax anchors (all of them, in the parallax rung's order): columns of the Jacobian. */
+  anchorSystems: string[];
+  /** G = d mu_target / d mu_anchor, one row per target. */
+  targetAnchorJacobian: Matrix;
+  /**
+   * Covariance of the targets' mu from main-sequence fitting alone: own fits, locus
+   * statistics, target metallicity, anchors' reddening and metallicity errors.
+   * The anchors' moduli and the zero point are excluded (they enter through G).
+   */
+  targetCovarianceMainSequence: Matrix;
+}
+
+function fail(what: string, value: unknown, expected: string): never {
+  throw new AnalysisError(`analysis choice ${what} = ${JSON.stringify(value)}; expected ${expected}`);
+}
+
+export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices, parallax: ParallaxRungResult): MainSequenceRungResult {
+  const { r_v: rV, ms_feh_slope: s, ms_poly_degree: degree } = analysis;
+  const range: [number, number] = [analysis.ms_color_range[0], analysis.ms_color_range[1]];
+  if (!Number.isInteger(degree) || degree < 1) fail('ms_poly_degree', degree, 'an integer >= 1');
+  if (!(range[0] < range[1])) fail('ms_color_range', range, '[low, high] with low < high');
+  const pivot = 0.5 * (range[0] + range[1]);
+
+  const anchorSystems = parallax.anchors.map((a) => a.system);
+  const rowsBySystem = new Map<string, MainSequenceRow[]>();
+  for (const r of release.mainSequence) {
+    const list = rowsBySystem.get(r.system);
+    if (list) list.push(r);
+    else rowsBySystem.set(r.system, [r]);
+  }
+  const withParallax = new Set(release.parallax.map((r) => r.system));
+  const sysById = new Map(release.systems.map((x) => [x.system, x]));
+  const anchorIdx = parallax.anchors.map((_, i) => i).filter((i) => rowsBySystem.has(anchorSystems[i]));
+  const targets = release.systems.filter((x) => rowsBySystem.has(x.system) && !withParallax.has(x.system));
+  const ignored = [...rowsBySystem.keys()].filter((id) => withParallax.has(id) && !anchorSystems.includes(id));
+  const inputs: CheckInputs = { ignored, anchorsNoEbv: [], noFeh: [], targets: [], locus: null, rV };
+
+  const empty: MainSequenceRungResult = {
+    locus: null, targets: [], stars: [], checks: [], anchorSystems,
+    targetAnchorJacobian: [], targetCovarianceMainSequence: [],
+  };
+  if (anchorIdx.length === 0) {
+    if (targets.length > 0) {
+      throw new AnalysisError(
+        `main-sequence target(s) ${targets.map((t) => `"${t.system}"`).join(', ')} but no geometric anchor has main-sequence rows`,
+        'add main_sequence photometry for at least one cluster with parallaxes, so that the locus can be calibrated',
+      );
+    }
+    return { ...empty, checks: mainSequenceChecks(inputs) };
+  }
+
+  // ---- locus on the anchors ----
+  const nA = anchorSystems.length;
+  const ebvErrA = new Array<number>(nA).fill(0);
+  const fehErrA = new Array<number>(nA).fill(0);
+  const starResults = new Map<MainSequenceRow, MainSequenceStarResult>();
+  const locusStars: (LocusStarInput & { row: MainSequenceRow })[] = [];
+  const anchorRows: { row: MainSequenceRow; c0: number; y: number }[] = [];
+  for (const a of anchorIdx) {
+    const id = anchorSystems[a];
+    const sys = sysById.get(id)!;
+    if (sys.ebv === undefined) inputs.anchorsNoEbv.push(id);
+    if (sys.feh === undefined) inputs.noFeh.push(id);
+    const ebv = sys.ebv ?? 0;
+    ebvErrA[a] = sys.ebv !== undefined ? (sys.ebvErr ?? 0) : 0;
+    fehErrA[a] = sys.fehErr ?? 0;
+    for (const row of rowsBySystem.get(id)!) {
+      const c0 = row.color - ebv;
+      const y = row.mag - parallax.anchors[a].mu - rV * ebv + s * (sys.feh ?? 0);
+      anchorRows.push({ row, c0, y });
+      if (c0 >= range[0] && c0 <= range[1]) {
+        locusStars.push({ row, anchor: a, color0: c0, absMagFeh0: y, magErr: row.magErr, colorErr: row.colorErr });
+      }
+    }
+  }
+  const p = degree + 1;
+  if (locusStars.length < MIN_LOCUS_STARS_PER_COEFF * p) {
+    throw new AnalysisError(
+      `${locusStars.length} anchor main-sequence star(s) lie in the colour range [${range.join(', ')}]; a degree-${degree} locus needs at least ${MIN_LOCUS_STARS_PER_COEFF * p}`,
+      'add anchor photometry, widen ms_color_range, or lower ms_poly_degree',
+    );
+  }
+  const fit = fitLocus(locusStars, { degree, pivot, rV, fehSlope: s, nAnchors: nA });
+  const pBinaryByRow = new Map(locusStars.map((st, i) => [st.row, fit.pBinary[i]]));
+  for (const { row, c0, y } of anchorRows) {
+    starResults.set(row, {
+      star: row.star, system: row.system, line: row.line, color0: c0, abs_mag: y,
+      p_binary: pBinaryByRow.get(row) ?? 0, used: pBinaryByRow.has(row), role: 'anchor',
+    });
+  }
+  // Locus covariance parts: main-sequence-only (stat + anchors' E and feh) and anchors' moduli.
+  const locusMsOnly = symmetrize(addMatrices(
+    fit.covStat,
+    sandwich(fit.dCoeffsDEbv, diag(ebvErrA.map((e) => e * e))),
+    sandwich(fit.dCoeffsDFeh, diag(fehErrA.map((e) => e * e))),
+  ));
+  const locusTotal = symmetrize(addMatrices(locusMsOnly, sandwich(fit.dCoeffsDMu, parallax.anchorCovariance)));
+  const locus: LocusResult = {
+    degree, coeffs: fit.coeffs, color_pivot: pivot, covariance: locusTotal, color_range: range,
+    scatter: fit.scatter, binary_fraction: fit.binaryFraction, n_stars: locusStars.length,
+  };
+  inputs.locus = { ...locus, converged: fit.converged, iterations: fit.iterations };
+
+  // ---- targets ----
+  const fits: { sys: SystemRow; fit: TargetFit; feh: number; fehErr: number; prior: ReddeningPrior }[] = [];
+  for (const sys of targets) {
+    if (sys.feh === undefined) inputs.noFeh.push(sys.system);
+    const prior = reddeningPrior(sys);
+    const rows = rowsBySystem.get(sys.system)!;
+    const feh = sys.feh ?? 0;
+    let tf: TargetFit;
+    try {
+      tf = fitTarget(rows, { coeffs: fit.coeffs, pivot, colorRange: range, scatter: fit.scatter, binaryFraction: fit.binaryFraction }, {
+        rV, fehSlope: s, feh, prior, minStars: MIN_TARGET_STARS,
+      });
+    } catch (e) {
+      throw new AnalysisError(
+        `main-sequence target "${sys.system}" (systems line ${sys.line}): ${(e as Error).message}`,
+        'add photometry in the unevolved colour range, or give an E(B-V) prior (ebv, ebv_err)',
+      );
+    }
+    fits.push({ sys, fit: tf, feh, fehErr: sys.fehErr ?? 0, prior });
+    rows.forEach((row, i) => {
+      starResults.set(row, {
+        star: row.star, system: row.system, line: row.line, color0: row.color - tf.ebv,
+        abs_mag: row.mag - tf.mu - rV * tf.ebv + s * feh, p_binary: tf.pBinary[i], used: tf.used[i], role: 'target',
+      });
+    });
+  }
+
+  // ---- propagation ----
+  const B = fits.map((f) => f.fit.dThetaDCoeffs[0]);
+  const G = fits.length === 0 ? [] : matMul(B, fit.dCoeffsDMu);
+  const targetCov = fits.length === 0 ? [] : symmetrize(sandwich(B, locusMsOnly));
+  fits.forEach((f, t) => (targetCov[t][t] += f.fit.covFit[0][0] + (s * f.fehErr) ** 2));
+
+  for (const f of fits) {
+    const meanP = meanSlope(f.fit, rowsBySystem.get(f.sys.system)!, fit.coeffs, pivot);
+    inputs.targets.push({ system: f.sys.system, prior: f.prior.kind, fit: f.fit, meanSlope: meanP });
+  }
+  const targetResults: MainSequenceTargetResult[] = fits.map((f) => {
+    // Total covariance of (mu, E): own fit + locus (statistics, anchors incl. zero point, anchor E and feh) + target feh.
+    const total = addMatrices(f.fit.covFit, sandwich(f.fit.dThetaDCoeffs, locusTotal), [[(s * f.fehErr) ** 2, 0], [0, 0]]);
+    const muErr = Math.sqrt(total[0][0]);
+    const ebvErr = Math.sqrt(total[1][1]);
+    return {
+      system: f.sys.system, n_stars: f.fit.used.length, n_used: f.fit.nUsed, mu: f.fit.mu, mu_err: muErr,
+      ebv: f.fit.ebv, ebv_err: ebvErr, corr_mu_ebv: ebvErr > 0 ? total[0][1] / (muErr * ebvErr) : 0,
+      feh: f.feh, binary_fraction: f.fit.binaryFraction,
+    };
+  });
+
+  return {
+    locus,
+    targets: targetResults,
+    stars: release.mainSequence.filter((r) => starResults.has(r)).map((r) => starResults.get(r)!),
+    checks: mainSequenceChecks(inputs),
+    anchorSystems,
+    targetAnchorJacobian: G,
+    targetCovarianceMainSequence: targetCov,
+  };
+}
+
+function reddeningPrior(sys: SystemRow): ReddeningPrior {
+  if (sys.ebv === undefined) return { kind: 'free' };
+  if (sys.ebvErr === undefined) return { kind: 'fixed', ebv: sys.ebv };
+  return { kind: 'gaussian', ebv: sys.ebv, ebvErr: sys.ebvErr };
+}
+
+/** Mean locus slope dM_V/d(B-V) over a target's used stars (for the degeneracy message). */
+function meanSlope(tf: TargetFit, rows: readonly MainSequenceRow[], coeffs: readonly number[], pivot: number): number {
+  let sum = 0;
+  rows.forEach((r, i) => {
+    if (tf.used[i]) sum += polyDerivative(coeffs, r.color - tf.ebv - pivot);
+  });
+  return sum / Math.max(1, tf.nUsed);
+}

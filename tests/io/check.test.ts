@@ -1,0 +1,55 @@
+/** `rungbook check`: output lines and exit codes. */
+import { join } from 'node:path';
+import { describe, expect, test } from 'vitest';
+import { runCheck } from '../../src/cli/check.ts';
+import { edited, lineOf, setCell, validRelease, VALID_MANIFEST, writeRelease } from './fixtures.ts';
+
+async function run(dirs: string[]) {
+  const stdout: string[] = [];
+  const stderr: string[] = [];
+  const code = await runCheck(dirs, { stdout: (s) => stdout.push(s), stderr: (s) => stderr.push(s) });
+  return { code, stdout, stderr };
+}
+
+describe('rungbook check', () => {
+  test('a valid release: one ok line with files and rows, exit 0', async () => {
+    const def = validRelease();
+    const dir = writeRelease(def);
+    const rows = Object.values(def.tables).reduce((n, t) => n + t!.rows.length, 0);
+    expect(rows).toBe(14);
+    const r = await run([dir]);
+    expect(r).toEqual({ code: 0, stdout: [`ok ${dir} (7 files, 14 rows)`], stderr: [] });
+  });
+
+  test('an invalid release: every problem as file:line: column "x": message; expected ..., found ...; exit 1', async () => {
+    const def = edited((d) => {
+      setCell(d, 'parallax', 1, 'parallax_err', '-0.06');
+      d.manifest = VALID_MANIFEST.replace('blinded: false', 'blinding: false');
+    });
+    const dir = writeRelease(def);
+    const r = await run([dir]);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toEqual([]);
+    expect(r.stderr).toEqual([
+      `${join(dir, 'release.yaml')}:${lineOf(def.manifest!, 'blinding')}: column "blinding": unknown key; expected one of id, title, date, previous, blinded, analysis, found "blinding" (did you mean "blinded"?)`,
+      // Line 14: 11 header lines (signature, ---, delimiter, datatype:, six columns, schema), the names row, a-001, a-002.
+      `${join(dir, 'parallax.ecsv')}:14: column "parallax_err": the value must be greater than zero; expected > 0, found "-0.06"`,
+      `${dir}: 2 problem(s)`,
+    ]);
+  });
+
+  test('several folders: each reported, exit 1 if any fails', async () => {
+    const good = writeRelease(validRelease());
+    const bad = writeRelease(edited((d) => setCell(d, 'systems', 0, 'kind', '')));
+    const r = await run([good, bad]);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toEqual([`ok ${good} (7 files, 14 rows)`]);
+    expect(r.stderr[0]).toMatch(new RegExp(`^${join(bad, 'systems.ecsv').replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}:\\d+: column "kind": a required value is empty; expected a value, found an empty cell$`));
+  });
+
+  test('no folder given: usage, exit 2', async () => {
+    const r = await run([]);
+    expect(r.code).toBe(2);
+    expect(r.stderr[0]).toMatch(/^usage: rungbook check/);
+  });
+});

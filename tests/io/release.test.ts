@@ -1,0 +1,256 @@
+/**
+ * The release folder as a whole: which files are tables, misspelt names,
+ * absent tables, the description of every input, errors gathered across
+ * files, the cap per file, and that reading never writes.
+ */
+import { createHash } from 'node:crypto';
+import { readdirSync, readFileSync, renameSync, statSync, unlinkSync, writeFileSync } from 'node:fs';
+import { join, relative } from 'node:path';
+import { describe, expect, test } from 'vitest';
+import { loadRelease } from '../../src/io/release.ts';
+import { InputError, MAX_ISSUES_PER_FILE } from '../../src/types/issues.ts';
+import { TABLE_NAMES } from '../../src/types/release.ts';
+import { edited, issuesOf, loadValid, onlyIssue, setCell, tempDir, validRelease, writeRelease, type FixtureFormat } from './fixtures.ts';
+
+describe('a valid release', () => {
+  test('every input is described: table, file, format, sha256 of the bytes, rows', () => {
+    const dir = writeRelease(edited((d) => (d.extraFiles = { 'notes.md': '# What changed\n\nFirst release.\n' })));
+    const r = loadValid(dir);
+    const sha = (name: string) => createHash('sha256').update(readFileSync(join(dir, name))).digest('hex');
+    expect(r.inputs.map((f) => [f.table, f.file, f.format, f.rows])).toEqual([
+      ['release', 'release.yaml', 'yaml', 0],
+      ['systems', 'systems.ecsv', 'ecsv', 4],
+      ['parallax', 'parallax.ecsv', 'ecsv', 3],
+      ['main_sequence', 'main_sequence.ecsv', 'ecsv', 2],
+      ['cepheids', 'cepheids.ecsv', 'ecsv', 2],
+      ['sn_calibrators', 'sn_calibrators.ecsv', 'ecsv', 1],
+      ['sn_hubble_flow', 'sn_hubble_flow.ecsv', 'ecsv', 2],
+      ['notes', 'notes.md', 'markdown', 0],
+    ]);
+    for (const f of r.inputs) expect(f.sha256, f.file).toBe(sha(f.file));
+    expect(r.notes).toBe('# What changed\n\nFirst release.\n');
+    expect(r.absentTables).toEqual([]);
+    expect(r.dir).toBe(dir);
+  });
+
+  test('the sha256 is of the bytes as stored (a BOM changes it, the values do not)', () => {
+    const plain = loadValid(writeRelease(validRelease()));
+    const bom = loadValid(writeRelease(validRelease(), { text: { bom: true, eol: '\r\n' } }));
+    const hashOf = (r: typeof plain) => r.inputs.find((f) => f.table === 'parallax')!.sha256;
+    expect(hashOf(bom)).not.toBe(hashOf(plain));
+    expect(bom.parallax.map(({ line: _l, ...x }) => x)).toEqual(plain.parallax.map(({ line: _l, ...x }) => x));
+    expect(bom.parallax.map((p) => p.line)).toEqual(plain.parallax.map((p) => p.line));
+  });
+
+  test('tables other than systems may be absent and are listed', () => {
+    const def = edited((d) => {
+      delete d.tables.sn_calibrators;
+      delete d.tables.sn_hubble_flow;
+      delete d.tables.main_sequence;
+    });
+    const r = loadValid(writeRelease(def));
+    expect(r.absentTables).toEqual(['main_sequence', 'sn_calibrators', 'sn_hubble_flow']);
+    expect([r.mainSequence, r.snCalibrators, r.snHubbleFlow]).toEqual([[], [], []]);
+    expect(r.notes).toBeNull();
+  });
+
+  test.each(['csv', 'vot', 'xml'] as FixtureFormat[])('every table as .%s gives the same rows as ECSV', (format) => {
+    const ecsv = loadValid(writeRelease(validRelease()));
+    const formats = Object.fromEntries(TABLE_NAMES.map((t) => [t, format]));
+    const other = loadValid(writeRelease(validRelease(), { formats }));
+    const strip = <T extends { line: number }>(rows: T[]) => rows.map(({ line: _l, ...rest }) => rest);
+    expect(strip(other.systems)).toEqual(strip(ecsv.systems));
+    expect(strip(other.parallax)).toEqual(strip(ecsv.parallax));
+    expect(strip(other.mainSequence)).toEqual(strip(ecsv.mainSequence));
+    expect(strip(other.cepheids)).toEqual(strip(ecsv.cepheids));
+    expect(strip(other.snCalibrators)).toEqual(strip(ecsv.snCalibrators));
+    expect(strip(other.snHubbleFlow)).toEqual(strip(ecsv.snHubbleFlow));
+    expect(other.inputs.filter((f) => f.table === 'parallax').map((f) => [f.file, f.format])).toEqual([
+      [`parallax.${format}`, format === 'csv' ? 'csv' : 'votable'],
+    ]);
+  });
+
+  test('CSV rows are on lines 2, 3, ... (header row on line 1)', () => {
+    const r = loadValid(writeRelease(validRelease(), { formats: { parallax: 'csv' } }));
+    expect(r.parallax.map((p) => p.line)).toEqual([2, 3, 4]);
+  });
+
+  test('other files are ignored, blinding.json included', () => {
+    const def = edited((d) => {
+      d.extraFiles = { 'blinding.json': '{"not": "read here"', 'README.md': 'x', 'photometry_raw.csv': 'a\n1\n', 'plot.png': new Uint8Array([0x89, 0x50]) };
+    });
+    const r = loadValid(writeRelease(def));
+    expect(r.inputs.map((f) => f.file)).not.toContain('blinding.json');
+    expect(r.inputs).toHaveLength(7);
+  });
+
+  test('a path given with a trailing slash or as a relative path works and issues use it', () => {
+    const dir = writeRelease(edited((d) => setCell(d, 'systems', 0, 'kind', 'cloud')));
+    const [issue] = issuesOf(dir + '/');
+    expect(issue.file).toBe(join(dir, 'systems.ecsv'));
+    const rel = join('.', relative(process.cwd(), dir));
+    const [relIssue] = issuesOf(rel);
+    expect(relIssue.file).toBe(join(rel, 'systems.ecsv'));
+  });
+});
+
+describe('file names', () => {
+  test.each([
+    ['cepheid.ecsv', 'cepheids', 'cepheids.ecsv'],
+    ['parralax.csv', 'parallax', 'parallax.csv'],
+    ['sn_hubbleflow.ecsv', 'sn_hubble_flow', 'sn_hubble_flow.ecsv'],
+    ['Parallax.ecsv', 'parallax', 'parallax.ecsv'],
+    ['main-sequence.vot', 'main_sequence', 'main_sequence.vot'],
+    ['sn_calibrator.xml', 'sn_calibrators', 'sn_calibrators.xml'],
+    ['parallax.ECSV', 'parallax', 'parallax.ecsv'],
+  ])('%s is refused with a suggestion', (name, table, right) => {
+    const def = validRelease();
+    const dir = writeRelease(def);
+    renameSync(join(dir, `${table}.ecsv`), join(dir, name));
+    const issue = onlyIssue(issuesOf(dir), 'misspelt-file-name');
+    expect(issue).toMatchObject({ file: join(dir, name), found: JSON.stringify(name), hint: `did you mean "${right}"?` });
+  });
+
+  test('release.yml is a misspelt manifest', () => {
+    const dir = writeRelease(validRelease());
+    renameSync(join(dir, 'release.yaml'), join(dir, 'release.yml'));
+    const issues = issuesOf(dir);
+    expect(issues).toContainEqual(expect.objectContaining({ code: 'misspelt-file-name', file: join(dir, 'release.yml'), hint: 'did you mean "release.yaml"?' }));
+    expect(issues).toContainEqual(expect.objectContaining({ code: 'missing-file', file: join(dir, 'release.yaml') }));
+  });
+
+  test('a table name with a format that is not read', () => {
+    const dir = writeRelease(edited((d) => (d.extraFiles = { 'cepheids.txt': 'x' })));
+    expect(onlyIssue(issuesOf(dir), 'unsupported-table-format')).toMatchObject({ file: join(dir, 'cepheids.txt'), found: '"cepheids.txt"' });
+  });
+
+  test('one table in two formats', () => {
+    const dir = writeRelease(validRelease());
+    writeFileSync(join(dir, 'parallax.csv'), 'star,system,parallax,parallax_err\nq,alder,1,0.1\n');
+    const issue = onlyIssue(issuesOf(dir), 'duplicate-table');
+    expect(issue).toMatchObject({ file: join(dir, 'parallax.ecsv'), found: 'parallax.csv and parallax.ecsv' });
+  });
+
+  test('systems is required', () => {
+    const dir = writeRelease(validRelease());
+    unlinkSync(join(dir, 'systems.ecsv'));
+    const issues = issuesOf(dir);
+    // Only the missing table: references are not checked against a table that is not there.
+    expect(issues).toEqual([expect.objectContaining({ code: 'missing-table', file: join(dir, 'systems.ecsv'), found: 'no such file' })]);
+  });
+
+  test('release.yaml is required', () => {
+    const dir = writeRelease(edited((d) => (d.manifest = null)));
+    expect(issuesOf(dir)).toEqual([expect.objectContaining({ code: 'missing-file', file: join(dir, 'release.yaml') })]);
+  });
+
+  test('the id must equal the folder name', () => {
+    const dir = writeRelease(validRelease(), { folder: '2026.9' });
+    expect(issuesOf(dir)).toEqual([expect.objectContaining({ code: 'id-mismatch', file: join(dir, 'release.yaml'), line: 1, column: 'id', expected: '"2026.9"', found: '"2026.1"' })]);
+  });
+
+  test('a folder that does not exist, and a file given as a folder', () => {
+    const missing = join(tempDir(), 'nope');
+    expect(issuesOf(missing)).toEqual([expect.objectContaining({ code: 'no-release-folder', file: missing, found: 'nothing' })]);
+    const dir = writeRelease(validRelease());
+    expect(issuesOf(join(dir, 'release.yaml'))).toEqual([expect.objectContaining({ code: 'no-release-folder', found: 'a file' })]);
+  });
+
+  test('notes.md that is not UTF-8', () => {
+    const dir = writeRelease(edited((d) => (d.extraFiles = { 'notes.md': Buffer.from('caf\u00e9\n', 'latin1') })));
+    expect(onlyIssue(issuesOf(dir), 'not-utf8')).toMatchObject({ file: join(dir, 'notes.md'), line: 1 });
+  });
+});
+
+describe('errors gathered', () => {
+  test('problems in several files are thrown together as one InputError', () => {
+    const def = edited((d) => {
+      d.manifest = d.manifest!.replace('clip_sigma: 3.0', 'clip_sigmaa: 3.0');
+      setCell(d, 'systems', 1, 'kind', 'cloud');
+      setCell(d, 'sn_hubble_flow', 1, 'z_err', '0');
+    });
+    const dir = writeRelease(def);
+    let error: unknown;
+    try {
+      loadRelease(dir);
+    } catch (e) {
+      error = e;
+    }
+    expect(error).toBeInstanceOf(InputError);
+    const issues = (error as InputError).issues;
+    expect(issues.map((i) => [i.file, i.code])).toEqual([
+      [join(dir, 'release.yaml'), 'unknown-key'],
+      [join(dir, 'systems.ecsv'), 'not-allowed'],
+      [join(dir, 'sn_hubble_flow.ecsv'), 'not-positive'],
+    ]);
+    expect((error as InputError).omitted).toBe(0);
+  });
+
+  test(`at most ${MAX_ISSUES_PER_FILE} issues per file, then "and N more"`, () => {
+    const extra = 17;
+    const def = edited((d) => {
+      const t = d.tables.main_sequence!;
+      for (let i = 0; i < MAX_ISSUES_PER_FILE + extra; i++) t.rows.push([`m-${i}`, 'birch', '0.7', '-1', '10', '0.02']);
+      setCell(d, 'cepheids', 0, 'm_v', 'bright');
+    });
+    const dir = writeRelease(def);
+    let error: InputError | undefined;
+    try {
+      loadRelease(dir);
+    } catch (e) {
+      error = e as InputError;
+    }
+    const ms = error!.issues.filter((i) => i.file === join(dir, 'main_sequence.ecsv'));
+    expect(ms).toHaveLength(MAX_ISSUES_PER_FILE + 1);
+    expect(ms.slice(0, -1).every((i) => i.code === 'not-positive' && i.column === 'color_err')).toBe(true);
+    expect(ms.at(-1)).toMatchObject({ code: 'more-issues', message: `and ${extra} more problem(s) in this file, not listed` });
+    expect(error!.omitted).toBe(extra);
+    // The other file's problem is still reported.
+    expect(error!.issues.at(-1)).toMatchObject({ file: join(dir, 'cepheids.ecsv'), code: 'not-a-number', column: 'm_v' });
+  });
+});
+
+describe('reading never modifies the release folder', () => {
+  /** Names, sizes, modification times, modes and contents of every entry. */
+  function fingerprint(dir: string): string {
+    const h = createHash('sha256');
+    for (const name of readdirSync(dir).sort()) {
+      const s = statSync(join(dir, name));
+      h.update(`${name}\0${s.size}\0${s.mtimeMs}\0${s.mode}\0`);
+      if (s.isFile()) h.update(readFileSync(join(dir, name)));
+    }
+    return h.digest('hex');
+  }
+
+  test('a valid release, read twice', () => {
+    const dir = writeRelease(edited((d) => (d.extraFiles = { 'notes.md': 'n\n', 'blinding.json': '{}' })));
+    const before = fingerprint(dir);
+    const folderBefore = statSync(dir).mtimeMs;
+    loadValid(dir);
+    loadValid(dir);
+    expect(fingerprint(dir)).toBe(before);
+    expect(statSync(dir).mtimeMs).toBe(folderBefore);
+  });
+
+  test('an invalid release', () => {
+    const dir = writeRelease(edited((d) => {
+      setCell(d, 'parallax', 0, 'parallax', 'nan');
+      d.extraFiles = { 'cepheid.csv': 'x\n' };
+    }));
+    const before = fingerprint(dir);
+    expect(issuesOf(dir).length).toBeGreaterThan(0);
+    expect(fingerprint(dir)).toBe(before);
+  });
+});
+
+describe('readManifest', () => {
+  test('reads only release.yaml', async () => {
+    const { readManifest } = await import('../../src/io/release.ts');
+    const dir = writeRelease(edited((d) => setCell(d, 'parallax', 0, 'parallax', 'nan')));
+    const m = readManifest(dir);
+    expect(m.manifest).toEqual({ id: '2026.1', title: 'First test release', date: '2026-03-01', previous: null, blinded: false });
+    expect(m.analysisKeysSet).toEqual(['z_min', 'clip_sigma']);
+    const bad = writeRelease(edited((d) => (d.manifest = d.manifest!.replace('blinded: false', 'blinded: maybe'))));
+    expect(() => readManifest(bad)).toThrow(InputError);
+  });
+});
