@@ -34,12 +34,41 @@ export interface LadderRun {
   reached: Results['reached'];
 }
 
+/** Analysis keys each early rung depends on: variants that leave them alone reuse the rung. */
+const PARALLAX_KEYS = ['parallax_zero_point', 'parallax_zero_point_err', 'parallax_floor'] as const;
+const MAIN_SEQUENCE_KEYS = [...PARALLAX_KEYS, 'r_v', 'ms_color_range', 'ms_poly_degree', 'ms_feh_slope'] as const;
+
+/** Rung results already computed for this release, keyed by the analysis keys they depend on. */
+export interface RungCache {
+  parallax: Map<string, ReturnType<typeof fitParallaxRung>>;
+  mainSequence: Map<string, ReturnType<typeof fitMainSequenceRung>>;
+}
+
+export function newRungCache(): RungCache {
+  return { parallax: new Map(), mainSequence: new Map() };
+}
+
+function keyOf(analysis: AnalysisChoices, keys: readonly (keyof AnalysisChoices)[]): string {
+  return JSON.stringify(keys.map((k) => analysis[k]));
+}
+
+function cached<T>(map: Map<string, T>, key: string, compute: () => T): T {
+  let v = map.get(key);
+  if (v === undefined) {
+    v = compute();
+    map.set(key, v);
+  }
+  return v;
+}
+
 /** One pass of the ladder with the given analysis choices. */
-export function runLadder(release: Release, analysis: AnalysisChoices): LadderRun {
+export function runLadder(release: Release, analysis: AnalysisChoices, cache: RungCache = newRungCache()): LadderRun {
   const checks: CheckResult[] = [];
-  const parallax = fitParallaxRung(release, analysis);
+  const parallax = cached(cache.parallax, keyOf(analysis, PARALLAX_KEYS), () => fitParallaxRung(release, analysis));
   checks.push(...parallax.checks);
-  const mainSequence = fitMainSequenceRung(release, analysis, parallax);
+  const mainSequence = cached(cache.mainSequence, keyOf(analysis, MAIN_SEQUENCE_KEYS), () =>
+    fitMainSequenceRung(release, analysis, parallax),
+  );
   checks.push(...mainSequence.checks);
   const priors = buildDistancePriors(parallax, mainSequence);
   const hubbleFlow = selectHubbleFlow(release.snHubbleFlow, analysis);
@@ -128,10 +157,11 @@ export interface CalibrateOptions {
 
 /** The full calibration of a release: baseline, variants, budget, results.json content. */
 export function calibrateRelease(release: Release, options: CalibrateOptions): Results {
-  const baseline = runLadder(release, release.analysis);
+  const cache = newRungCache();
+  const baseline = runLadder(release, release.analysis, cache);
   const variants: VariantResult[] = release.variants.map((variant) => {
     try {
-      const run = runLadder(release, withOverrides(release.analysis, variant.overrides));
+      const run = runLadder(release, withOverrides(release.analysis, variant.overrides), cache);
       const h0 = run.log10H0 ? 10 ** run.log10H0.value : null;
       const base = baseline.log10H0 ? 10 ** baseline.log10H0.value : null;
       return {

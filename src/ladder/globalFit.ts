@@ -13,6 +13,9 @@
  */
 import { AnalysisError } from '../types/issues.ts';
 import {
+  accumulateNormal,
+  addNormal,
+  solveNormal,
   blockLeverages,
   blockResiduals,
   blockVariance,
@@ -27,7 +30,9 @@ import {
   fieldStarParam,
   ParameterIndex,
   rowKey,
+  prepareModel,
   type BuiltModel,
+  type PreparedModel,
   type FitState,
   type GlobalFitInput,
   type RowRef,
@@ -126,9 +131,23 @@ function describeParam(name: string): string {
   return known[name] ?? `the parameter ${name}`;
 }
 
-/** Profile chi-square at (alpha, beta), everything else held. */
-function profileChi2(input: GlobalFitInput, params: ParameterIndex, state: FitState, alpha: number, beta: number): number {
-  return solveOrExplain(buildModel(input, params, { ...state, alpha, beta })).chi2;
+/**
+ * Profile chi-square in (alpha, beta), everything else held. Only the supernova rows depend
+ * on alpha and beta, so the normal equations of the other rows are accumulated once and
+ * each evaluation adds the supernova rows and solves the p x p system (chi2 = c - b^T q).
+ */
+function profileChi2Function(prep: PreparedModel, state: FitState): (alpha: number, beta: number) => number {
+  const p = prep.params.size;
+  const fixedPart = accumulateNormal(p, buildModel(prep, state, 'static').problem.blocks);
+  return (alpha, beta) => {
+    const sn = accumulateNormal(p, buildModel(prep, { ...state, alpha, beta }, 'supernovae').problem.blocks);
+    try {
+      return solveNormal(addNormal(fixedPart, sn), prep.params.names).chi2;
+    } catch (e) {
+      if (e instanceof SingularFitError) return solveOrExplain(buildModel(prep, state)).chi2;
+      throw e;
+    }
+  };
 }
 
 /** Gradient and Hessian of f at x by central differences (2-D or 1-D via mask). */
@@ -169,8 +188,8 @@ function numericalDerivatives(
 }
 
 /** One damped Newton step on the profile chi-square in (alpha, beta). */
-function standardisationStep(input: GlobalFitInput, params: ParameterIndex, state: FitState, free: [boolean, boolean]) {
-  const f = (a: number, b: number) => profileChi2(input, params, state, a, b);
+function standardisationStep(prep: PreparedModel, state: FitState, free: [boolean, boolean]) {
+  const f = profileChi2Function(prep, state);
   const { g, h, f0 } = numericalDerivatives(f, state.alpha, state.beta, free);
   const det = h[0][0] * h[1][1] - h[0][1] * h[1][0];
   let da: number;
@@ -237,6 +256,7 @@ function residualsOf(model: BuiltModel, sol: GlsSolution, rejected: ReadonlySet<
 
 export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
   const params = new ParameterIndex(input);
+  const prep = prepareModel(input, params);
   const p = params.size;
   const { analysis } = input;
   const hasSn = input.calibrators.length + input.hubbleFlow.length > 0;
@@ -267,7 +287,7 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
     converged = false;
     for (let it = 0; it < LIMITS.maxInner; it++) {
       iterations++;
-      const model = buildModel(input, params, state);
+      const model = buildModel(prep, state);
       const sol = solveOrExplain(model);
       // 1. re-linearise the field stars at the fitted distances
       const lin = Float64Array.from(input.fieldStars, (s, i) => {
@@ -301,7 +321,7 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
       let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova };
       // 3. alpha, beta
       if (free[0] || free[1]) {
-        const step = standardisationStep(input, params, next, free);
+        const step = standardisationStep(prep, next, free);
         lastHessian = step.hessian;
         next = { ...next, alpha: step.alpha, beta: step.beta };
       }
@@ -320,7 +340,7 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
     }
     if (analysis.clip_sigma === null) break;
     // outlier rejection on the data rows (Cepheids and supernovae), all beyond the threshold at once
-    const model = buildModel(input, params, state);
+    const model = buildModel(prep, state);
     const sol = solveOrExplain(model);
     const res = residualsOf(model, sol, state.rejected);
     const clip = analysis.clip_sigma;
@@ -345,13 +365,13 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
   }
 
   // final solution and covariances
-  const model = buildModel(input, params, state);
+  const model = buildModel(prep, state);
   const sol = solveOrExplain(model);
   const covGls = inverseFromFactor(sol.factor, p);
   const names: ('alpha' | 'beta')[] = [];
   if (free[0]) names.push('alpha');
   if (free[1]) names.push('beta');
-  const jacobian = names.map((name) => standardisationJacobian(input, params, state, name));
+  const jacobian = names.map((name) => standardisationJacobian(prep, state, name));
   const covTheta = names.length
     ? sandwichCovariance(input, params, state, model, sol, covGls, free, lastHessian)
     : [];
@@ -371,7 +391,7 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
   };
   const residuals = residualsOf(model, sol, state.rejected);
   // rejected rows are not in the model: compute their residuals against the final solution
-  const rejectedRows = rejectedResiduals(input, params, state, sol, rejectedOrder);
+  const rejectedRows = rejectedResiduals(prep, state, sol, rejectedOrder);
   const nData = model.problem.blocks.reduce((s, b) => s + b.rows.length, 0);
   const nScatter = (input.cepheids.length ? 1 : 0) + (hasSn ? 1 : 0);
   return {
@@ -411,11 +431,11 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
 }
 
 /** d q / d theta by central differences at fixed scatters and linearisation. */
-function standardisationJacobian(input: GlobalFitInput, params: ParameterIndex, state: FitState, name: 'alpha' | 'beta'): number[] {
+function standardisationJacobian(prep: PreparedModel, state: FitState, name: 'alpha' | 'beta'): number[] {
   const h = name === 'alpha' ? LIMITS.hAlpha : LIMITS.hBeta;
   const at = (d: number) =>
     solveOrExplain(
-      buildModel(input, params, name === 'alpha' ? { ...state, alpha: state.alpha + d } : { ...state, beta: state.beta + d }),
+      buildModel(prep, name === 'alpha' ? { ...state, alpha: state.alpha + d } : { ...state, beta: state.beta + d }),
     ).q;
   const qp = at(h);
   const qm = at(-h);
@@ -519,15 +539,14 @@ function invertSmall(a: number[][]): number[][] {
 }
 
 function rejectedResiduals(
-  input: GlobalFitInput,
-  params: ParameterIndex,
+  prep: PreparedModel,
   state: FitState,
   sol: GlsSolution,
   order: string[],
 ): RowResidual[] {
   if (order.length === 0) return [];
   // rebuild the model with nothing rejected to get the rows, then keep the rejected ones
-  const full = buildModel(input, params, { ...state, rejected: new Set() });
+  const full = buildModel(prep, { ...state, rejected: new Set() });
   const all = residualsOf(full, sol, state.rejected);
   const byKey = new Map(all.map((r) => [rowKey(r.ref.table, r.ref.id), r]));
   return order.map((k) => byKey.get(k)!).filter(Boolean);

@@ -139,30 +139,86 @@ function parallaxSlope(mu: number): number {
   return -0.2 * Math.LN10 * parallaxMasFromModulus(mu);
 }
 
-/** Build the GLS problem for the given state. Pure: the inputs are not modified. */
-export function buildModel(input: GlobalFitInput, params: ParameterIndex, state: FitState): BuiltModel {
-  const blocks: RowBlock[] = [];
-  const refs: RowRef[][] = [];
+/**
+ * What does not change while the fit iterates, computed once: design rows of the Cepheids,
+ * the parameter indices of each supernova, the Hubble-flow expansion terms.
+ */
+export interface PreparedModel {
+  input: GlobalFitInput;
+  params: ParameterIndex;
+  zeta: number | undefined;
+  priorRows: SparseRow[];
+  fieldParam: number[];
+  cepheid: { index: number; key: string; row: SparseRow; w: number; wErr2: number }[];
+  calibrator: { index: number; key: string; row: SparseRow }[];
+  hubble: { index: number; key: string; row: SparseRow }[];
+}
+
+export function prepareModel(input: GlobalFitInput, params: ParameterIndex): PreparedModel {
   const zeta = params.get(PARAM.zeta);
   const { analysis } = input;
+  const priorRows = input.priors.systems.map((s, i): SparseRow => {
+    const mu = params.get(systemParam(s))!;
+    const k = input.priors.zpLoading[i];
+    return zeta !== undefined && k !== 0 ? { idx: [mu, zeta], coef: [1, -k] } : { idx: [mu], coef: [1] };
+  });
+  const fieldParam = input.fieldStars.map((s) => params.get(fieldStarParam(s.system, s.star))!);
+  const cepheid: PreparedModel['cepheid'] = [];
+  if (input.cepheids.length > 0) {
+    const mW = params.get(PARAM.MW)!;
+    const bW = params.get(PARAM.bW)!;
+    const zW = params.get(PARAM.ZW);
+    input.cepheids.forEach((c, index) => {
+      const name = input.fieldSystems.has(c.system) ? fieldStarParam(c.system, c.star) : systemParam(c.system);
+      const mu = params.get(name);
+      if (mu === undefined) return; // a field Cepheid without its own parallax: no distance to tie it to
+      const wm = wesenheitMagnitude(c, analysis.wesenheit_r);
+      const row: SparseRow = { idx: [mu, mW, bW], coef: [1, 1, wm.logPeriod - analysis.pl_pivot_logp] };
+      if (zW !== undefined) {
+        row.idx.push(zW);
+        row.coef.push(c.oh);
+      }
+      cepheid.push({ index, key: rowKey('cepheids', c.star), row, w: wm.w, wErr2: wm.wErr ** 2 });
+    });
+  }
+  const mB = params.get(PARAM.MB);
+  const calibrator = input.calibrators.map((sn, index) => ({
+    index,
+    key: rowKey('sn_calibrators', sn.sn),
+    row: { idx: [params.get(systemParam(sn.system))!, mB!], coef: [1, 1] },
+  }));
+  const aB = params.get(PARAM.aB);
+  const hubble = input.hubbleFlow.map((h, index) => ({
+    index,
+    key: rowKey('sn_hubble_flow', h.row.sn),
+    row: { idx: [aB!], coef: [-5] },
+  }));
+  return { input, params, zeta, priorRows, fieldParam, cepheid, calibrator, hubble };
+}
+
+/** Which rows to build: all, only the supernova rows (they depend on alpha, beta), or the rest. */
+export type ModelPart = 'all' | 'supernovae' | 'static';
+
+/** Build the GLS problem for the given state. Pure: the inputs are not modified. */
+export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart = 'all'): BuiltModel {
+  const { input, params, zeta } = prep;
+  const blocks: RowBlock[] = [];
+  const refs: RowRef[][] = [];
+  const withStatic = part !== 'supernovae';
+  const withSupernovae = part !== 'static';
 
   // distance priors of anchors and main-sequence targets (one dense block)
-  if (input.priors.systems.length > 0) {
-    const rows: SparseRow[] = input.priors.systems.map((s, i) => {
-      const mu = params.get(systemParam(s))!;
-      const k = input.priors.zpLoading[i];
-      return zeta !== undefined && k !== 0 ? { idx: [mu, zeta], coef: [1, -k] } : { idx: [mu], coef: [1] };
-    });
+  if (withStatic && input.priors.systems.length > 0) {
     blocks.push({
-      rows,
-      y: [...input.priors.mu],
+      rows: prep.priorRows,
+      y: input.priors.mu,
       components: input.priors.parts.map((p) => ({ source: p.source, dense: p.cov })),
       diagonal: false,
     });
     refs.push(input.priors.systems.map((s, i) => ({ table: 'priors', id: s, system: s, line: 0, index: i })));
   }
 
-  if (zeta !== undefined) {
+  if (withStatic && zeta !== undefined) {
     blocks.push({
       rows: [{ idx: [zeta], coef: [1] }],
       y: [0],
@@ -172,7 +228,7 @@ export function buildModel(input: GlobalFitInput, params: ParameterIndex, state:
     refs.push([{ table: 'zero_point', id: 'zero_point', system: null, line: 0, index: 0 }]);
   }
 
-  if (input.fieldStars.length > 0) {
+  if (withStatic && input.fieldStars.length > 0) {
     const rows: SparseRow[] = [];
     const y: number[] = [];
     const v: number[] = [];
@@ -180,7 +236,7 @@ export function buildModel(input: GlobalFitInput, params: ParameterIndex, state:
     input.fieldStars.forEach((s, i) => {
       const mu0 = state.linearisedMu[i];
       const slope = parallaxSlope(mu0);
-      const idx = [params.get(fieldStarParam(s.system, s.star))!];
+      const idx = [prep.fieldParam[i]];
       const coef = [slope];
       if (zeta !== undefined) {
         idx.push(zeta);
@@ -195,75 +251,70 @@ export function buildModel(input: GlobalFitInput, params: ParameterIndex, state:
     refs.push(r);
   }
 
-  if (input.cepheids.length > 0) {
-    const mW = params.get(PARAM.MW)!;
-    const bW = params.get(PARAM.bW)!;
-    const zW = params.get(PARAM.ZW);
-    const rows: SparseRow[] = [];
-    const y: number[] = [];
-    const v: number[] = [];
-    const r: RowRef[] = [];
-    input.cepheids.forEach((c, i) => {
-      if (state.rejected.has(rowKey('cepheids', c.star))) return;
-      const name = input.fieldSystems.has(c.system) ? fieldStarParam(c.system, c.star) : systemParam(c.system);
-      const mu = params.get(name);
-      if (mu === undefined) return; // a field Cepheid without its own parallax: no distance to tie it to
-      const wm = wesenheitMagnitude(c, analysis.wesenheit_r);
-      const idx = [mu, mW, bW];
-      const coef = [1, 1, wm.logPeriod - analysis.pl_pivot_logp];
-      if (zW !== undefined) {
-        idx.push(zW);
-        coef.push(c.oh);
-      }
-      rows.push({ idx, coef });
-      y.push(wm.w);
-      v.push(wm.wErr ** 2 + state.scatterCepheid ** 2);
-      r.push({ table: 'cepheids', id: c.star, system: c.system, line: c.line, index: i });
+  const s2c = state.scatterCepheid ** 2;
+  const cep = prep.cepheid.filter((c) => !state.rejected.has(c.key));
+  if (withStatic && cep.length > 0) {
+    blocks.push({
+      rows: cep.map((c) => c.row),
+      y: cep.map((c) => c.w),
+      components: [{ source: 'cepheids', diagonal: cep.map((c) => c.wErr2 + s2c) }],
+      diagonal: true,
     });
-    if (rows.length > 0) {
-      blocks.push({ rows, y, components: [{ source: 'cepheids', diagonal: v }], diagonal: true });
-      refs.push(r);
-    }
+    refs.push(
+      cep.map((c) => {
+        const row = input.cepheids[c.index];
+        return { table: 'cepheids', id: row.star, system: row.system, line: row.line, index: c.index };
+      }),
+    );
   }
 
-  if (input.calibrators.length > 0) {
-    const mB = params.get(PARAM.MB)!;
-    const rows: SparseRow[] = [];
-    const y: number[] = [];
-    const v: number[] = [];
-    const r: RowRef[] = [];
-    input.calibrators.forEach((sn, i) => {
-      if (state.rejected.has(rowKey('sn_calibrators', sn.sn))) return;
-      rows.push({ idx: [params.get(systemParam(sn.system))!, mB], coef: [1, 1] });
-      y.push(correctedMagnitude(sn, state.alpha, state.beta));
-      v.push(correctedMagnitudeVariance(sn, state.alpha, state.beta) + state.scatterSupernova ** 2);
-      r.push({ table: 'sn_calibrators', id: sn.sn, system: sn.system, line: sn.line, index: i });
+  const s2s = state.scatterSupernova ** 2;
+  const cal = prep.calibrator.filter((c) => !state.rejected.has(c.key));
+  if (withSupernovae && cal.length > 0) {
+    blocks.push({
+      rows: cal.map((c) => c.row),
+      y: cal.map((c) => correctedMagnitude(input.calibrators[c.index], state.alpha, state.beta)),
+      components: [
+        {
+          source: 'sn_calibrators',
+          diagonal: cal.map((c) => correctedMagnitudeVariance(input.calibrators[c.index], state.alpha, state.beta) + s2s),
+        },
+      ],
+      diagonal: true,
     });
-    if (rows.length > 0) {
-      blocks.push({ rows, y, components: [{ source: 'sn_calibrators', diagonal: v }], diagonal: true });
-      refs.push(r);
-    }
+    refs.push(
+      cal.map((c) => {
+        const sn = input.calibrators[c.index];
+        return { table: 'sn_calibrators', id: sn.sn, system: sn.system, line: sn.line, index: c.index };
+      }),
+    );
   }
 
-  if (input.hubbleFlow.length > 0) {
-    const aB = params.get(PARAM.aB)!;
-    const rows: SparseRow[] = [];
-    const y: number[] = [];
-    const v: number[] = [];
-    const r: RowRef[] = [];
-    input.hubbleFlow.forEach((h, i) => {
-      if (state.rejected.has(rowKey('sn_hubble_flow', h.row.sn))) return;
-      rows.push({ idx: [aB], coef: [-5] });
-      y.push(correctedMagnitude(h.row, state.alpha, state.beta) - 5 * h.logCzf);
-      v.push(
-        correctedMagnitudeVariance(h.row, state.alpha, state.beta) + state.scatterSupernova ** 2 + h.redshiftVariance,
-      );
-      r.push({ table: 'sn_hubble_flow', id: h.row.sn, system: null, line: h.row.line, index: i });
+  const hub = prep.hubble.filter((c) => !state.rejected.has(c.key));
+  if (withSupernovae && hub.length > 0) {
+    blocks.push({
+      rows: hub.map((c) => c.row),
+      y: hub.map((c) => {
+        const h = input.hubbleFlow[c.index];
+        return correctedMagnitude(h.row, state.alpha, state.beta) - 5 * h.logCzf;
+      }),
+      components: [
+        {
+          source: 'hubble_flow',
+          diagonal: hub.map((c) => {
+            const h = input.hubbleFlow[c.index];
+            return correctedMagnitudeVariance(h.row, state.alpha, state.beta) + s2s + h.redshiftVariance;
+          }),
+        },
+      ],
+      diagonal: true,
     });
-    if (rows.length > 0) {
-      blocks.push({ rows, y, components: [{ source: 'hubble_flow', diagonal: v }], diagonal: true });
-      refs.push(r);
-    }
+    refs.push(
+      hub.map((c) => {
+        const h = input.hubbleFlow[c.index].row;
+        return { table: 'sn_hubble_flow', id: h.sn, system: null, line: h.line, index: c.index };
+      }),
+    );
   }
 
   return { problem: { nParams: params.size, paramNames: params.names, blocks }, refs };

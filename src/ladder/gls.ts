@@ -130,17 +130,21 @@ function whitenDense(block: RowBlock): WhitenedBlock {
   return { params, x, y, chol: l, n };
 }
 
-/**
- * Accumulate F and b over all blocks and solve F q = b by Cholesky.
- * Throws SingularFitError naming the first parameter the data leave undetermined.
- */
-export function solveGls(problem: GlsProblem): GlsSolution {
-  const p = problem.nParams;
+/** Normal equations of a set of blocks: F = X^T C^-1 X, b = X^T C^-1 y, c = y^T C^-1 y. */
+export interface NormalEquations {
+  f: Float64Array;
+  b: Float64Array;
+  c: number;
+  nRows: number;
+}
+
+/** Accumulate the normal equations of some blocks (cost N k^2, plus m^3/3 per dense block of m rows). */
+export function accumulateNormal(p: number, blocks: readonly RowBlock[]): NormalEquations {
   const f = new Float64Array(p * p);
   const b = new Float64Array(p);
+  let c = 0;
   let nRows = 0;
-  const dense: WhitenedBlock[] = [];
-  for (const block of problem.blocks) {
+  for (const block of blocks) {
     nRows += block.rows.length;
     if (block.diagonal) {
       const v = blockVariance(block) as number[];
@@ -148,6 +152,7 @@ export function solveGls(problem: GlsProblem): GlsSolution {
         const r = block.rows[i];
         const w = 1 / v[i];
         const yi = block.y[i];
+        c += yi * yi * w;
         for (let s = 0; s < r.idx.length; s++) {
           const js = r.idx[s];
           const cs = r.coef[s] * w;
@@ -157,9 +162,9 @@ export function solveGls(problem: GlsProblem): GlsSolution {
       }
     } else {
       const wb = whitenDense(block);
-      dense.push(wb);
       const k = wb.params.length;
       for (let i = 0; i < wb.n; i++) {
+        c += wb.y[i] * wb.y[i];
         for (let s = 0; s < k; s++) {
           const xs = wb.x[i * k + s];
           if (xs === 0) continue;
@@ -170,10 +175,40 @@ export function solveGls(problem: GlsProblem): GlsSolution {
       }
     }
   }
-  const factor = choleskyFlat(f, p, problem.paramNames);
-  const q = solveWithFactor(factor, p, b);
-  const chi2 = chiSquare(problem, q);
-  return { q, chi2, nRows, factor };
+  return { f, b, c, nRows };
+}
+
+/** Sum of two sets of normal equations (independent blocks). */
+export function addNormal(a: NormalEquations, b: NormalEquations): NormalEquations {
+  return {
+    f: a.f.map((x, i) => x + b.f[i]),
+    b: a.b.map((x, i) => x + b.b[i]),
+    c: a.c + b.c,
+    nRows: a.nRows + b.nRows,
+  };
+}
+
+/**
+ * Solve normal equations; chi2 at the minimum is c - b^T q. Throws SingularFitError naming
+ * the first parameter the data leave undetermined.
+ */
+export function solveNormal(ne: NormalEquations, paramNames: string[]): GlsSolution {
+  const p = paramNames.length;
+  const factor = choleskyFlat(ne.f, p, paramNames);
+  const q = solveWithFactor(factor, p, ne.b);
+  let bq = 0;
+  for (let i = 0; i < p; i++) bq += ne.b[i] * q[i];
+  return { q, chi2: Math.max(0, ne.c - bq), nRows: ne.nRows, factor };
+}
+
+/**
+ * Accumulate F and b over all blocks and solve F q = b by Cholesky. The chi-square is
+ * evaluated from the residuals (not as c - b^T q) for full precision.
+ */
+export function solveGls(problem: GlsProblem): GlsSolution {
+  const ne = accumulateNormal(problem.nParams, problem.blocks);
+  const sol = solveNormal(ne, problem.paramNames);
+  return { ...sol, chi2: chiSquare(problem, sol.q) };
 }
 
 /** In-place style Cholesky of a flat p x p SPD matrix; returns the lower factor. */
@@ -217,15 +252,28 @@ export function solveWithFactor(l: Float64Array, p: number, b: ArrayLike<number>
   return x;
 }
 
-/** F^-1 from its Cholesky factor, as a flat p x p array. Cost ~ p^3. */
+/**
+ * F^-1 from its Cholesky factor L, as a flat p x p array: invert L (triangular, p^3/6),
+ * then F^-1 = L^-T L^-1 (p^3/6).
+ */
 export function inverseFromFactor(l: Float64Array, p: number): Float64Array {
-  const inv = new Float64Array(p * p);
-  const e = new Float64Array(p);
+  const li = new Float64Array(p * p);
   for (let j = 0; j < p; j++) {
-    e.fill(0);
-    e[j] = 1;
-    const col = solveWithFactor(l, p, e);
-    for (let i = 0; i < p; i++) inv[i * p + j] = col[i];
+    li[j * p + j] = 1 / l[j * p + j];
+    for (let i = j + 1; i < p; i++) {
+      let s = 0;
+      for (let t = j; t < i; t++) s -= l[i * p + t] * li[t * p + j];
+      li[i * p + j] = s / l[i * p + i];
+    }
+  }
+  const inv = new Float64Array(p * p);
+  for (let i = 0; i < p; i++) {
+    for (let j = 0; j <= i; j++) {
+      let s = 0;
+      for (let t = i; t < p; t++) s += li[t * p + i] * li[t * p + j];
+      inv[i * p + j] = s;
+      inv[j * p + i] = s;
+    }
   }
   return inv;
 }
