@@ -12,7 +12,8 @@
  *   1 nearby galaxy (mu ~ 18.5) with main-sequence stars and 300 Cepheids;
  *   9 supernova hosts (mu 30.5-33) with 20-60 Cepheids and 1-2 calibrator SNe;
  *   a pool of 250 Hubble-flow SNe at 0.01 < z < 0.16 (releases observe the first N).
- * `scale` multiplies members, Cepheids per system, hosts and Hubble-flow SNe.
+ * `scale` multiplies members, Cepheids per system (supernova hosts: the number of hosts, so rows grow
+ * linearly with scale), hosts and Hubble-flow SNe.
  */
 import { C_KM_S } from '../constants/index.ts';
 import { distanceModulusFromMpc, distanceModulusFromPc, distancePcFromModulus } from '../ladder/distance.ts';
@@ -375,7 +376,7 @@ export function generateUniverse(seed: number, scale = 1, options: UniverseOptio
     };
     systems.push(sys);
     const rng = createRng(seed, 'universe', 'host', id);
-    const nCep = rng.int(n(20), n(60));
+    const nCep = rng.int(20, 60);
     for (let i = 1; i <= nCep; i++) {
       cepheids.push(
         cepheid(rng, p, `${id}-C${pad(i, nCep >= 1000 ? 4 : 3)}`, sys, mu, {

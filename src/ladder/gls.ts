@@ -202,6 +202,74 @@ export function solveNormal(ne: NormalEquations, paramNames: string[]): GlsSolut
 }
 
 /**
+ * Eliminate every parameter not in `keep` from normal equations (Schur complement):
+ *   F_red = F_KK - F_KO F_OO^-1 F_OK,  b_red = b_K - F_KO F_OO^-1 b_O,  c_red = c - b_O^T F_OO^-1 b_O,
+ * so that adding rows that touch only `keep` and solving the small system gives the same q_K and
+ * the same minimum chi-square as the full system. Cost (p-k)^3/3 + (p-k)^2 k.
+ * The result is indexed 0..k-1 in the order of `keep`.
+ */
+export function reduceNormal(ne: NormalEquations, p: number, keep: number[], names: string[]): NormalEquations {
+  const k = keep.length;
+  const isKept = new Uint8Array(p);
+  for (const j of keep) isKept[j] = 1;
+  const other: number[] = [];
+  for (let j = 0; j < p; j++) if (!isKept[j]) other.push(j);
+  const o = other.length;
+  const fOO = new Float64Array(o * o);
+  for (let a = 0; a < o; a++) for (let b = 0; b < o; b++) fOO[a * o + b] = ne.f[other[a] * p + other[b]];
+  const l = choleskyFlat(fOO, o, other.map((j) => names[j]));
+  // Z = F_OO^-1 [F_OK | b_O]
+  const cols: Float64Array[] = [];
+  for (let c = 0; c <= k; c++) {
+    const rhs = new Float64Array(o);
+    for (let a = 0; a < o; a++) rhs[a] = c < k ? ne.f[other[a] * p + keep[c]] : ne.b[other[a]];
+    cols.push(solveWithFactor(l, o, rhs));
+  }
+  const f = new Float64Array(k * k);
+  const b = new Float64Array(k);
+  for (let i = 0; i < k; i++) {
+    for (let j = 0; j < k; j++) {
+      let s = ne.f[keep[i] * p + keep[j]];
+      for (let a = 0; a < o; a++) s -= ne.f[keep[i] * p + other[a]] * cols[j][a];
+      f[i * k + j] = s;
+    }
+    let sb = ne.b[keep[i]];
+    for (let a = 0; a < o; a++) sb -= ne.f[keep[i] * p + other[a]] * cols[k][a];
+    b[i] = sb;
+  }
+  let c = ne.c;
+  for (let a = 0; a < o; a++) c -= ne.b[other[a]] * cols[k][a];
+  return { f, b, c, nRows: ne.nRows };
+}
+
+/** Accumulate diagonal blocks into normal equations over a subset of parameters (global -> local index). */
+export function accumulateNormalSubset(blocks: readonly RowBlock[], local: Map<number, number>): NormalEquations {
+  const k = local.size;
+  const f = new Float64Array(k * k);
+  const b = new Float64Array(k);
+  let c = 0;
+  let nRows = 0;
+  for (const block of blocks) {
+    if (!block.diagonal) throw new Error('subset accumulation is for diagonal blocks');
+    const v = blockVariance(block) as number[];
+    nRows += block.rows.length;
+    for (let i = 0; i < block.rows.length; i++) {
+      const r = block.rows[i];
+      const w = 1 / v[i];
+      const yi = block.y[i];
+      c += yi * yi * w;
+      for (let s = 0; s < r.idx.length; s++) {
+        const js = local.get(r.idx[s])!;
+        const cs = r.coef[s] * w;
+        b[js] += cs * yi;
+        for (let t = 0; t < r.idx.length; t++) f[js * k + local.get(r.idx[t])!] += cs * r.coef[t];
+      }
+    }
+  }
+  return { f, b, c, nRows };
+}
+
+/**
  * Accumulate F and b over all blocks and solve F q = b by Cholesky. The chi-square is
  * evaluated from the residuals (not as c - b^T q) for full precision.
  */
