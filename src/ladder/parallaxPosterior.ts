@@ -22,7 +22,7 @@ export const DEFAULT_EDSD_LENGTH_KPC = 1.35;
 export const EDSD_QUANTILES = [0.05, 0.5, 0.95] as const;
 
 /** Grid points used for the quantiles (uniform in ln r between the bounds below). */
-const QUANTILE_GRID_POINTS = 4001;
+const QUANTILE_GRID_POINTS = 2001;
 
 /**
  * The grid ends where ln P has fallen this far below its maximum: e^-40 ~ 4e-18,
