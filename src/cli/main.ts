@@ -4,6 +4,7 @@
  */
 import { InputError, AnalysisError, formatIssue } from '../types/issues.ts';
 import { processIO, UsageError, type CliIO } from './output.ts';
+import { ResultsFormatError } from '../io/results.ts';
 
 const USAGE = `rungbook: calibrate the distance ladder from data releases and build the report
 
@@ -58,6 +59,17 @@ export async function main(argv: string[], io: CliIO = processIO): Promise<numbe
       io.stderr(`rungbook ${name}: ${e.message}\n${e.hint ? `  hint: ${e.hint}\n` : ''}`);
       return 1;
     }
-    throw e;
+    if (e instanceof ResultsFormatError) {
+      io.stderr(`rungbook ${name}: ${e.message}\n`);
+      return 1;
+    }
+    // Anything else is a defect of ours, not of the input: say so plainly, never a bare stack dump.
+    const err = e as Error;
+    io.stderr(
+      `rungbook ${name}: internal error (${err?.name ?? 'Error'}: ${err?.message ?? String(e)}); nothing was written.\n` +
+        `  Please report it with the command and the release that caused it.\n`,
+    );
+    if (process.env.RUNGBOOK_DEBUG) io.stderr(`${err?.stack ?? ''}\n`);
+    return 1;
   }
 }

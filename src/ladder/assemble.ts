@@ -59,7 +59,7 @@ export function canonicalJson(value: unknown): string {
 }
 
 /** Approximate standard error of an intrinsic scatter from the Fisher information of s^2. */
-function scatterError(s: number, variances: number[]): number {
+export function scatterError(s: number, variances: number[]): number {
   if (variances.length === 0) return 0;
   const info = 0.5 * variances.reduce((a, v) => a + 1 / (v * v), 0);
   const errS2 = Math.sqrt(1 / info);

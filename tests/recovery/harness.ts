@@ -10,6 +10,7 @@ import { writeGeneratedRelease } from '../../src/demo/index.ts';
 import { loadRelease } from '../../src/io/release.ts';
 import { runLadder } from '../../src/ladder/calibrate.ts';
 import type { GeneratedReleaseOptions } from '../../src/demo/write.ts';
+import { scatterError } from '../../src/ladder/assemble.ts';
 
 export interface Pull {
   name: string;
@@ -50,6 +51,19 @@ export function recoverSeed(seed: number, options: Partial<GeneratedReleaseOptio
     }
     pulls.push({ name: 'alpha', value: fit.alpha.value, err: fit.alpha.err, truth: P.alpha });
     pulls.push({ name: 'beta', value: fit.beta.value, err: fit.beta.err, truth: P.beta });
+    const variances = (tables: string[]) => fit.residuals.filter((r) => tables.includes(r.ref.table) && !r.rejected).map((r) => r.variance);
+    pulls.push({
+      name: 'sigma_int_cepheid',
+      value: fit.scatter.cepheids,
+      err: scatterError(fit.scatter.cepheids, variances(['cepheids'])),
+      truth: P.sigmaIntCepMag,
+    });
+    pulls.push({
+      name: 'sigma_int_sn',
+      value: fit.scatter.supernovae,
+      err: scatterError(fit.scatter.supernovae, variances(['sn_calibrators', 'sn_hubble_flow'])),
+      truth: P.sigmaIntSnMag,
+    });
     if (run.log10H0) {
       const h0 = 10 ** run.log10H0.value;
       pulls.push({ name: 'H0', value: h0, err: h0 * Math.LN10 * Math.sqrt(run.log10H0.variance), truth: P.h0KmSMpc });
