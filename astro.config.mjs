@@ -1,0 +1,64 @@
+// Astro configuration of the static report.
+//
+// The pages under site/ lay out what src/report generated (JSON data, prose as
+// MDX, figure files). Where those generated files live, and where the site is
+// hosted, come from the environment so that `rungbook build` (src/cli/build.ts)
+// and a plain `npx astro build` agree:
+//
+//   RUNGBOOK_GEN_DIR   folder written by src/report (default .build/gen)
+//   RUNGBOOK_METHODS_DIR  authored method notes (default content/methods)
+//   RUNGBOOK_OUT_DIR   output folder (default dist)
+//   RUNGBOOK_BASE      path prefix on the server, e.g. /reports/h0/ (default /)
+//   RUNGBOOK_SITE      origin of the server, used for absolute preview-image URLs
+//                      (default http://localhost/)
+//
+// trailingSlash 'always' keeps `${BASE_URL}x` joins correct under a base path.
+import { defineConfig } from 'astro/config';
+import mdx from '@astrojs/mdx';
+import remarkMath from 'remark-math';
+import rehypeKatex from 'rehype-katex';
+import { fileURLToPath } from 'node:url';
+import { resolve } from 'node:path';
+
+// Astro has no opt-out in the config file itself; the environment variable is read by its telemetry module.
+process.env.ASTRO_TELEMETRY_DISABLED = '1';
+
+const root = fileURLToPath(new URL('.', import.meta.url));
+const genDir = resolve(root, process.env.RUNGBOOK_GEN_DIR ?? '.build/gen');
+const methodsDir = resolve(root, process.env.RUNGBOOK_METHODS_DIR ?? 'content/methods');
+// Absolute paths for site/content.config.ts and the components, which run in this process.
+process.env.RUNGBOOK_GEN_DIR = genDir;
+process.env.RUNGBOOK_METHODS_DIR = methodsDir;
+
+/** Normalise a base path to the form Astro expects with trailingSlash 'always': "/a/b/". */
+function normaliseBase(base) {
+  const trimmed = (base ?? '/').trim().replace(/^\/+|\/+$/g, '');
+  return trimmed === '' ? '/' : `/${trimmed}/`;
+}
+
+export default defineConfig({
+  root,
+  srcDir: './site',
+  publicDir: resolve(genDir, 'public'),
+  outDir: resolve(root, process.env.RUNGBOOK_OUT_DIR ?? 'dist'),
+  cacheDir: resolve(genDir, '..', 'astro-cache'),
+  base: normaliseBase(process.env.RUNGBOOK_BASE),
+  site: process.env.RUNGBOOK_SITE ?? 'http://localhost/',
+  trailingSlash: 'always',
+  build: { format: 'directory', inlineStylesheets: 'never' },
+  devToolbar: { enabled: false },
+  prefetch: false,
+  integrations: [mdx()],
+  markdown: {
+    remarkPlugins: [remarkMath],
+    // strict 'ignore': a method note may use \lt and friends; errors still fail the build below.
+    rehypePlugins: [[rehypeKatex, { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml' }]],
+    syntaxHighlight: false,
+    smartypants: false,
+  },
+  vite: {
+    // Pages are prerendered in this process; nothing is served from a CDN.
+    build: { assetsInlineLimit: 0 },
+    logLevel: 'warn',
+  },
+});

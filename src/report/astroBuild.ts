@@ -1,0 +1,168 @@
+/**
+ * Running Astro on the generated files, atomically: the site is built into a
+ * temporary folder and moved into place only when the build succeeded, so a
+ * failed build leaves the previous site untouched.
+ *
+ * Astro 5 builds into `<cwd>/.astro/` and then copies when the output folder is
+ * outside the working directory (core/build/common.js, getOutDirWithinCwd),
+ * which would drop its own cache files into the output. So Astro always builds
+ * into a folder inside the repository, with the working directory set to the
+ * repository, and the result is then moved to the requested output folder.
+ *
+ * Astro also writes per-build files into `<root>/.astro/` (the list of content
+ * modules to import), so two builds of the same repository at once would read
+ * each other's lists. A lock folder makes builds take turns, across processes.
+ */
+import { cp, mkdir, readFile, rename, rm, stat, writeFile } from 'node:fs/promises';
+import { basename, dirname, join } from 'node:path';
+
+export interface AstroBuildOptions {
+  root: string;
+  outDir: string;
+  genDir: string;
+  methodsDir: string;
+  /** Base path on the server ("/" or "/some/folder/"). */
+  base: string;
+  /** Origin of the server, for absolute preview-image URLs. */
+  site: string;
+  /** Checks on the finished site before it replaces the previous one; throws to reject it. */
+  verify?: (dir: string) => Promise<void>;
+}
+
+/** "/a/b/" form, as Astro expects with trailingSlash 'always'. */
+export function normaliseBase(base: string | undefined): string {
+  const trimmed = (base ?? '/').trim().replace(/^\/+|\/+$/g, '');
+  return trimmed === '' ? '/' : `/${trimmed}/`;
+}
+
+const ENV_KEYS = ['RUNGBOOK_GEN_DIR', 'RUNGBOOK_METHODS_DIR', 'RUNGBOOK_BASE', 'RUNGBOOK_SITE', 'ASTRO_TELEMETRY_DISABLED'] as const;
+
+/**
+ * Variables that a host process (a Vite-based test runner sets BASE_URL=/ and
+ * friends) may have put into process.env; Astro's server build lets
+ * process.env win over its own import.meta.env values, which would drop the
+ * base path from every link. They are removed while Astro runs.
+ */
+const HOST_ENV_KEYS = ['BASE_URL', 'MODE', 'DEV', 'PROD', 'SSR', 'SITE', 'ASSETS_PREFIX'] as const;
+
+async function exists(p: string): Promise<boolean> {
+  try {
+    await stat(p);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/** Move a folder; across file systems, copy then delete. */
+async function moveDir(from: string, to: string): Promise<void> {
+  try {
+    await rename(from, to);
+  } catch (e) {
+    if ((e as NodeJS.ErrnoException).code !== 'EXDEV') throw e;
+    await cp(from, to, { recursive: true });
+    await rm(from, { recursive: true, force: true });
+  }
+}
+
+const LOCK_POLL_MS = 250;
+const LOCK_WAIT_MS = 15 * 60_000;
+
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/** Take the build lock (a folder holding the owner's pid); a lock whose owner died is taken over. */
+async function acquireLock(lock: string): Promise<() => Promise<void>> {
+  const started = Date.now();
+  await mkdir(dirname(lock), { recursive: true });
+  for (;;) {
+    try {
+      await mkdir(lock);
+      await writeFile(join(lock, 'pid'), String(process.pid));
+      return () => rm(lock, { recursive: true, force: true });
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
+    }
+    const owner = Number(await readFile(join(lock, 'pid'), 'utf8').catch(() => 'NaN'));
+    const ageMs = Date.now() - ((await stat(lock).catch(() => null))?.mtimeMs ?? Date.now());
+    const orphan = Number.isInteger(owner) ? owner !== process.pid && !alive(owner) : ageMs > 30_000;
+    if (orphan) {
+      await rm(lock, { recursive: true, force: true });
+      continue;
+    }
+    if (Date.now() - started > LOCK_WAIT_MS) throw new Error(`another report build holds ${lock} (pid ${owner}); remove the folder if no build is running`);
+    await new Promise((ok) => setTimeout(ok, LOCK_POLL_MS));
+  }
+}
+
+export async function buildSite(o: AstroBuildOptions): Promise<void> {
+  const release = await acquireLock(join(o.root, '.build', 'astro.lock'));
+  try {
+    await buildSiteLocked(o);
+  } finally {
+    await release();
+  }
+}
+
+async function buildSiteLocked(o: AstroBuildOptions): Promise<void> {
+  const scratch = join(o.root, '.build', `astro-out-${process.pid}`);
+  const parent = dirname(o.outDir);
+  const staged = join(parent, `.${basename(o.outDir)}.building-${process.pid}`);
+  const old = join(parent, `.${basename(o.outDir)}.previous-${process.pid}`);
+  await rm(scratch, { recursive: true, force: true });
+  await rm(staged, { recursive: true, force: true });
+  await mkdir(parent, { recursive: true });
+
+  // astro.config.mjs and site/ read these (the build runs in this process).
+  const saved = Object.fromEntries([...ENV_KEYS, ...HOST_ENV_KEYS].map((k) => [k, process.env[k]]));
+  for (const k of HOST_ENV_KEYS) delete process.env[k];
+  const savedCwd = process.cwd();
+  process.env.RUNGBOOK_GEN_DIR = o.genDir;
+  process.env.RUNGBOOK_METHODS_DIR = o.methodsDir;
+  process.env.RUNGBOOK_BASE = normaliseBase(o.base);
+  process.env.RUNGBOOK_SITE = o.site;
+  process.env.ASTRO_TELEMETRY_DISABLED = '1';
+  try {
+    process.chdir(o.root);
+    const { build } = await import('astro');
+    await build({
+      root: o.root,
+      outDir: scratch,
+      base: normaliseBase(o.base),
+      site: o.site,
+      publicDir: join(o.genDir, 'public'),
+      cacheDir: join(o.genDir, '..', 'astro-cache'),
+      logLevel: 'warn',
+      mode: 'production',
+    });
+    await moveDir(scratch, staged);
+    if (o.verify) await o.verify(staged);
+  } catch (e) {
+    await rm(scratch, { recursive: true, force: true });
+    await rm(staged, { recursive: true, force: true });
+    throw e;
+  } finally {
+    process.chdir(savedCwd);
+    for (const k of [...ENV_KEYS, ...HOST_ENV_KEYS]) {
+      if (saved[k] === undefined) delete process.env[k];
+      else process.env[k] = saved[k];
+    }
+  }
+
+  // Swap: previous site aside, new one in, previous one removed.
+  const hadOld = await exists(o.outDir);
+  if (hadOld) await rename(o.outDir, old);
+  try {
+    await rename(staged, o.outDir);
+  } catch (e) {
+    if (hadOld) await rename(old, o.outDir);
+    throw e;
+  }
+  if (hadOld) await rm(old, { recursive: true, force: true });
+}

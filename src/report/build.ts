@@ -1,0 +1,311 @@
+/**
+ * Building the whole report: calibrate every release (or reuse its cached
+ * results.json), write the generated pages and figure files, run Astro, and
+ * measure what came out.
+ *
+ * Reuse, in two layers, so that a rebuild with nothing changed spends its time
+ * in Astro alone:
+ * - results.json is cached under a key made of the release folder's contents
+ *   and the calibration code's hash;
+ * - a release's generated files are kept when its results, its notes and the
+ *   report code are unchanged (a stamp file records what they were made from).
+ */
+import { mkdir, readFile, readdir, rm, stat, writeFile } from 'node:fs/promises';
+import { isAbsolute, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
+import { buildSite, normaliseBase } from './astroBuild.ts';
+import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, removeRelease } from './generate.ts';
+import { calibrationCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
+import { REQUIRED_NOTES } from './pageData.ts';
+import { createProgress } from './progress.ts';
+import type { ReleaseSummary } from './types.ts';
+
+export const REPO_ROOT = fileURLToPath(new URL('../../', import.meta.url));
+
+export interface BuildReportOptions {
+  releasesDir: string;
+  outDir: string;
+  /** Path prefix on the server (default "/"). */
+  base?: string;
+  /** Origin of the server, for absolute preview-image URLs (default http://localhost/). */
+  site?: string;
+  progress?: boolean;
+  calibrate: (releaseDir: string) => Promise<Results>;
+  /** Folder for generated files and Astro's cache (default <repo>/.build). */
+  workDir?: string;
+  /** Cache of results.json files (default <repo>/.cache/results); null disables it. */
+  cacheDir?: string | null;
+  /** Authored method notes (default <repo>/content/methods). */
+  methodsDir?: string;
+  /** Where progress lines go (default stderr). */
+  progressStream?: { write(s: string): unknown };
+}
+
+export interface BuildSummary {
+  outDir: string;
+  releases: { id: string; dir: string; cached: boolean; regenerated: boolean }[];
+  pages: number;
+  files: number;
+  bytes: number;
+  largestPage: { path: string; bytes: number } | null;
+  timingsMs: { calibrate: number; generate: number; site: number; total: number };
+}
+
+export class ReportBuildError extends Error {
+  constructor(
+    message: string,
+    readonly hint: string | null = null,
+    options?: { cause?: unknown },
+  ) {
+    super(hint ? `${message}\n  hint: ${hint}` : message, options);
+    this.name = 'ReportBuildError';
+  }
+}
+
+const RELEASE_ID = /^[A-Za-z0-9][A-Za-z0-9._-]*$/;
+
+/** Release folders: direct subfolders holding a release.yaml, sorted by name. */
+export async function findReleaseDirs(releasesDir: string): Promise<string[]> {
+  let entries;
+  try {
+    entries = await readdir(releasesDir, { withFileTypes: true });
+  } catch {
+    throw new ReportBuildError(`releases folder ${releasesDir} cannot be read`, 'pass --releases DIR with the folder that holds one subfolder per release');
+  }
+  const dirs: string[] = [];
+  for (const e of entries) {
+    if (!e.isDirectory()) continue;
+    const dir = join(releasesDir, e.name);
+    try {
+      await stat(join(dir, 'release.yaml'));
+      dirs.push(dir);
+    } catch {
+      // not a release folder
+    }
+  }
+  dirs.sort();
+  if (dirs.length === 0) throw new ReportBuildError(`no release found in ${releasesDir}`, 'each release is a subfolder with a release.yaml');
+  return dirs;
+}
+
+async function readIfExists(path: string): Promise<string | null> {
+  try {
+    return await readFile(path, 'utf8');
+  } catch {
+    return null;
+  }
+}
+
+async function checkMethodNotes(methodsDir: string): Promise<void> {
+  const missing: string[] = [];
+  for (const id of REQUIRED_NOTES) {
+    try {
+      await stat(join(methodsDir, `${id}.md`));
+    } catch {
+      missing.push(`${id}.md`);
+    }
+  }
+  if (missing.length > 0) {
+    throw new ReportBuildError(
+      `method note${missing.length > 1 ? 's' : ''} missing in ${methodsDir}: ${missing.join(', ')}`,
+      'every rung page shows its authored method note and cautions; add the note (frontmatter title, rung, sources, cautions) before building',
+    );
+  }
+}
+
+function checkResults(r: Results, dir: string): void {
+  if (r === null || typeof r !== 'object' || r.schema !== RESULTS_SCHEMA) {
+    throw new ReportBuildError(`results of ${dir} have schema ${JSON.stringify((r as { schema?: unknown })?.schema)}, expected ${RESULTS_SCHEMA}`);
+  }
+  if (!RELEASE_ID.test(r.release.id)) {
+    throw new ReportBuildError(`release id ${JSON.stringify(r.release.id)} (in ${dir}) cannot be used in a URL`, 'use letters, digits, ".", "_" and "-" only');
+  }
+}
+
+async function calibrateCached(
+  dir: string,
+  calibrate: BuildReportOptions['calibrate'],
+  cacheDir: string | null,
+  codeHash: string,
+): Promise<{ results: Results; cached: boolean }> {
+  if (cacheDir === null) return { results: await calibrate(dir), cached: false };
+  const key = sha256('rungbook.results-cache/1', codeHash, await hashTree(dir));
+  const file = join(cacheDir, `${key}.json`);
+  const hit = await readIfExists(file);
+  if (hit !== null) {
+    try {
+      const results = JSON.parse(hit) as Results;
+      if (results.schema === RESULTS_SCHEMA) return { results, cached: true };
+    } catch {
+      // unreadable cache entry: calibrate again
+    }
+  }
+  const results = await calibrate(dir);
+  await mkdir(cacheDir, { recursive: true });
+  await writeFile(file, `${JSON.stringify(results)}\n`);
+  return { results, cached: false };
+}
+
+/** Keep a release's generated files when what they were made from is unchanged. */
+async function generateReleaseCached(
+  layout: GenLayout,
+  results: Results,
+  notes: string | null,
+  previousBuilt: boolean,
+  reportHash: string,
+): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
+  const id = results.release.id;
+  const stampFile = join(layout.root, 'stamps', `${id}.json`);
+  const stamp = sha256(JSON.stringify(results), notes ?? '\0no notes', String(previousBuilt), reportHash);
+  const old = await readIfExists(stampFile);
+  if (old !== null) {
+    try {
+      const parsed = JSON.parse(old) as { stamp: string; summary: ReleaseSummary };
+      const dataFile = join(layout.dataDir, 'releases', `${id}.json`);
+      if (parsed.stamp === stamp && (await readIfExists(dataFile)) !== null) return { summary: parsed.summary, regenerated: false };
+    } catch {
+      // regenerate
+    }
+  }
+  await rm(stampFile, { force: true });
+  const summary = await generateRelease(layout, { results, notes, previousBuilt });
+  await mkdir(join(layout.root, 'stamps'), { recursive: true });
+  await writeFile(stampFile, generatedJson({ stamp, summary }));
+  return { summary, regenerated: true };
+}
+
+/** Remove generated files of releases that are no longer in the report. */
+async function pruneReleases(layout: GenLayout, keep: Set<string>): Promise<void> {
+  const stampsDir = join(layout.root, 'stamps');
+  let stamps: string[] = [];
+  try {
+    stamps = await readdir(stampsDir);
+  } catch {
+    return;
+  }
+  for (const f of stamps) {
+    const id = f.replace(/\.json$/, '');
+    if (!keep.has(id)) {
+      await removeRelease(layout, id);
+      await rm(join(stampsDir, f), { force: true });
+    }
+  }
+}
+
+/**
+ * Checks on a finished site before it is published. rehype-katex does not stop
+ * the build on a formula it cannot typeset (it shows the source in red), so a
+ * page holding such an error is rejected here, naming the page and the formula.
+ */
+export async function verifySite(dir: string): Promise<void> {
+  const problems: string[] = [];
+  for (const f of (await listFiles(dir)).filter((x) => x.endsWith('.html'))) {
+    const text = await readFile(join(dir, f), 'utf8');
+    const m = /class="katex-error"[^>]*title="([^"]*)"/.exec(text) ?? (text.includes('katex-error') ? ['', '(no message)'] : null);
+    if (m) problems.push(`${f}: ${m[1]!.replace(/&#x27;|&#39;/g, "'").replace(/&quot;/g, '"').slice(0, 200)}`);
+  }
+  if (problems.length > 0) {
+    throw new ReportBuildError(
+      `math that KaTeX cannot typeset on ${problems.length} page(s):\n  ${problems.slice(0, 10).join('\n  ')}`,
+      'fix the formula in the method note (content/methods) named by the page',
+    );
+  }
+}
+
+/** Pages, files, total bytes and the largest page of a built site. */
+export async function measureSite(outDir: string): Promise<Pick<BuildSummary, 'pages' | 'files' | 'bytes' | 'largestPage'>> {
+  const files = await listFiles(outDir);
+  let bytes = 0;
+  let pages = 0;
+  let largestPage: BuildSummary['largestPage'] = null;
+  for (const f of files) {
+    const size = (await stat(join(outDir, f))).size;
+    bytes += size;
+    if (f.endsWith('.html')) {
+      pages += 1;
+      if (largestPage === null || size > largestPage.bytes) largestPage = { path: f, bytes: size };
+    }
+  }
+  return { pages, files: files.length, bytes, largestPage };
+}
+
+export async function buildReport(opts: BuildReportOptions): Promise<BuildSummary> {
+  const t0 = performance.now();
+  const abs = (p: string) => (isAbsolute(p) ? p : resolve(p));
+  const releasesDir = abs(opts.releasesDir);
+  const outDir = abs(opts.outDir);
+  const workDir = abs(opts.workDir ?? join(REPO_ROOT, '.build'));
+  const cacheDir = opts.cacheDir === null ? null : abs(opts.cacheDir ?? join(REPO_ROOT, '.cache', 'results'));
+  const methodsDir = abs(opts.methodsDir ?? join(REPO_ROOT, 'content', 'methods'));
+  const progress = createProgress(opts.progress === true, opts.progressStream);
+  const layout = genLayout(join(workDir, 'gen'));
+
+  await checkMethodNotes(methodsDir);
+  const dirs = await findReleaseDirs(releasesDir);
+
+  // 1. Calibrate (or reuse).
+  const codeHash = await calibrationCodeHash(REPO_ROOT);
+  const calibrated: { dir: string; results: Results; cached: boolean }[] = [];
+  for (const [i, dir] of dirs.entries()) {
+    progress.step(`calibrating ${i + 1}/${dirs.length}: ${dir}`);
+    let out;
+    try {
+      out = await calibrateCached(dir, opts.calibrate, cacheDir, codeHash);
+    } catch (e) {
+      const message = e instanceof Error ? e.message : String(e);
+      throw new ReportBuildError(`calibration of ${dir} failed: ${message}`, null, { cause: e });
+    }
+    checkResults(out.results, dir);
+    calibrated.push({ dir, ...out });
+    progress.step(`  release ${out.results.release.id}${out.cached ? ' (cached results.json)' : ''}`);
+  }
+  const ids = calibrated.map((c) => c.results.release.id);
+  const dup = ids.find((id, i) => ids.indexOf(id) !== i);
+  if (dup !== undefined) throw new ReportBuildError(`release id ${dup} appears in more than one folder`, 'release ids must be unique; each id names its pages');
+  const t1 = performance.now();
+
+  // 2. Generated pages, figures and downloads.
+  const reportHash = await reportCodeHash(REPO_ROOT);
+  const idSet = new Set(ids);
+  await pruneReleases(layout, idSet);
+  const releases: BuildSummary['releases'] = [];
+  const summaries: ReleaseSummary[] = [];
+  for (const c of calibrated) {
+    const r = c.results;
+    progress.step(`figures and pages of release ${r.release.id}`);
+    const notes = await readIfExists(join(c.dir, 'notes.md'));
+    const previousBuilt = r.release.previous !== null && idSet.has(r.release.previous);
+    const g = await generateReleaseCached(layout, r, notes, previousBuilt, reportHash);
+    if (!g.regenerated) progress.step('  unchanged, kept');
+    summaries.push(g.summary);
+    releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });
+  }
+  await generateSite(
+    layout,
+    calibrated.map((c) => c.results),
+    summaries,
+  );
+  const t2 = performance.now();
+
+  // 3. The static site.
+  progress.step('building the site with Astro');
+  await buildSite({
+    root: REPO_ROOT,
+    outDir,
+    genDir: layout.root,
+    methodsDir,
+    base: normaliseBase(opts.base),
+    site: opts.site ?? 'http://localhost/',
+    verify: verifySite,
+  });
+  const t3 = performance.now();
+  const measured = await measureSite(outDir);
+  progress.step(`done: ${measured.pages} pages, ${(measured.bytes / 1e6).toFixed(1)} MB in ${outDir}`);
+  return {
+    outDir,
+    releases,
+    ...measured,
+    timingsMs: { calibrate: t1 - t0, generate: t2 - t1, site: t3 - t2, total: t3 - t0 },
+  };
+}
