@@ -143,10 +143,11 @@ function linkageCheck(release: Release, priorSystems: string[], fieldStarIds: st
   }
   const hosts = new Set(release.cepheids.map((c) => c.system));
   const orphans = [...new Set(release.snCalibrators.map((s) => s.system))].filter((s) => !hosts.has(s) && !anchored.has(s));
-  if (orphans.length > 0 && orphans.length === new Set(release.snCalibrators.map((s) => s.system)).size) {
+  if (orphans.length > 0) {
     throw new AnalysisError(
-      `No supernova host can reach a geometric anchor: ${orphans.join(', ')} ${orphans.length === 1 ? 'has' : 'have'} no Cepheids and no distance of ${orphans.length === 1 ? 'its' : 'their'} own.`,
-      'Supernova calibrators need Cepheids (or another distance) in their host.',
+      `The ladder cannot reach a geometric anchor from ${orphans.map((o) => `"${o}"`).join(', ')}: ` +
+        `${orphans.length === 1 ? 'this supernova host has' : 'these supernova hosts have'} no Cepheids and no distance of ${orphans.length === 1 ? 'its' : 'their'} own.`,
+      'Add Cepheids for the host to cepheids, or remove its supernovae from sn_calibrators.',
     );
   }
 }
