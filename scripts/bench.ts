@@ -68,3 +68,27 @@ for (const r of runs) {
       (r.maxDiff !== null ? `, max |q_structured - q_dense| = ${r.maxDiff.toExponential(1)}` : ''),
   );
 }
+
+// ---- report build (issue: versioned report) --------------------------------------------------
+interface BuildRun {
+  wallMs: number;
+  timingsMs: { calibrate: number; generate: number; site: number; total: number };
+  pages: number;
+  files: number;
+  bytes: number;
+  largestPage: { path: string; bytes: number } | null;
+}
+const buildOut = execFileSync(process.execPath, ['--import', 'tsx', here('./bench/build.ts')], { encoding: 'utf8', maxBuffer: 1 << 24 });
+const b = JSON.parse(buildOut.trim().split('\n').pop()!) as { cold: BuildRun; warm: BuildRun; twenty: BuildRun };
+console.log('\nreport build (rungbook build)');
+console.log('case | wall s | calibrate s | pages+figures s | astro s | pages | dist MB | largest page');
+for (const [name, r] of [
+  ['demo, cold cache', b.cold],
+  ['demo, nothing changed', b.warm],
+  ['20 generated releases', b.twenty],
+] as const) {
+  console.log(
+    [name, fmt(r.wallMs / 1000), fmt(r.timingsMs.calibrate / 1000), fmt(r.timingsMs.generate / 1000), fmt(r.timingsMs.site / 1000), r.pages, fmt(r.bytes / 1e6, 2), r.largestPage ? `${r.largestPage.path} (${fmt(r.largestPage.bytes / 1024, 0)} KB)` : '-'].join(' | '),
+  );
+}
+console.log(`  rebuild with nothing changed: ${fmt((100 * b.warm.timingsMs.site) / b.warm.wallMs, 0)} % of its time in Astro`);

@@ -92,21 +92,9 @@ export function parseBuildArgs(args: readonly string[]): BuildArgs {
 
 type CalibrateDir = (dir: string) => Promise<Results>;
 
-/**
- * The real calibration, loaded only when needed (so this module loads before
- * it exists): `calibrateReleaseDir` from src/ladder/calibrate.ts, or else from
- * the calibrate command (src/cli/calibrate.ts).
- */
+/** The real calibration, loaded only when a build needs it. */
 async function defaultCalibrate(): Promise<CalibrateDir> {
-  for (const path of ['../ladder/calibrate.ts', './calibrate.ts']) {
-    try {
-      const mod = (await import(path)) as { calibrateReleaseDir?: CalibrateDir };
-      if (typeof mod.calibrateReleaseDir === 'function') return mod.calibrateReleaseDir;
-    } catch (e) {
-      if ((e as NodeJS.ErrnoException).code !== 'ERR_MODULE_NOT_FOUND') throw e;
-    }
-  }
-  throw new Error('no calibration found: expected calibrateReleaseDir in src/ladder/calibrate.ts or src/cli/calibrate.ts');
+  return (await import('./calibrate.ts')).calibrateReleaseDir;
 }
 
 export async function runBuild(args: readonly string[], io: BuildIo): Promise<number> {
