@@ -238,10 +238,10 @@ interface GroupStats {
 }
 
 /** Newton update of an intrinsic scatter from sum r^2/v = sum (1 - h). */
-function updatedScatter(s: number, st: GroupStats, baseVarianceMin: number): number {
+function updatedScatter(s: number, st: GroupStats): number {
   if (st.n === 0 || st.sumOneMinusH <= 0) return s;
+  // d(sum r^2/v)/d(s^2) ~ -sum (1 - h)/v, since E[r^2] = (1 - h) v
   const s2 = s * s + (st.sumChi2 - st.sumOneMinusH) / st.sumOneMinusHOverV;
-  void baseVarianceMin;
   return Math.sqrt(Math.max(0, s2));
 }
 
@@ -332,8 +332,8 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
           st.n++;
         }
       });
-      const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep, 0);
-      const scatterSupernova = updatedScatter(state.scatterSupernova, stats.sn, 0);
+      const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep);
+      const scatterSupernova = updatedScatter(state.scatterSupernova, stats.sn);
       let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova };
       // 3. alpha, beta
       if (free[0] || free[1]) {
