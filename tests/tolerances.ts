@@ -70,3 +70,11 @@ export const REL_GRID_QUANTILE = 1e-4;
  * fitted slope is a second-order effect left out of the propagation (about 1 %).
  */
 export const REL_FIRST_ORDER_PROPAGATION = 0.02;
+
+/**
+ * Two runs of the iterative ladder fit on data that differ only by round-off (for example a
+ * blinded and an unblinded release), each stopped by the fit's own convergence limits
+ * (src/ladder/globalFit.ts: alpha to 1e-6, beta to 1e-5): relative agreement of parameters and
+ * their errors (sandwich errors of alpha and beta are the most sensitive, ~1e-7 relative).
+ */
+export const FIT_REPEAT_REL = 1e-6;

@@ -4,17 +4,21 @@
  */
 import { resolve } from 'node:path';
 import type { Results } from '../types/results.ts';
-import { loadRelease } from '../io/release.ts';
+import { loadReleaseWithBlinding, withBlindingRecord } from '../blinding/apply.ts';
 import { calibrateRelease } from '../ladder/calibrate.ts';
 import { serializeResults } from '../io/results.ts';
 import { writeFileAtomic } from '../io/atomicWrite.ts';
 import { codeVersion } from '../version.ts';
 import { parseArgs, UsageError, type CliIO } from './output.ts';
 
-/** Calibrate the release in a folder (the function the report build and the comparison call). */
+/**
+ * Calibrate the release in a folder (the function the report build and the comparison call).
+ * A release unblinded by `rungbook unblind` is calibrated on its true magnitudes (the offset
+ * recorded in blinding.json added back exactly); one still blinded stays blinded.
+ */
 export async function calibrateReleaseDir(dir: string): Promise<Results> {
-  const release = loadRelease(dir);
-  return calibrateRelease(release, { codeVersion: codeVersion() });
+  const { release, record } = loadReleaseWithBlinding(dir);
+  return withBlindingRecord(calibrateRelease(release, { codeVersion: codeVersion() }), record);
 }
 
 function fmt(x: number, digits: number): string {
@@ -25,6 +29,14 @@ export function summaryText(r: Results): string {
   const lines: string[] = [];
   lines.push(`Release ${r.release.id}: ${r.release.title} (${r.release.date})`);
   lines.push('Internal result for collaboration review.');
+  if (r.blinded) {
+    lines.push('BLINDED: H0, the intercept a_B and the H0 of every variant carry a hidden offset (M_B is marked with them).');
+    lines.push('         Do not quote or compare them; diagnostics, and shifts between releases blinded alike, are meaningful.');
+  }
+  if (r.unblinding) {
+    const o = r.unblinding.offset_mag;
+    lines.push(`Unblinded on ${r.unblinding.date} by ${r.unblinding.by} (offset ${o >= 0 ? '+' : ''}${fmt(o, 4)} mag added back): the values below are the true ones.`);
+  }
   if (r.h0) {
     const tag = r.blinded ? '  [BLINDED: carries a hidden offset]' : '';
     lines.push(
@@ -37,7 +49,7 @@ export function summaryText(r: Results): string {
   lines.push('');
   lines.push('Parameters');
   for (const [name, p] of Object.entries(r.parameters)) {
-    const note = p.fixed ? ' (fixed)' : p.blinded ? ' (blinded)' : '';
+    const note = p.fixed ? ' (fixed)' : p.blinded ? ' (BLINDED)' : '';
     lines.push(`  ${name.padEnd(20)} ${fmt(p.value, 4).padStart(10)} ± ${fmt(p.err, 4).padEnd(8)} ${p.unit}${note}`);
   }
   lines.push('');
@@ -54,7 +66,7 @@ export function summaryText(r: Results): string {
   if (r.rejected.length > 10) lines.push(`  ... and ${r.rejected.length - 10} more (see results.json)`);
   if (r.variants.length) {
     lines.push('');
-    lines.push('Systematic variants (sys = RMS of the shifts about the baseline)');
+    lines.push(`Systematic variants (sys = RMS of the shifts about the baseline)${r.blinded ? ' [BLINDED: all carry the same hidden offset]' : ''}`);
     for (const v of r.variants) {
       lines.push(
         v.h0 === null

@@ -4,6 +4,7 @@
  */
 import { InputError, AnalysisError, formatIssue } from '../types/issues.ts';
 import { processIO, UsageError, type CliIO } from './output.ts';
+import { BlindingError } from '../blinding/errors.ts';
 import { ResultsFormatError } from '../io/results.ts';
 
 const USAGE = `rungbook: calibrate the distance ladder from data releases and build the report
@@ -13,6 +14,13 @@ usage:
   rungbook calibrate <release-dir> [--json FILE]       run the ladder, print a summary, write results.json
   rungbook diff      <release-a> <release-b> [--format text|markdown|json]
   rungbook build     [--releases DIR] [--out DIR]      calibrate every release and build the static report
+  rungbook blind     <release-dir> [--out DIR] [--id BLINDING_ID] [--key-file FILE] [--date YYYY-MM-DD]
+                     hide H0: offset the Hubble-flow magnitudes by a secret amount fixed by the key
+                     and the blinding id (default id: main); in place only before the first commit
+  rungbook unblind   <release-dir> --by NAME [--key-file FILE] [--date YYYY-MM-DD]
+                     check the key against the release's commitment and record the unblinding
+  The blinding key comes from --key-file or the environment variable RUNGBOOK_BLINDING_KEY,
+  never from the repository.
 `;
 
 type Command = (args: string[], io: CliIO) => Promise<number>;
@@ -28,6 +36,8 @@ const COMMANDS: Record<string, () => Promise<Command>> = {
   calibrate: async () => (await import('./calibrate.ts')).runCalibrate,
   build: async () => (await import('./build.ts')).runBuild,
   diff: async () => (await import('./diff.ts')).runDiff,
+  blind: async () => (await import('./blind.ts')).runBlind,
+  unblind: async () => (await import('./blind.ts')).runUnblind,
 };
 
 export async function main(argv: string[], io: CliIO = processIO): Promise<number> {
@@ -53,6 +63,10 @@ export async function main(argv: string[], io: CliIO = processIO): Promise<numbe
       for (const issue of e.issues) io.stderr(`${formatIssue(issue)}\n`);
       if (e.omitted > 0) io.stderr(`... and ${e.omitted} more problems\n`);
       io.stderr(`rungbook ${name}: ${e.issues.length + e.omitted} input problem(s); nothing was written\n`);
+      return 1;
+    }
+    if (e instanceof BlindingError) {
+      io.stderr(`rungbook ${name}: ${e.message}\n${e.hint ? `  hint: ${e.hint}\n` : ''}`);
       return 1;
     }
     if (e instanceof AnalysisError) {

@@ -20,6 +20,8 @@ export { observeRelease, statedZeroPoint, type ObservedRelease } from './observe
 export type { ReleaseSpec, ParallaxCatalogue, CepheidCatalogue, HubbleFlowCatalogue, SimpleCatalogue } from './spec.ts';
 export {
   DEMO_ANALYSIS,
+  DEMO_BLINDING,
+  DEMO_HUBBLE_FLOW_POOL,
   DEMO_SEED,
   MH_OFFSET_MAG,
   PARALLAX_A,

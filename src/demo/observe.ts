@@ -27,6 +27,8 @@ export interface ObservedRelease {
   /** File name -> text (release.yaml, the table files, notes.md). */
   files: Record<string, string>;
   truth: ReleaseTruth;
+  /** The spec's blindForPublication, or null (see ReleaseSpec). */
+  blindForPublication: { blindingId: string; date: string } | null;
 }
 
 const TABLE_FILES: Record<TableName, string> = {
@@ -157,16 +159,21 @@ export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: numb
     );
   }
   const hf = cat.snHubbleFlow;
-  const hfCount = hf.count ?? universe.snHubbleFlow.length;
-  if (!Number.isInteger(hfCount) || hfCount < 1 || hfCount > universe.snHubbleFlow.length) {
-    throw new RangeError(`Hubble-flow count must be an integer in 1..${universe.snHubbleFlow.length}, found ${hfCount}`);
+  const hfFirst = hf.first ?? 0;
+  const hfAvailable = universe.snHubbleFlow.length - hfFirst;
+  if (!Number.isInteger(hfFirst) || hfFirst < 0 || hfAvailable < 1) {
+    throw new RangeError(`Hubble-flow first index must be an integer in 0..${universe.snHubbleFlow.length - 1}, found ${hfFirst} (is the universe's hubbleFlowPool large enough?)`);
+  }
+  const hfCount = hf.count ?? hfAvailable;
+  if (!Number.isInteger(hfCount) || hfCount < 1 || hfCount > hfAvailable) {
+    throw new RangeError(`Hubble-flow count must be an integer in 1..${hfAvailable}, found ${hfCount}`);
   }
   {
     const rng = createRng(seed, 'observe', 'sn-hubble-flow', hf.version);
     put(
       'sn_hubble_flow',
       hf.label,
-      universe.snHubbleFlow.slice(0, hfCount).map((sn) => {
+      universe.snHubbleFlow.slice(hfFirst, hfFirst + hfCount).map((sn) => {
         // Order of draws fixed per supernova, so a longer sample extends a shorter one row for row.
         const z = roundTo(sn.zPeculiar! + rng.gauss(0, sn.zErr!), 6);
         return { sn: sn.sn, z, z_err: sn.zErr, ...lightCurve(rng, sn) };
@@ -214,7 +221,7 @@ export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: numb
     mhOffsetsMag: { ...cat.cepheids.mhOffsetsMag },
     rows,
   };
-  return { files, truth };
+  return { files, truth, blindForPublication: spec.blindForPublication ?? null };
 }
 
 /** The zero point the team states for a parallax catalogue: Z0 = Z_cat + N(0, stated error), rounded to 1 uas. */

@@ -1,5 +1,5 @@
 /**
- * The three committed demo releases (2026.1, 2026.2, 2026.3) and a "clean"
+ * The four committed demo releases (2026.1 to 2026.4) and a "clean"
  * release for recovery tests, all observing one universe.
  *
  *   2026.1  first internal release: astrometric catalogue A (older, larger errors);
@@ -8,6 +8,10 @@
  *           every other table byte-identical to 2026.1.
  *   2026.3  100 more Hubble-flow SNe (the first 150 unchanged); the m_h error of the
  *           two hosts corrected; one more systematic variant.
+ *   2026.4  published BLINDED: a second-season Hubble-flow sample of 150 SNe that no earlier
+ *           release contains (pool entries 251-400), every other table as in 2026.3.
+ *           The first-season SNe are left out on purpose: the same SN in an unblinded and a
+ *           blinded release would give the offset away as the difference of its magnitudes.
  */
 import { COLLABORATION, FIELD_NAME, GALAXY_NAME } from './names.ts';
 import { statedZeroPoint } from './observe.ts';
@@ -83,11 +87,20 @@ export function offsetHosts(universe: Universe): string[] {
 
 export const MH_OFFSET_MAG = 0.03;
 
+/**
+ * Hubble-flow pool of the demo universe at scale 1: 250 first-season SNe (2026.1-2026.3)
+ * and 150 second-season SNe (2026.4). The pool is drawn last from its own stream, so
+ * enlarging it leaves every other part of the universe, and the first 250 SNe, unchanged.
+ */
+export const DEMO_HUBBLE_FLOW_POOL = 400;
+/** Blinding of 2026.4: public blinding id and date (the demo key is in scripts/generate-demo.ts). */
+export const DEMO_BLINDING = Object.freeze({ blindingId: 'lantern-season-2', date: '2026-11-16' });
+
 function hubbleFlowCount(universe: Universe, atScale1: number): number {
   return Math.min(universe.snHubbleFlow.length, Math.max(1, Math.round(atScale1 * universe.scale)));
 }
 
-/** The three demo releases, in date order. */
+/** The four demo releases, in date order. */
 export function demoReleaseSpecs(universe: Universe): ReleaseSpec[] {
   const hosts = offsetHosts(universe);
   const cepheidsV1: CepheidCatalogue = {
@@ -186,7 +199,36 @@ export function demoReleaseSpecs(universe: Universe): ReleaseSpec[] {
         'Synthetic demonstration data: every object, name and number is invented.',
       ].join('\n'),
   };
-  return [r1, r2, r3];
+  // Second season: pool entries after the first season's, redrawn with their own light-curve fits.
+  const nFlow4 = Math.max(0, Math.min(universe.snHubbleFlow.length - nFlow2, Math.round(150 * universe.scale)));
+  const flow4: HubbleFlowCatalogue = { version: 'HF2', label: 'Hubble-flow light-curve fits, second season', first: nFlow2, count: nFlow4 };
+  const r4: ReleaseSpec = {
+    ...r3,
+    id: '2026.4',
+    title: 'Second-season Hubble-flow sample, analysed blind',
+    date: DEMO_BLINDING.date,
+    previous: '2026.3',
+    blinded: false,
+    blindForPublication: { ...DEMO_BLINDING },
+    catalogues: { ...r3.catalogues, snHubbleFlow: flow4 },
+    notes: (ctx: NotesContext) =>
+      [
+        '# Release 2026.4 (blinded)',
+        '',
+        `- Hubble flow: the second observing season, ${ctx.rows.sn_hubble_flow} supernovae that no earlier release contains.`,
+        `  The ${nFlow2} first-season supernovae of 2026.1 to 2026.3 are left out of this release: the same supernova in an`,
+        '  unblinded and a blinded release would reveal the blinding offset as the difference of its two magnitudes.',
+        '  The two seasons will be combined after unblinding.',
+        '- This release is **blinded**: its Hubble-flow magnitudes carry one hidden offset, so H0, the intercept a_B and',
+        '  the H0 of every variant are hidden until the collaboration unblinds. Every other result is the true one.',
+        '',
+        'Parallaxes, main-sequence photometry, Cepheids and calibrator supernovae are unchanged from 2026.3.',
+        '',
+        'Synthetic demonstration data: every object, name and number is invented. The demonstration key that',
+        'blinded this release is public (see the README), so anyone can try unblinding a copy of it.',
+      ].join('\n'),
+  };
+  return [r1, r2, r3, r4];
 }
 
 /**

@@ -31,7 +31,9 @@ export interface CepheidCatalogue {
 export interface HubbleFlowCatalogue {
   version: string;
   label: string;
-  /** Number of Hubble-flow SNe observed: the first `count` of the universe's pool (default: all). */
+  /** Index in the universe's pool of the first Hubble-flow SN observed (default 0). */
+  first?: number;
+  /** Number of Hubble-flow SNe observed: `count` of the pool from `first` on (default: all from `first`). */
   count?: number;
 }
 
@@ -74,4 +76,10 @@ export interface ReleaseSpec {
   notes: string | ((ctx: NotesContext) => string) | null;
   /** Tables this release does not provide (files not written). */
   omitTables?: TableName[];
+  /**
+   * Published only blinded: the generator observes the release unblinded (`blinded` false)
+   * and the demo script blinds it with the public demo key before writing it
+   * (scripts/generate-demo.ts). Absent: published as observed.
+   */
+  blindForPublication?: { blindingId: string; date: string };
 }

@@ -5,15 +5,19 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join, resolve, sep } from 'node:path';
 import { observeRelease, type ObservedRelease } from './observe.ts';
-import { cleanReleaseSpec, demoReleaseSpecs } from './releases.ts';
+import { cleanReleaseSpec, DEMO_HUBBLE_FLOW_POOL, demoReleaseSpecs } from './releases.ts';
 import type { DemoAnalysis, DemoVariant, ReleaseSpec } from './spec.ts';
 import type { ReleaseTruth } from './truth.ts';
 import { generateUniverse, type UniverseOptions } from './universe.ts';
 import type { TableName } from '../types/release.ts';
 
-/** Generate the three demo releases (2026.1, 2026.2, 2026.3) from one universe. */
+/**
+ * Generate the four demo releases (2026.1 to 2026.4) from one universe, as observed:
+ * a release with `blindForPublication` (2026.4) comes back unblinded, and only its
+ * blinded form may be published (scripts/generate-demo.ts blinds it before writing).
+ */
 export function generateDemoReleases(seed: number, scale = 1): ObservedRelease[] {
-  const universe = generateUniverse(seed, scale);
+  const universe = generateUniverse(seed, scale, { hubbleFlowPool: DEMO_HUBBLE_FLOW_POOL });
   return demoReleaseSpecs(universe).map((spec) => observeRelease(universe, spec, seed));
 }
 
@@ -30,7 +34,7 @@ export interface GeneratedReleaseOptions extends UniverseOptions {
   /** Multiplies the numbers of rows (default 1). */
   scale?: number;
   /** Which release to observe: 'clean' (default: no planted errors, whole Hubble-flow pool) or a demo id. */
-  release?: 'clean' | '2026.1' | '2026.2' | '2026.3';
+  release?: 'clean' | '2026.1' | '2026.2' | '2026.3' | '2026.4';
   /** Analysis keys to override in release.yaml. */
   analysis?: DemoAnalysis;
   variants?: DemoVariant[];
@@ -54,7 +58,9 @@ export function writeGeneratedRelease(
   options: GeneratedReleaseOptions,
 ): ReleaseTruth & { dir: string } {
   const { seed, scale = 1, release = 'clean', writeTruth = true } = options;
-  const universe = generateUniverse(seed, scale, { hubbleFlowPool: options.hubbleFlowPool, parameters: options.parameters });
+  // Demo releases observe the demo pool (2026.4 needs its second season); clean ones the default.
+  const pool = options.hubbleFlowPool ?? (release === 'clean' ? undefined : DEMO_HUBBLE_FLOW_POOL);
+  const universe = generateUniverse(seed, scale, { hubbleFlowPool: pool, parameters: options.parameters });
   let spec: ReleaseSpec;
   if (release === 'clean') spec = cleanReleaseSpec(universe, id);
   else {

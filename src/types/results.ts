@@ -200,6 +200,12 @@ export interface Results {
   blinded: boolean;
   /** Present when the release was unblinded: who, when, offset (from blinding.json). */
   unblinding: { by: string; date: string; offset_mag: number } | null;
+  /**
+   * Identity of the release's blinding (from blinding.json; null or absent when it has none):
+   * public values only. Two releases with equal values carry the same hidden offset, so
+   * their H0 ratio is the true one (src/blinding/compare.ts).
+   */
+  blinding?: { blinding_id: string; key_check: string; commitment: string } | null;
   /** The highest rung reached ('hubble_flow' when H0 was measured). */
   reached: 'parallax' | 'main_sequence' | 'cepheids' | 'sn_calibrators' | 'hubble_flow';
   h0: { value: number; stat: number; sys: number; total: number } | null;
