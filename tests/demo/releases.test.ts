@@ -231,16 +231,21 @@ describe('scenario shape at scale 1 and scaling [edge]', () => {
     expect(frac).toBeLessThan(0.5);
   });
 
-  it('scale 4 multiplies members, Cepheids per system, hosts and the Hubble-flow pool', () => {
+  it('scale 4 multiplies members, Cepheids per system, hosts and the Hubble-flow pool (rows grow linearly)', () => {
     const u4 = generateUniverse(DEMO_SEED, 4);
     expect(u4.systems.filter((s) => s.group === 'sn_host').length).toBe(36);
     expect(u4.snHubbleFlow.length).toBe(1000);
     expect(u4.cepheids.filter((c) => c.group === 'field').length).toBe(160);
     expect(u4.cepheids.filter((c) => c.group === 'galaxy').length).toBe(1200);
+    // supernova hosts grow in number, not in Cepheids each, so host Cepheid rows grow as the scale
     for (const h of u4.systems.filter((s) => s.group === 'sn_host')) {
       const n = count(u4.cepheids, h.id);
-      expect(n >= 80 && n <= 240).toBe(true);
+      expect(n >= 20 && n <= 60).toBe(true);
     }
+    const hostCepheids = (u: typeof u4) => u.cepheids.filter((c) => c.group === 'sn_host').length;
+    const ratio = hostCepheids(u4) / hostCepheids(generateUniverse(DEMO_SEED, 1));
+    expect(ratio).toBeGreaterThan(3);
+    expect(ratio).toBeLessThan(5);
   });
 });
 

@@ -10,7 +10,7 @@ export async function recoverSeeds(seeds: number[], workers = Math.min(2, availa
     chunks.map(
       (chunk) =>
         new Promise<Pull[]>((resolve, reject) => {
-          const w = new Worker(new URL('./worker.ts', import.meta.url), { workerData: { seeds: chunk }, execArgv: ['--import', 'tsx'] });
+          const w = new Worker(new URL('./worker-entry.mjs', import.meta.url), { workerData: { seeds: chunk } });
           w.once('message', resolve);
           w.once('error', reject);
           w.once('exit', (code) => code !== 0 && reject(new Error(`recovery worker exited with ${code}`)));
