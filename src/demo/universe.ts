@@ -444,7 +444,9 @@ function mainSequenceStar(rng: Rng, p: DemoParameters, star: string, sys: Univer
   const scatter = rng.gauss(0, p.msScatterMag);
   const magTrue =
     locusAbsMag(p, color0) - p.msFehSlope * sys.feh! + sys.mu! + p.rV * sys.ebv! + scatter - (binary ? p.binaryOffsetMag : 0);
-  const magErr = roundTo(Math.min(0.25, Math.hypot(0.008, 0.02 * 10 ** (0.2 * (magTrue - 20)))), 3);
+  // Deep imaging of the nearby galaxy: its photometry reaches 3 mag fainter at the same error.
+  const depth = sys.group === 'galaxy' ? 23 : 20;
+  const magErr = roundTo(Math.min(0.25, Math.hypot(0.008, 0.02 * 10 ** (0.2 * (magTrue - depth)))), 3);
   const colorErr = roundTo(Math.min(0.3, 1.3 * magErr), 3);
   return { star, system: sys.id, color0, binary, colorTrue: color0 + sys.ebv!, magTrue, colorErr, magErr };
 }

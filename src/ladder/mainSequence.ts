@@ -45,6 +45,15 @@ function fail(what: string, value: unknown, expected: string): never {
   throw new AnalysisError(`analysis choice ${what} = ${JSON.stringify(value)}; expected ${expected}`);
 }
 
+/**
+ * Systematic floor of a main-sequence-fitting distance, added in quadrature to each target's mu:
+ * what the model leaves out (binaries of unequal mass, evolution off the unevolved sequence,
+ * the metallicity scale, photometric zero points, colour-dependent selection). Main-sequence
+ * distances are good to about 2-3 % with a well-known metallicity (An et al. 2007, ApJ 655, 233),
+ * i.e. 0.04-0.065 mag; 0.05 mag is taken here.
+ */
+export const MS_METHOD_FLOOR_MAG = 0.05;
+
 export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices, parallax: ParallaxRungResult): MainSequenceRungResult {
   const { r_v: rV, ms_feh_slope: s, ms_poly_degree: degree } = analysis;
   const range: [number, number] = [analysis.ms_color_range[0], analysis.ms_color_range[1]];
@@ -163,7 +172,7 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
   const B = fits.map((f) => f.fit.dThetaDCoeffs[0]);
   const G = fits.length === 0 ? [] : matMul(B, fit.dCoeffsDMu);
   const targetCov = fits.length === 0 ? [] : symmetrize(sandwich(B, locusMsOnly));
-  fits.forEach((f, t) => (targetCov[t][t] += f.fit.covFit[0][0] + (s * f.fehErr) ** 2));
+  fits.forEach((f, t) => (targetCov[t][t] += f.fit.covFit[0][0] + (s * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2));
 
   for (const f of fits) {
     const meanP = meanSlope(f.fit, rowsBySystem.get(f.sys.system)!, fit.coeffs, pivot);
@@ -171,7 +180,7 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
   }
   const targetResults: MainSequenceTargetResult[] = fits.map((f) => {
     // Total covariance of (mu, E): own fit + locus (statistics, anchors incl. zero point, anchor E and feh) + target feh.
-    const total = addMatrices(f.fit.covFit, sandwich(f.fit.dThetaDCoeffs, locusTotal), [[(s * f.fehErr) ** 2, 0], [0, 0]]);
+    const total = addMatrices(f.fit.covFit, sandwich(f.fit.dThetaDCoeffs, locusTotal), [[(s * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2, 0], [0, 0]]);
     const muErr = Math.sqrt(total[0][0]);
     const ebvErr = Math.sqrt(total[1][1]);
     return {

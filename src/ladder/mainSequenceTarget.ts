@@ -8,10 +8,12 @@
  * constrains mainly mu + (R_V - P') E, and E only through the curvature of P,
  * hence the prior on E when the release gives one.
  *
- * Binary fraction: fitted per target (it differs between clusters with age,
- * density and dynamical history; a shared value would bias a target whose
- * fraction differs). Components 0.753 mag apart are well separated, so a per-target
- * fraction costs little precision. Intrinsic scatter: the locus value.
+ * Binary fraction: the locus value (fitted on the anchors). A per-target fraction is
+ * degenerate with mu once photometric errors blur the single and binary components
+ * (the mean offset is mu - f 0.753 mag): injection-recovery on a faint target with a
+ * free fraction gave mu biased by -3 sigma. Real fractions differ between clusters; that
+ * difference is part of the method's systematic floor (mainSequence.ts). Intrinsic
+ * scatter: the locus value.
  */
 import { EQUAL_MASS_BINARY_OFFSET_MAG } from '../constants/index.ts';
 import { cholesky, choleskySolve, zeros, type Matrix } from '../math/matrix.ts';
@@ -116,7 +118,9 @@ export function fitTarget(stars: readonly TargetStarInput[], locus: LocusForTarg
       iterations++;
       const v = variances(ebv);
       const q = sel.map((s, i) => binaryProbability(resid(s, mu, ebv), v[i], fraction, delta));
-      const newFraction = q.reduce((a, b) => a + b, 0) / q.length;
+      // The binary fraction is shared with the locus: for a target it is degenerate with mu
+      // (the mean offset is mu - f 0.753) once photometric errors blur the two components.
+      const newFraction = locus.binaryFraction;
       // Gauss-Newton normal equations for (mu[, E]) on rho_i = r_i + q_i delta.
       const p = freeE ? 2 : 1;
       const a = zeros(p, p);

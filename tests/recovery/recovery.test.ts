@@ -8,13 +8,13 @@ import { describe, expect, it } from 'vitest';
 import { recoverSeeds } from './pool.ts';
 import { summarisePulls, type PullSummary } from './harness.ts';
 
-/** Seeds: enough that the standard error of a mean pull is ~0.1, so 0.25 is a 2.5-sigma bound. */
-const SEEDS = Array.from({ length: 100 }, (_, i) => 5000 + i);
+/** Seeds: enough that the standard error of a mean pull is ~0.07, so 0.25 is a 3.5-sigma bound. */
+const SEEDS = Array.from({ length: 200 }, (_, i) => 5000 + i);
 const MAX_ABS_MEAN_PULL = 0.25;
-/** Coverage band for 100 seeds: 68.3 % +- about 2.5 binomial standard errors (4.7 %). */
+/** Coverage band for 200 seeds: 68.3 % +- about 3.5 binomial standard errors (3.3 %). */
 const COVERAGE_BAND: readonly [number, number] = [0.56, 0.8];
 
-describe('recovery over 100 seeds', () => {
+describe('recovery over 200 seeds', () => {
   let summary: PullSummary[] = [];
 
   it('calibrates every seed', async () => {
