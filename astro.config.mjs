@@ -36,6 +36,26 @@ function normaliseBase(base) {
   return trimmed === '' ? '/' : `/${trimmed}/`;
 }
 
+/**
+ * Headings of generated prose (release notes come from the data release) get ids of our own,
+ * "<file>-heading-<n>": an id made from their text could repeat an id of the page itself
+ * ("main", "top", "checks") and break its links. Astro's own heading ids keep an existing id.
+ */
+const proseDir = resolve(genDir, 'prose');
+function proseHeadingIds() {
+  return (tree, file) => {
+    const path = file.path ?? file.history?.[0] ?? '';
+    if (!resolve(path).startsWith(`${proseDir}/`)) return;
+    const stem = path.replace(/^.*\//, '').replace(/\.[^.]*$/, '').replace(/[^A-Za-z0-9-]/g, '-');
+    let n = 0;
+    const visit = (node) => {
+      if (node.type === 'element' && /^h[1-6]$/.test(node.tagName)) node.properties = { ...node.properties, id: `${stem}-heading-${(n += 1)}` };
+      for (const child of node.children ?? []) visit(child);
+    };
+    visit(tree);
+  };
+}
+
 export default defineConfig({
   root,
   srcDir: './site',
@@ -52,7 +72,7 @@ export default defineConfig({
   markdown: {
     remarkPlugins: [remarkMath],
     // strict 'ignore': a method note may use \lt and friends; errors still fail the build below.
-    rehypePlugins: [[rehypeKatex, { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml' }]],
+    rehypePlugins: [[rehypeKatex, { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml' }], proseHeadingIds],
     syntaxHighlight: false,
     smartypants: false,
   },

@@ -5,7 +5,7 @@
 import { getCollection, getEntry } from 'astro:content';
 import type { ReleaseData, SiteData } from '../../src/report/types.ts';
 
-export type { FigureRef, ReleaseData, RungData, SiteData, TableView, KeyValue } from '../../src/report/types.ts';
+export type { FigureRef, ReleaseData, RungData, SiteData, TableView, KeyValue, PublishedView } from '../../src/report/types.ts';
 
 export async function allReleases(): Promise<ReleaseData[]> {
   const entries = await getCollection('releases');

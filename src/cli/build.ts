@@ -142,6 +142,8 @@ export async function runBuild(args: readonly string[], io: BuildIo): Promise<nu
     }
     const message = e instanceof Error ? e.message : String(e);
     io.stderr(`rungbook build: ${message}\n`);
+    // Builds are atomic (src/report/workState.ts, src/report/astroBuild.ts): say so, since a reader's first worry is the old report.
+    io.stderr(`rungbook build: nothing was changed: the previous report in ${resolve(parsed.out)} and the build caches were left as they were\n`);
     return 1;
   }
 }

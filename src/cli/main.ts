@@ -14,6 +14,8 @@ usage:
   rungbook calibrate <release-dir> [--json FILE]       run the ladder, print a summary, write results.json
   rungbook diff      <release-a> <release-b> [--format text|markdown|json]
   rungbook build     [--releases DIR] [--out DIR]      calibrate every release and build the static report
+  rungbook publish   <release-dir> [--by NAME] [--date YYYY-MM-DD]
+                     freeze the release: record its results, code version and file checksums in published.json
   rungbook blind     <release-dir> [--out DIR] [--id BLINDING_ID] [--key-file FILE] [--date YYYY-MM-DD]
                      hide H0: offset the Hubble-flow magnitudes by a secret amount fixed by the key
                      and the blinding id (default id: main); in place only before the first commit
@@ -30,7 +32,9 @@ const COMMANDS: Record<string, () => Promise<Command>> = {
     const m = await import('./check.ts');
     return (args, io) => {
       if (args.length === 0) throw new UsageError('usage: rungbook check <release-dir>...');
-      return m.runCheck(args, io);
+      // runCheck writes one line per call, without its end: add it here.
+      const line = (w: (s: string) => void) => (s: string) => w(s.endsWith('\n') ? s : `${s}\n`);
+      return m.runCheck(args, { stdout: line(io.stdout), stderr: line(io.stderr) });
     };
   },
   calibrate: async () => (await import('./calibrate.ts')).runCalibrate,
@@ -38,6 +42,7 @@ const COMMANDS: Record<string, () => Promise<Command>> = {
   diff: async () => (await import('./diff.ts')).runDiff,
   blind: async () => (await import('./blind.ts')).runBlind,
   unblind: async () => (await import('./blind.ts')).runUnblind,
+  publish: async () => (await import('./publish.ts')).runPublish,
 };
 
 export async function main(argv: string[], io: CliIO = processIO): Promise<number> {

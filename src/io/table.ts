@@ -8,6 +8,7 @@ import type { InputFile, TableName } from '../types/release.ts';
 import { readCsv } from './csv.ts';
 import { readEcsv } from './ecsv.ts';
 import type { Problem } from './issues.ts';
+import { lightCurveCovarianceProblems } from './lightCurveCovariance.ts';
 import type { ParsedTable } from './raw-table.ts';
 import { TABLE_SPECS, type TableRows } from './schema.ts';
 import { sha256Hex } from './text.ts';
@@ -59,10 +60,12 @@ export function parseTable<T extends TableName>(table: T, fileName: string, form
   const v = validateTable<TableRows[T]>(parsed.table, spec as never);
   input.extraColumns = v.extraColumns;
   input.columnUnits = v.columnUnits;
+  // A rule across the columns of one row: the light-curve covariance must be a covariance matrix.
+  const rowRules = table === 'sn_calibrators' || table === 'sn_hubble_flow' ? lightCurveCovarianceProblems(v.rows as TableRows['sn_calibrators'][]) : [];
   return {
     rows: v.rows,
     input,
-    problems: [...parsed.problems, ...v.problems],
+    problems: [...parsed.problems, ...v.problems, ...rowRules],
     structured: true,
     keys: v.keys,
     systemRefs: v.systemRefs,

@@ -88,6 +88,18 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
       );
     }
   }
+  // Without calibrator supernovae M_B is unknown, so the Hubble flow cannot be reached: its rows
+  // stay out of the fit (they would only determine a_B, which then leads nowhere) and a check says so.
+  const flowInFit = release.snCalibrators.length > 0 ? hubbleFlow.used : [];
+  if (release.snCalibrators.length === 0 && release.snHubbleFlow.length > 0) {
+    checks.push({
+      id: 'hubble-flow-without-calibrators',
+      title: 'Hubble-flow supernovae without calibrators',
+      passed: false,
+      severity: 'warning',
+      detail: `${release.snHubbleFlow.length} Hubble-flow supernovae are not used: without calibrator supernovae M_B is unknown, so the ladder stops before the Hubble flow`,
+    });
+  }
   const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
   let reached: Results['reached'] = release.mainSequence.length > 0 ? 'main_sequence' : 'parallax';
   if (release.cepheids.length === 0) {
@@ -102,7 +114,7 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
     cepheids: release.cepheids,
     fieldSystems,
     calibrators: release.snCalibrators,
-    hubbleFlow: hubbleFlow.used,
+    hubbleFlow: flowInFit,
   });
   reached = 'cepheids';
   let h0: LadderRun['log10H0'] = null;
@@ -135,9 +147,11 @@ function linkageCheck(release: Release, priorSystems: string[], fieldStarIds: st
   const fieldStars = new Set(fieldStarIds);
   const tied = release.cepheids.some((c) => anchored.has(c.system) || fieldStars.has(c.star));
   if (!tied) {
+    const systems = [...new Set(release.cepheids.map((c) => c.system))];
+    const named = systems.slice(0, 10).map((s) => `"${s}"`).join(', ') + (systems.length > 10 ? ` and ${systems.length - 10} more` : '');
     throw new AnalysisError(
-      'No Cepheid system can reach a geometric anchor: none has a parallax or main-sequence distance, ' +
-        'and no field Cepheid has its own parallax.',
+      `The ladder cannot reach a geometric anchor from any Cepheid system (${named}): ` +
+        'none has a parallax or main-sequence distance, and no field Cepheid has its own parallax.',
       'Add parallaxes or main-sequence photometry for at least one Cepheid system.',
     );
   }

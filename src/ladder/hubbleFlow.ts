@@ -7,7 +7,8 @@
 import { FIVE_OVER_LN10, C_KM_S } from '../constants/index.ts';
 import type { SnHubbleFlowRow } from '../types/release.ts';
 import type { AnalysisChoices } from '../types/analysis.ts';
-import { hubbleFlowLogFactor } from './kinematics.ts';
+import { AnalysisError } from '../types/issues.ts';
+import { hubbleFlowLogFactor, kinematicSeriesFactor } from './kinematics.ts';
 
 export interface HubbleFlowSupernova {
   row: SnHubbleFlowRow;
@@ -33,6 +34,21 @@ export function selectHubbleFlow(rows: SnHubbleFlowRow[], analysis: AnalysisChoi
     if (row.z < analysis.z_min || row.z > analysis.z_max) {
       excluded.push(row);
       continue;
+    }
+    // A sample member must have z > 0 and a positive series bracket; otherwise the distance is
+    // undefined, and the user can fix it (the redshift, z_min, or q0/j0), so say which row and keys.
+    if (!(row.z > 0)) {
+      throw new AnalysisError(
+        `Hubble-flow supernova "${row.sn}" (sn_hubble_flow line ${row.line}) has z = ${row.z} inside the range z_min = ${analysis.z_min} to z_max = ${analysis.z_max}; a distance needs z > 0.`,
+        'Raise z_min above 0 or correct the redshift.',
+      );
+    }
+    if (!(kinematicSeriesFactor(row.z, analysis.q0, analysis.j0) > 0)) {
+      throw new AnalysisError(
+        `With q0 = ${analysis.q0} and j0 = ${analysis.j0}, the kinematic distance series is not positive at z = ${row.z} ` +
+          `(Hubble-flow supernova "${row.sn}", sn_hubble_flow line ${row.line}), so no distance can be computed.`,
+        'Check q0 and j0 in release.yaml (typical values: q0 near -0.55, j0 near 1), or lower z_max.',
+      );
     }
     const velocityTerm = analysis.sigma_pec / (C_KM_S * row.z);
     const redshiftTerm = row.zErr / row.z;

@@ -13,13 +13,19 @@
 import { mkdir, readFile, readdir, rm, stat, writeFile } from 'node:fs/promises';
 import { isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { compareResults } from '../publish/drift.ts';
+import { readPublishedRecord, verifyPublishedFolder } from '../publish/record.ts';
+import { InputError } from '../types/issues.ts';
 import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
 import { buildSite, normaliseBase } from './astroBuild.ts';
-import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, removeRelease } from './generate.ts';
+import { RELEASE_FIGURES } from './figures/index.ts';
+import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, type ReleaseFigure, removeRelease } from './generate.ts';
 import { calibrationCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
 import { REQUIRED_NOTES } from './pageData.ts';
 import { createProgress } from './progress.ts';
-import type { ReleaseSummary } from './types.ts';
+import { publishedView } from './published.ts';
+import type { PublishedView, ReleaseSummary } from './types.ts';
+import { beginWork, type WorkState } from './workState.ts';
 
 export const REPO_ROOT = fileURLToPath(new URL('../../', import.meta.url));
 
@@ -40,6 +46,8 @@ export interface BuildReportOptions {
   methodsDir?: string;
   /** Where progress lines go (default stderr). */
   progressStream?: { write(s: string): unknown };
+  /** The figures of each release (default RELEASE_FIGURES; tests pass a list with a failing figure). */
+  figures?: readonly ReleaseFigure[];
 }
 
 export interface BuildSummary {
@@ -128,6 +136,7 @@ async function calibrateCached(
   calibrate: BuildReportOptions['calibrate'],
   cacheDir: string | null,
   codeHash: string,
+  work: WorkState,
 ): Promise<{ results: Results; cached: boolean }> {
   if (cacheDir === null) return { results: await calibrate(dir), cached: false };
   const key = sha256('rungbook.results-cache/1', codeHash, await hashTree(dir));
@@ -142,8 +151,8 @@ async function calibrateCached(
     }
   }
   const results = await calibrate(dir);
-  await mkdir(cacheDir, { recursive: true });
-  await writeFile(file, `${JSON.stringify(results)}\n`);
+  // Written only if the whole build succeeds (a failed build leaves the cache as it was).
+  work.later(file, `${JSON.stringify(results)}\n`);
   return { results, cached: false };
 }
 
@@ -153,11 +162,13 @@ async function generateReleaseCached(
   results: Results,
   notes: string | null,
   previousBuilt: boolean,
+  published: PublishedView | null,
   reportHash: string,
+  figures: readonly ReleaseFigure[],
 ): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
   const id = results.release.id;
   const stampFile = join(layout.root, 'stamps', `${id}.json`);
-  const stamp = sha256(JSON.stringify(results), notes ?? '\0no notes', String(previousBuilt), reportHash);
+  const stamp = sha256(JSON.stringify(results), notes ?? '\0no notes', String(previousBuilt), reportHash, JSON.stringify(published), figures.map((f) => f.id).join(','));
   const old = await readIfExists(stampFile);
   if (old !== null) {
     try {
@@ -169,7 +180,7 @@ async function generateReleaseCached(
     }
   }
   await rm(stampFile, { force: true });
-  const summary = await generateRelease(layout, { results, notes, previousBuilt });
+  const summary = await generateRelease(layout, { results, notes, previousBuilt, published }, figures);
   await mkdir(join(layout.root, 'stamps'), { recursive: true });
   await writeFile(stampFile, generatedJson({ stamp, summary }));
   return { summary, regenerated: true };
@@ -230,6 +241,36 @@ export async function measureSite(outDir: string): Promise<Pick<BuildSummary, 'p
   return { pages, files: files.length, bytes, largestPage };
 }
 
+/**
+ * Astro 5 writes its content store (data-store.json in its cache folder) 500 ms after the
+ * last change, on a timer that can fire after the build returned
+ * (astro/dist/content/mutable-data-store.js, SAVE_DEBOUNCE_MS). Three times that is waited
+ * for after a failed site build, before the cache folder is restored.
+ */
+const ASTRO_STORE_SETTLE_MS = 1500;
+
+const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
+
+/**
+ * A published release (src/publish): refuse it when its files changed since
+ * publication; otherwise the pages show the published results, with a notice
+ * listing what a recomputation with the current code moves.
+ */
+function publishedResults(dir: string, recomputed: Results): { results: Results; published: PublishedView | null } {
+  const read = readPublishedRecord(dir);
+  if (read === null) return { results: recomputed, published: null };
+  if ('issue' in read) throw new ReportBuildError(`release ${dir}: ${read.issue.message}`, read.issue.hint ?? null, { cause: new InputError([read.issue]) });
+  const record = read.record;
+  checkResults(record.results, dir);
+  if (record.results.release.id !== recomputed.release.id) {
+    throw new ReportBuildError(
+      `release ${dir}: published.json records release ${JSON.stringify(record.results.release.id)}, but the folder holds release ${JSON.stringify(recomputed.release.id)}`,
+      'published.json belongs to the folder it was written in; restore it from version control',
+    );
+  }
+  return { results: record.results, published: publishedView(record, compareResults(record.results, recomputed)) };
+}
+
 export async function buildReport(opts: BuildReportOptions): Promise<BuildSummary> {
   const t0 = performance.now();
   const abs = (p: string) => (isAbsolute(p) ? p : resolve(p));
@@ -238,74 +279,118 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
   const workDir = abs(opts.workDir ?? join(REPO_ROOT, '.build'));
   const cacheDir = opts.cacheDir === null ? null : abs(opts.cacheDir ?? join(REPO_ROOT, '.cache', 'results'));
   const methodsDir = abs(opts.methodsDir ?? join(REPO_ROOT, 'content', 'methods'));
+  const figures = opts.figures ?? RELEASE_FIGURES;
   const progress = createProgress(opts.progress === true, opts.progressStream);
   const layout = genLayout(join(workDir, 'gen'));
 
   await checkMethodNotes(methodsDir);
   const dirs = await findReleaseDirs(releasesDir);
 
-  // 1. Calibrate (or reuse).
-  const codeHash = await calibrationCodeHash(REPO_ROOT);
-  const calibrated: { dir: string; results: Results; cached: boolean }[] = [];
-  for (const [i, dir] of dirs.entries()) {
-    progress.step(`calibrating ${i + 1}/${dirs.length}: ${dir}`);
-    let out;
-    try {
-      out = await calibrateCached(dir, opts.calibrate, cacheDir, codeHash);
-    } catch (e) {
-      const message = e instanceof Error ? e.message : String(e);
-      throw new ReportBuildError(`calibration of ${dir} failed: ${message}`, null, { cause: e });
+  // Every cache moves forward only with a successful build (src/report/workState.ts).
+  const work = await beginWork([layout.root, join(workDir, 'astro-cache')]);
+  let astroStarted = false;
+  try {
+    const summary = await buildWithin(work);
+    await work.commit();
+    return summary;
+  } catch (e) {
+    // Astro saves its content store on a timer after it returns; let that write land before
+    // the cache folder is put back, or it would overwrite the restored store.
+    if (astroStarted) await new Promise((ok) => setTimeout(ok, ASTRO_STORE_SETTLE_MS));
+    await work.rollback();
+    throw e;
+  }
+
+  async function buildWithin(work: WorkState): Promise<BuildSummary> {
+    // 1. Calibrate (or reuse).
+    const codeHash = await calibrationCodeHash(REPO_ROOT);
+    const calibrated: { dir: string; results: Results; cached: boolean; published: PublishedView | null }[] = [];
+    for (const [i, dir] of dirs.entries()) {
+      progress.step(`calibrating ${i + 1}/${dirs.length}: ${dir}`);
+      const frozen = verifyPublishedFolder(dir);
+      if (frozen.length > 0) {
+        throw new ReportBuildError(
+          `release ${dir} is published and ${frozen.length === 1 ? 'a file has' : `${frozen.length} files have`} changed since: ${frozen.map((f) => f.file).join(', ')}`,
+          'a published release is frozen: restore its files as published, or put new data in a new release folder',
+          { cause: new InputError(frozen) },
+        );
+      }
+      let out;
+      try {
+        out = await calibrateCached(dir, opts.calibrate, cacheDir, codeHash, work);
+      } catch (e) {
+        throw new ReportBuildError(`calibration of ${dir} failed: ${messageOf(e)}`, null, { cause: e });
+      }
+      checkResults(out.results, dir);
+      calibrated.push({ dir, cached: out.cached, ...publishedResults(dir, out.results) });
+      progress.step(`  release ${out.results.release.id}${out.cached ? ' (cached results.json)' : ''}`);
     }
-    checkResults(out.results, dir);
-    calibrated.push({ dir, ...out });
-    progress.step(`  release ${out.results.release.id}${out.cached ? ' (cached results.json)' : ''}`);
-  }
-  const ids = calibrated.map((c) => c.results.release.id);
-  const dup = ids.find((id, i) => ids.indexOf(id) !== i);
-  if (dup !== undefined) throw new ReportBuildError(`release id ${dup} appears in more than one folder`, 'release ids must be unique; each id names its pages');
-  const t1 = performance.now();
+    const ids = calibrated.map((c) => c.results.release.id);
+    const dup = ids.find((id, i) => ids.indexOf(id) !== i);
+    if (dup !== undefined) throw new ReportBuildError(`release id ${dup} appears in more than one folder`, 'release ids must be unique; each id names its pages');
+    const t1 = performance.now();
 
-  // 2. Generated pages, figures and downloads.
-  const reportHash = await reportCodeHash(REPO_ROOT);
-  const idSet = new Set(ids);
-  await pruneReleases(layout, idSet);
-  const releases: BuildSummary['releases'] = [];
-  const summaries: ReleaseSummary[] = [];
-  for (const c of calibrated) {
-    const r = c.results;
-    progress.step(`figures and pages of release ${r.release.id}`);
-    const notes = await readIfExists(join(c.dir, 'notes.md'));
-    const previousBuilt = r.release.previous !== null && idSet.has(r.release.previous);
-    const g = await generateReleaseCached(layout, r, notes, previousBuilt, reportHash);
-    if (!g.regenerated) progress.step('  unchanged, kept');
-    summaries.push(g.summary);
-    releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });
-  }
-  await generateSite(
-    layout,
-    calibrated.map((c) => c.results),
-    summaries,
-  );
-  const t2 = performance.now();
+    // 2. Generated pages, figures and downloads.
+    const reportHash = await reportCodeHash(REPO_ROOT);
+    const idSet = new Set(ids);
+    const releases: BuildSummary['releases'] = [];
+    const summaries: ReleaseSummary[] = [];
+    let current = 'the list of releases';
+    try {
+      await pruneReleases(layout, idSet);
+      for (const c of calibrated) {
+        const r = c.results;
+        current = `release ${r.release.id}`;
+        progress.step(`figures and pages of release ${r.release.id}`);
+        const notes = await readIfExists(join(c.dir, 'notes.md'));
+        const previousBuilt = r.release.previous !== null && idSet.has(r.release.previous);
+        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures);
+        if (!g.regenerated) progress.step('  unchanged, kept');
+        summaries.push(g.summary);
+        releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });
+      }
+      current = 'the home page';
+      await generateSite(
+        layout,
+        calibrated.map((c) => c.results),
+        summaries,
+      );
+    } catch (e) {
+      throw new ReportBuildError(`figures and pages of ${current} failed: ${messageOf(e)}`, null, { cause: e });
+    }
+    const t2 = performance.now();
 
-  // 3. The static site.
-  progress.step('building the site with Astro');
-  await buildSite({
-    root: REPO_ROOT,
-    outDir,
-    genDir: layout.root,
-    methodsDir,
-    base: normaliseBase(opts.base),
-    site: opts.site ?? 'http://localhost/',
-    verify: verifySite,
-  });
-  const t3 = performance.now();
-  const measured = await measureSite(outDir);
-  progress.step(`done: ${measured.pages} pages, ${(measured.bytes / 1e6).toFixed(1)} MB in ${outDir}`);
-  return {
-    outDir,
-    releases,
-    ...measured,
-    timingsMs: { calibrate: t1 - t0, generate: t2 - t1, site: t3 - t2, total: t3 - t0 },
-  };
+    // 3. The static site.
+    progress.step('building the site with Astro');
+    astroStarted = true;
+    try {
+      await buildSite({
+        root: REPO_ROOT,
+        outDir,
+        genDir: layout.root,
+        methodsDir,
+        base: normaliseBase(opts.base),
+        site: opts.site ?? 'http://localhost/',
+        verify: async (dir) => {
+          try {
+            await verifySite(dir);
+          } catch (e) {
+            throw e instanceof ReportBuildError ? new ReportBuildError(`site check failed: ${e.message}`, null, { cause: e }) : e;
+          }
+        },
+      });
+    } catch (e) {
+      if (e instanceof ReportBuildError) throw e;
+      throw new ReportBuildError(`site build (Astro) failed: ${messageOf(e)}`, null, { cause: e });
+    }
+    const t3 = performance.now();
+    const measured = await measureSite(outDir);
+    progress.step(`done: ${measured.pages} pages, ${(measured.bytes / 1e6).toFixed(1)} MB in ${outDir}`);
+    return {
+      outDir,
+      releases,
+      ...measured,
+      timingsMs: { calibrate: t1 - t0, generate: t2 - t1, site: t3 - t2, total: t3 - t0 },
+    };
+  }
 }

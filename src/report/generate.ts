@@ -20,7 +20,10 @@ import { headline, releaseData, releasePath } from './pageData.ts';
 import { svgToPng } from './png.ts';
 import { notesTree, summaryTree, toMdx } from './prose.ts';
 import { resultTables } from './resultTables.ts';
-import { type DownloadLink, type FigureRef, GENERATED_MARK, type ReleaseSummary, type SiteData } from './types.ts';
+import { type DownloadLink, type FigureRef, GENERATED_MARK, type PublishedView, type ReleaseSummary, type SiteData } from './types.ts';
+
+/** One figure of a release: its stable id and the function that draws it (null: its rung has no data). */
+export type ReleaseFigure = (typeof RELEASE_FIGURES)[number];
 
 /** Above this size a figure is loaded with <img> instead of being inlined (keeps pages light). */
 export const INLINE_MAX_BYTES = 150_000;
@@ -76,17 +79,19 @@ export interface ReleaseGenInput {
   /** Authored notes.md of the release, or null. */
   notes: string | null;
   previousBuilt: boolean;
+  /** The publication record's notice, when the release is published (its results are then the published ones). */
+  published?: PublishedView | null;
 }
 
 /** Generate every file of one release; returns its entry for the home page. */
-export async function generateRelease(layout: GenLayout, input: ReleaseGenInput): Promise<ReleaseSummary> {
+export async function generateRelease(layout: GenLayout, input: ReleaseGenInput, figureList: readonly ReleaseFigure[] = RELEASE_FIGURES): Promise<ReleaseSummary> {
   const r = input.results;
   const id = r.release.id;
   await removeRelease(layout, id);
 
   // Figures.
   const figures: Record<string, FigureRef> = {};
-  for (const f of RELEASE_FIGURES) {
+  for (const f of figureList) {
     const spec = f.render(r);
     if (spec === null) continue;
     if (spec.id !== f.id) throw new Error(`figure ${f.id} returned id ${spec.id}`);
@@ -123,7 +128,7 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput)
     await put(join(layout.proseDir, id, 'notes.mdx'), toMdx(notes));
   }
 
-  const data = releaseData({ results: r, figures, downloads, tableDownload, summaryProse, notesProse, previousBuilt: input.previousBuilt });
+  const data = releaseData({ results: r, figures, downloads, tableDownload, summaryProse, notesProse, previousBuilt: input.previousBuilt, published: input.published ?? null });
   const { generated: _mark, ...rest } = data;
   await put(join(layout.dataDir, 'releases', `${id}.json`), generatedJson(rest));
   return { id, title: r.release.title, date: r.release.date, blinded: r.blinded, reached: r.reached, headline: headline(r), path: releasePath(id) };

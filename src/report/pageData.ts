@@ -8,7 +8,7 @@ import type { Results, SystemResult } from '../types/results.ts';
 import { parameterBlinded } from './blinding.ts';
 import { analysisValueText, distanceText, fixed, int, percent, pm, sig, valueErr } from './format.ts';
 import { type ColumnSpec, tableView } from './tables.ts';
-import type { CheckView, DownloadLink, FigureRef, Headline, InputUsed, KeyValue, PageLink, ReleaseData, RowMark, RungData, TableView } from './types.ts';
+import type { CheckView, DownloadLink, FigureRef, Headline, InputUsed, KeyValue, PageLink, PublishedView, ReleaseData, RowMark, RungData, TableView } from './types.ts';
 import { GENERATED_MARK } from './types.ts';
 
 /** The rung pages: URL segment, method note (file under content/methods), input tables, figures. */
@@ -45,6 +45,8 @@ export interface PageInputs {
   summaryProse: string;
   notesProse: string | null;
   previousBuilt: boolean;
+  /** Publication notice of a published release (its results are the published ones). */
+  published?: PublishedView | null;
 }
 
 export function releasePath(id: string, rest = ''): string {
@@ -583,6 +585,7 @@ export function releaseData(p: PageInputs): ReleaseData {
     variants: variantsData(r, p),
     provenance: provenance(r, p),
     pages: releasePages(id),
+    published: p.published ?? null,
   };
 }
 

@@ -156,6 +156,34 @@ export interface ReleaseData {
   };
   /** The release's pages, in navigation order. */
   pages: PageLink[];
+  /** Set when the release is published: the pages show the published results, and this notice. */
+  published: PublishedView | null;
+}
+
+/** One published value that a recomputation with the current code moves. */
+export interface PublishedChange {
+  /** What moved, e.g. "H0", "error of M_W", "rungs.cepheids[star=\"C-1\"].residual". */
+  what: string;
+  published: string;
+  recomputed: string;
+  /** "+0.012 (+0.016 %)", or "changed" for a flag or a text. */
+  change: string;
+}
+
+/** The publication record of a release and how the current code compares with it. */
+export interface PublishedView {
+  date: string;
+  by: string | null;
+  /** Code that made the published results, and the code of this build. */
+  codeVersion: string;
+  currentCodeVersion: string;
+  /** Values compared, and how many of them moved. */
+  compared: number;
+  moved: number;
+  /** The moved values, most prominent first (at most PUBLISHED_CHANGES_SHOWN; the rest counted in `moved`). */
+  changes: PublishedChange[];
+  /** The rule for "moved", in words. */
+  tolerance: string;
 }
 
 export interface ReleaseSummary {
