@@ -1,0 +1,283 @@
+/**
+ * The comparison as text (for a terminal) and as Markdown (a short message ready to paste
+ * into an email or a chat, with absolute links to the report). Both read only the DiffReport;
+ * JSON output is the report itself. Long lists are capped here (all rows are in the JSON).
+ */
+import { tableTouched } from './inputs.ts';
+import type { ColumnSummary, DiffReport, ParameterShift, SystemShift, TableChange } from './types.ts';
+
+/** Changed cells listed in text output (all of them are in the JSON). */
+export const TEXT_CELLS_MAX = 25;
+/** Systems listed in text output (those with a change first). */
+export const TEXT_SYSTEMS_MAX = 30;
+/** Contributions and input changes listed in the Markdown message. */
+export const MARKDOWN_CONTRIBUTIONS_MAX = 3;
+export const MARKDOWN_INPUTS_MAX = 4;
+export const MARKDOWN_OBJECTS_MAX = 5;
+
+const GROUP_LABEL: Record<string, string> = {
+  parallax: 'parallaxes',
+  main_sequence: 'main-sequence photometry',
+  cepheids: 'Cepheids',
+  sn_calibrators: 'supernova calibrators',
+  sn_hubble_flow: 'Hubble-flow supernovae',
+  systems: 'systems table',
+  analysis: 'analysis choices',
+};
+
+/** x with a sign and `digits` decimals ("+0.12", "-0.03", "0.00" for an exact zero). */
+export function signed(x: number, digits: number): string {
+  if (x === 0) return (0).toFixed(digits);
+  const s = x.toFixed(digits);
+  return x > 0 ? `+${s}` : s.startsWith('-') ? s : `-${s}`;
+}
+
+/** Three significant digits with a sign, without exponent for the usual magnitudes. */
+export function signedSig(x: number): string {
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  const digits = a >= 100 ? 0 : Math.max(0, 2 - Math.floor(Math.log10(a)));
+  return signed(x, Math.min(digits, 8));
+}
+
+function plain(x: number | string | null): string {
+  if (x === null) return '(empty)';
+  if (typeof x === 'string') return x;
+  return String(x);
+}
+
+function unitSuffix(unit: string | null): string {
+  return unit ? ` ${unit}` : '';
+}
+
+function sigmaText(x: number | null): string {
+  return x === null ? '—' : `${signed(x, 1)} sigma`;
+}
+
+export function columnLine(t: TableChange, c: ColumnSummary): string {
+  let s = `${c.column}: ${c.changed} ${t.noun} changed`;
+  if (c.median !== null && c.largest !== null) {
+    s += `, median ${signedSig(c.median)}${unitSuffix(c.unit)}, largest ${signedSig(c.largest)}${unitSuffix(c.unit)} (${c.largest_id})`;
+  }
+  if (c.appeared) s += `, ${c.appeared} gained a value`;
+  if (c.disappeared) s += `, ${c.disappeared} lost their value`;
+  return s;
+}
+
+export function tableLine(t: TableChange): string {
+  const file = t.file_a === t.file_b ? (t.file_b ?? `${t.table} (absent)`) : `${t.file_a ?? '(absent)'} -> ${t.file_b ?? '(absent)'}`;
+  const parts = [`${t.rows_a} -> ${t.rows_b} ${t.noun}`];
+  if (t.changed) parts.push(`${t.changed} changed (${t.corrected} corrected, ${t.remeasured} with new uncertainties)`);
+  if (t.added) parts.push(`${t.added} added`);
+  if (t.removed) parts.push(`${t.removed} removed`);
+  if (t.order_changed) parts.push('rows reordered');
+  if (t.bytes_only) parts.push('file bytes changed (comments, metadata or formatting), no values');
+  if (t.format_a !== t.format_b) parts.push(`format ${t.format_a ?? '-'} -> ${t.format_b ?? '-'}`);
+  return `${file}: ${parts.join(', ')}`;
+}
+
+function headline(r: DiffReport): string {
+  const h = r.h0;
+  if (!h) return 'H0: not measured in both releases.';
+  if (h.delta === null) {
+    return `H0: ${r.blinding.note}. sigma of the difference ${h.sigma_diff === null ? '—' : h.sigma_diff.toFixed(2)} km/s/Mpc.`;
+  }
+  const values =
+    h.a !== null && h.b !== null
+      ? `${h.a.toFixed(2)} -> ${h.b.toFixed(2)} km/s/Mpc, `
+      : `values blinded (ratio b/a ${h.ratio?.toFixed(5)}; the shift is in blinded km/s/Mpc, the true shift times the common hidden factor), `;
+  const sig = h.deterministic ? 'no statistical spread (a change of choices or of values at fixed noise)' : sigmaText(h.delta_sigma);
+  const sd = h.sigma_diff === null ? '' : ` ± ${h.sigma_diff.toFixed(2)}`;
+  return `H0: ${values}shift ${signed(h.delta, 2)}${sd} km/s/Mpc (${sig}; naive quadrature sum ${h.sigma_naive?.toFixed(2) ?? '—'})${h.flagged ? '  [FLAGGED]' : ''}`;
+}
+
+function paramRow(p: ParameterShift): string {
+  const v = (x: number | null) => (x === null ? (p.blinded ? 'blinded' : '—') : x.toFixed(4));
+  const d = p.delta === null ? '—' : signedSig(p.delta);
+  return `  ${p.name.padEnd(20)} ${v(p.a).padStart(10)} ${v(p.b).padStart(10)} ${d.padStart(10)} ${(p.sigma_diff === null ? '—' : p.sigma_diff.toPrecision(2)).padStart(9)} ${(p.deterministic ? 'fixed-noise' : sigmaText(p.delta_sigma)).padStart(12)}${p.flagged ? '  *' : ''}  ${p.unit}`;
+}
+
+function systemRow(s: SystemShift): string {
+  const v = (x: number | null) => (x === null ? '—' : x.toFixed(3));
+  const d = s.delta === null ? '—' : signed(s.delta, 3);
+  return `  ${s.id.padEnd(22)} ${v(s.a).padStart(8)} ${v(s.b).padStart(8)} ${d.padStart(8)} ${(s.sigma_diff === null ? '—' : s.sigma_diff.toFixed(3)).padStart(7)} ${(s.deterministic ? 'fixed-noise' : sigmaText(s.delta_sigma)).padStart(12)}${s.flagged ? '  *' : ''}${s.inputs_changed ? '  (inputs changed)' : ''}`;
+}
+
+/** Plain-text report for a terminal. */
+export function renderText(r: DiffReport): string {
+  const L: string[] = [];
+  const ra = r.releases.a;
+  const rb = r.releases.b;
+  L.push(`Comparison: ${ra.id} (${ra.title}, ${ra.date}) -> ${rb.id} (${rb.title}, ${rb.date})`);
+  if (r.blinding.a || r.blinding.b) L.push(`Blinding: ${r.blinding.note}.`);
+  if (r.identical) L.push('The two releases have identical inputs and analysis choices: nothing changed.');
+  L.push('');
+  L.push(headline(r));
+  L.push('');
+  L.push('What moved H0 (each input group\'s share of the shift; they add up to it)');
+  if (r.attribution.length === 0) L.push(`  ${r.attribution_note ?? 'no attribution'}`);
+  else {
+    for (const e of r.attribution) {
+      if (!e.differs) continue;
+      const rows = e.rows_sum === null ? '' : `   (sum of its row estimates ${signed(e.rows_sum, 3)})`;
+      L.push(`  ${e.group.padEnd(16)} ${signed(e.delta_h0, 3).padStart(8)} km/s/Mpc${e.fraction === null ? '' : `  ${(100 * e.fraction).toFixed(0).padStart(4)} %`}${rows}`);
+    }
+    const unchanged = r.attribution.filter((e) => !e.differs).map((e) => e.group);
+    if (unchanged.length) L.push(`  unchanged (0): ${unchanged.join(', ')}`);
+    L.push(`  ${'total'.padEnd(16)} ${signed(r.attribution_detail!.total, 3).padStart(8)} km/s/Mpc`);
+  }
+  if (r.top_objects.length) {
+    L.push('');
+    L.push(`Rows that moved H0 most (estimates, km/s/Mpc)`);
+    for (const o of r.top_objects) {
+      const what = o.level === 'system' ? `${o.rows} rows of ${o.id}` : `${o.id}${o.system ? ` (${o.system})` : ''}`;
+      const cols = o.columns.length ? ` ${o.columns.join(', ')}` : '';
+      L.push(`  ${signed(o.delta_h0, 3).padStart(8)}  ${o.table}: ${what} ${o.status}${cols}`);
+    }
+    if (r.objects_not_estimated) L.push(`  (${r.objects_not_estimated} changed rows without an estimate)`);
+  }
+  L.push('');
+  L.push('Input changes');
+  const changedTables = r.inputs.filter(tableTouched);
+  if (changedTables.length === 0) L.push('  no table changed');
+  for (const t of changedTables) {
+    L.push(`  ${tableLine(t)}`);
+    for (const c of t.columns) L.push(`    ${columnLine(t, c)}`);
+    for (const c of t.column_changes) L.push(`    column: ${c.detail}`);
+    if (t.added_ids.length) L.push(`    added: ${t.added_ids.join(', ')}${t.added > t.added_ids.length ? `, ... (${t.added - t.added_ids.length} more)` : ''}`);
+    if (t.removed_ids.length) L.push(`    removed: ${t.removed_ids.join(', ')}${t.removed > t.removed_ids.length ? `, ... (${t.removed - t.removed_ids.length} more)` : ''}`);
+  }
+  const ic = r.input_changes;
+  for (const c of ic.analysis) L.push(`  analysis: ${c.key} ${JSON.stringify(c.a)} -> ${JSON.stringify(c.b)}${!c.set_a ? ' (a: default)' : ''}${!c.set_b ? ' (b: default)' : ''}`);
+  for (const key of ic.analysis_set_only) L.push(`  analysis: ${key} has the same value, set in release.yaml on one side and left to its default on the other`);
+  for (const v of ic.variants) L.push(`  variant ${v.kind}: "${v.name}"${v.kind === 'changed' ? ` ${JSON.stringify(v.a)} -> ${JSON.stringify(v.b)}` : ''}`);
+  for (const m of ic.manifest) L.push(`  release.yaml ${m.field}: ${JSON.stringify(m.a)} -> ${JSON.stringify(m.b)}`);
+  if (ic.notes_changed) L.push('  notes.md changed');
+  if (ic.cells.length) {
+    L.push('');
+    L.push(`Changed values (${Math.min(TEXT_CELLS_MAX, ic.cells.length)} of ${ic.cells.length}; all in --format json)`);
+    for (const c of ic.cells.slice(0, TEXT_CELLS_MAX)) {
+      L.push(`  ${c.table}:${c.line_b} ${c.id} ${c.column}: ${plain(c.a)} -> ${plain(c.b)}${unitSuffix(c.unit)}`);
+    }
+  }
+  L.push('');
+  L.push(`Parameters (sigma: of the difference; * flagged: |delta| > ${r.flag_threshold_sigma} sigma and >= ${r.flag_negligible_fraction} of its own error)`);
+  L.push(`  ${'name'.padEnd(20)} ${'a'.padStart(10)} ${'b'.padStart(10)} ${'delta'.padStart(10)} ${'sigma'.padStart(9)} ${'delta/sigma'.padStart(12)}`);
+  for (const p of r.parameters) L.push(paramRow(p));
+  L.push('');
+  const sys = [...r.systems].sort((x, y) => Number(y.flagged) - Number(x.flagged) || Math.abs(y.delta_sigma ?? 0) - Math.abs(x.delta_sigma ?? 0));
+  L.push(`System distance moduli (mag)${sys.length > TEXT_SYSTEMS_MAX ? `, ${TEXT_SYSTEMS_MAX} of ${sys.length}` : ''}`);
+  L.push(`  ${'system'.padEnd(22)} ${'a'.padStart(8)} ${'b'.padStart(8)} ${'delta'.padStart(8)} ${'sigma'.padStart(7)} ${'delta/sigma'.padStart(12)}`);
+  for (const s of sys.filter((x) => x.a !== null || x.b !== null).slice(0, TEXT_SYSTEMS_MAX)) L.push(systemRow(s));
+  L.push('');
+  L.push('Fit');
+  for (const f of r.fit) L.push(`  ${f.name.padEnd(20)} ${String(round(f.a)).padStart(10)} -> ${String(round(f.b)).padStart(10)}`);
+  L.push('');
+  L.push('How the uncertainty of a difference is estimated');
+  L.push(wrap(r.sigma_method, 2));
+  if (r.attribution_detail) {
+    L.push('How the shift is attributed');
+    L.push(wrap(r.attribution_detail.method, 2));
+  }
+  if (r.top_objects.length) {
+    L.push('How the rows are estimated');
+    L.push(wrap(r.top_objects_method, 2));
+  }
+  if (r.links) {
+    L.push('');
+    L.push(`Report: ${r.links.page}${r.links.matches_report ? '' : ` (compares ${rb.id} with its previous release ${rb.previous ?? '(none)'})`}`);
+  }
+  return L.join('\n') + '\n';
+}
+
+function round(x: number): number {
+  return Number.isInteger(x) ? x : Number(x.toPrecision(5));
+}
+
+function wrap(text: string, indent: number, width = 100): string {
+  const words = text.split(/\s+/);
+  const lines: string[] = [];
+  let line = '';
+  for (const w of words) {
+    if (line && line.length + 1 + w.length > width - indent) {
+      lines.push(line);
+      line = w;
+    } else line = line ? `${line} ${w}` : w;
+  }
+  if (line) lines.push(line);
+  return lines.map((l) => `${' '.repeat(indent)}${l}`).join('\n');
+}
+
+function largestInputChanges(r: DiffReport): string[] {
+  const out: { weight: number; text: string }[] = [];
+  for (const t of r.inputs) {
+    if (!tableTouched(t)) continue;
+    const parts: string[] = [];
+    if (t.changed) parts.push(`${t.changed} ${t.noun} changed`);
+    if (t.added) parts.push(`${t.added} added`);
+    if (t.removed) parts.push(`${t.removed} removed`);
+    const col = [...t.columns].sort((x, y) => y.changed - x.changed)[0];
+    if (col) parts.push(columnLine(t, col));
+    for (const c of t.column_changes) parts.push(c.detail);
+    if (t.bytes_only) parts.push('file changed, no values');
+    out.push({ weight: t.added + t.removed + t.changed, text: `\`${t.table}\`: ${parts.join('; ')}` });
+  }
+  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `\`analysis\`: ${c.key} ${JSON.stringify(c.a)} → ${JSON.stringify(c.b)}` });
+  for (const v of r.input_changes.variants) out.push({ weight: 0, text: `variant ${v.kind}: "${v.name}"` });
+  return out.sort((x, y) => y.weight - x.weight).map((x) => x.text);
+}
+
+/** Markdown message ready to paste: headline, top contributions, largest input changes, links. */
+export function renderMarkdown(r: DiffReport): string {
+  const L: string[] = [];
+  const h = r.h0;
+  const title = `Release ${r.b} compared with ${r.a}`;
+  if (r.identical) {
+    L.push(`**${title}: identical inputs and analysis choices; nothing changed.**`);
+  } else if (!h) {
+    L.push(`**${title}: H0 is not measured in both releases.**`);
+  } else if (h.delta === null) {
+    L.push(`**${title}: H0 shift withheld (blinding).** ${r.blinding.note}.`);
+  } else {
+    const sig = h.deterministic
+      ? 'with no statistical spread: a change of choices, or of values at fixed noise'
+      : `${h.delta_sigma === null ? '—' : `${signed(h.delta_sigma, 1)} σ`} of the difference (σ = ${h.sigma_diff?.toFixed(2)} km/s/Mpc)`;
+    const values =
+      h.a !== null && h.b !== null
+        ? ` from ${h.a.toFixed(2)} to ${h.b.toFixed(2)} km/s/Mpc`
+        : ` (BLINDED alike: values hidden; a shift of blinded values, i.e. the true shift times the common hidden factor; ratio b/a = ${h.ratio?.toFixed(5)})`;
+    L.push(`**${title}: H0 moved by ${signed(h.delta, 2)} km/s/Mpc**${values}, ${sig}.${h.flagged ? ' Flagged.' : ''}`);
+  }
+  const top = r.attribution.filter((e) => e.differs).sort((x, y) => Math.abs(y.delta_h0) - Math.abs(x.delta_h0)).slice(0, MARKDOWN_CONTRIBUTIONS_MAX);
+  if (top.length && h && h.delta !== null) {
+    L.push('');
+    L.push('What moved it:');
+    for (const e of top) L.push(`- ${GROUP_LABEL[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
+    const objs = r.top_objects.slice(0, MARKDOWN_OBJECTS_MAX);
+    if (objs.length) {
+      L.push(`- largest single rows: ${objs.map((o) => `${o.level === 'system' ? `${o.id} (${o.rows} rows)` : o.id} ${signed(o.delta_h0, 3)}`).join(', ')}`);
+    }
+  } else if (r.attribution_note && !r.identical && h && h.delta !== null) {
+    L.push('');
+    L.push(`Attribution: ${r.attribution_note}.`);
+  }
+  const inputs = largestInputChanges(r).slice(0, MARKDOWN_INPUTS_MAX);
+  if (inputs.length) {
+    L.push('');
+    L.push('Largest input changes:');
+    for (const t of inputs) L.push(`- ${t}`);
+  }
+  const flagged = r.parameters.filter((p) => p.flagged && p.delta !== null).map((p) => p.name);
+  if (flagged.length) {
+    L.push('');
+    L.push(`Parameters shifted by more than ${r.flag_threshold_sigma} σ of the difference: ${flagged.join(', ')}.`);
+  }
+  L.push('');
+  L.push('σ of a difference: each row\'s error propagated through both fits, shared rows counted once (identical data → 0; nested samples → √(σa² − σb²)).');
+  if (r.links) {
+    L.push('');
+    const figs = Object.entries(r.links.figures).map(([k, url]) => `[${k}](${url})`).join(' · ');
+    L.push(`[Comparison page](${r.links.page})${r.links.matches_report ? '' : ` (it compares ${r.b} with ${r.releases.b.previous ?? 'no earlier release'})`} · Figures: ${figs}`);
+  }
+  return L.join('\n') + '\n';
+}
