@@ -113,9 +113,11 @@ describe('blinding a release', () => {
   it('moves H0 by exactly 10^(offset/5) and leaves the rest of the ladder alone', () => {
     expect(rBlind.blinded).toBe(true);
     expect(rPlain.blinded).toBe(false);
-    expect(relErr(rBlind.h0!.value, rPlain.h0!.value * factor)).toBeLessThan(REL_1E9);
-    expect(relErr(rBlind.h0!.stat, rPlain.h0!.stat * factor)).toBeLessThan(REL_1E9);
-    expect(relErr(rBlind.variants[0]!.h0!, rPlain.variants[0]!.h0! * factor)).toBeLessThan(REL_1E9);
+    // Both fits iterate to the convergence limits of src/ladder/globalFit.ts (far below the errors),
+    // so the ratio holds to the fit's repeatability, not to rounding.
+    expect(relErr(rBlind.h0!.value, rPlain.h0!.value * factor)).toBeLessThan(FIT_REPEAT_REL);
+    expect(relErr(rBlind.h0!.stat, rPlain.h0!.stat * factor)).toBeLessThan(FIT_REPEAT_REL);
+    expect(relErr(rBlind.variants[0]!.h0!, rPlain.variants[0]!.h0! * factor)).toBeLessThan(FIT_REPEAT_REL);
     // a_B absorbs the offset: m_b -> m_b - delta gives a_B -> a_B + delta/5.
     expect(Math.abs(rBlind.parameters.a_B!.value - (rPlain.parameters.a_B!.value + delta / 5))).toBeLessThan(MAG_1E9);
     expect(rBlind.parameters.a_B!.blinded).toBe(true);
