@@ -35,7 +35,7 @@ export interface H0Comparison {
 type Side = Pick<Results, 'blinded' | 'blinding'>;
 
 /** How to read the H0 shift between results `a` and `b`. */
-export function compareH0Blinding(a: Side, b: Side): H0Comparison {
+export function compareH0Blinding(a: Side, b: Side, names: { a: string; b: string } = { a: 'A', b: 'B' }): H0Comparison {
   if (!a.blinded && !b.blinded) return { meaning: 'true-values', message: 'Neither release is blinded: the H0 values and their shift are the measured ones.' };
   if (a.blinded && b.blinded) {
     if (sameBlinding(a.blinding, b.blinding)) {
@@ -48,5 +48,5 @@ export function compareH0Blinding(a: Side, b: Side): H0Comparison {
     }
     return { meaning: 'different-offsets', message: 'Both releases are BLINDED, not with the same offset: their H0 values cannot be compared.' };
   }
-  return { meaning: 'one-blinded', message: `Release ${a.blinded ? 'A' : 'B'} is BLINDED and the other is not: their H0 values cannot be compared.` };
+  return { meaning: 'one-blinded', message: `Release ${a.blinded ? names.a : names.b} is BLINDED and release ${a.blinded ? names.b : names.a} is not: their H0 values cannot be compared.` };
 }

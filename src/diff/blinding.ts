@@ -20,9 +20,10 @@ export interface BlindingSide {
   record: BlindingRecord | null;
 }
 
-export function compareBlinding(a: BlindingSide, b: BlindingSide): BlindingComparison {
+/** `names` are the release ids the sentence uses (default "A" and "B"). */
+export function compareBlinding(a: BlindingSide, b: BlindingSide, names?: { a: string; b: string }): BlindingComparison {
   const side = (s: BlindingSide) => ({ blinded: s.blinded, blinding: s.record ? blindingRefOf(s.record) : null });
-  const { meaning, message } = compareH0Blinding(side(a), side(b));
+  const { meaning, message } = compareH0Blinding(side(a), side(b), names);
   const alike = meaning === 'true-values' || meaning === 'same-offset';
   return {
     a: a.blinded,

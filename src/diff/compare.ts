@@ -14,7 +14,7 @@ import { loadReleaseWithBlinding, type BlindingRecord } from '../blinding/index.
 import { differingGroups, maskOf } from './hybrid.ts';
 import { estimateKey, INFLUENCE_METHOD, sideRowEstimates, type RowEstimate } from './influence.ts';
 import { diffInputs, tableTouched } from './inputs.ts';
-import { buildLinks } from './links.ts';
+import { buildLinks, linksFor } from './links.ts';
 import { noiseSharing, type NoiseSharing } from './noise.ts';
 import { buildOverlays } from './overlays.ts';
 import type { DiffJob, DiffJobResult } from './jobs.ts';
@@ -237,6 +237,7 @@ async function compareWith(runner: JobRunner, a: Release, b: Release, options: C
   const blinding = compareBlinding(
     { blinded: a.manifest.blinded, record: options.records?.a ?? null },
     { blinded: b.manifest.blinded, record: options.records?.b ?? null },
+    { a: a.manifest.id, b: b.manifest.id },
   );
   const groups = differingGroups(a, b);
   const k = groups.length;
@@ -508,6 +509,7 @@ async function compareWith(runner: JobRunner, a: Release, b: Release, options: C
     { name: 'scatter_supernovae', a: resA.fit.scatter.supernovae, b: resB.fit.scatter.supernovae },
   ];
 
+  const overlays = buildOverlays(resA, resB, statusOf, (id) => changedSystems.has(id), hideShift);
   return {
     schema: DIFF_SCHEMA,
     a: a.manifest.id,
@@ -530,8 +532,8 @@ async function compareWith(runner: JobRunner, a: Release, b: Release, options: C
     top_objects: objects.slice(0, TOP_OBJECTS),
     top_objects_method: INFLUENCE_METHOD,
     objects_not_estimated: notEstimated,
-    overlays: buildOverlays(resA, resB, statusOf, (id) => changedSystems.has(id)),
-    links: options.site !== undefined ? buildLinks(options.site, options.base, a.manifest.id, b.manifest.id, b.manifest.previous) : null,
+    overlays,
+    links: options.site !== undefined ? linksFor({ attribution: attribution?.entries ?? [], overlays }, buildLinks(options.site, options.base, a.manifest.id, b.manifest.id, b.manifest.previous)) : null,
   };
 }
 

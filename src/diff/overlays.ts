@@ -60,7 +60,7 @@ function hubbleSide(r: Results, statusOf: StatusOf): OverlaySide {
   return { points, model: thinModel(model) };
 }
 
-function ladderSide(r: Results, systemChanged: (id: string) => boolean, statusOf: StatusOf): OverlaySide {
+function ladderSide(r: Results, systemChanged: (id: string) => boolean, statusOf: StatusOf, withFlow: boolean): OverlaySide {
   const points: OverlayPoint[] = [];
   for (const s of r.systems) {
     const rung = METHOD_RUNG[s.method];
@@ -69,7 +69,7 @@ function ladderSide(r: Results, systemChanged: (id: string) => boolean, statusOf
     const err = s.mu_err === null ? null : (s.distance_mpc * Math.LN10 * s.mu_err) / 5;
     points.push(point(s.id, s.id, rung, s.distance_mpc, err, false, systemChanged(s.id) ? 'corrected' : 'same'));
   }
-  for (const sn of r.rungs.supernovae.hubble_flow) {
+  for (const sn of withFlow ? r.rungs.supernovae.hubble_flow : []) {
     if (!sn.in_sample || !Number.isFinite(sn.mu)) continue;
     const d = distanceMpcFromModulus(sn.mu);
     points.push(point(sn.sn, null, 3, d, (d * Math.LN10 * sn.m_corr_err) / 5, sn.rejected, statusOf('sn_hubble_flow', sn.sn)));
@@ -77,18 +77,26 @@ function ladderSide(r: Results, systemChanged: (id: string) => boolean, statusOf
   return { points, model: [] };
 }
 
+export const FLOW_WITHHELD =
+  'Hubble-flow points are left out: the releases are not blinded alike, and the offset between the two samples about the unblinded model would measure the hidden blinding offset';
+
+const EMPTY: OverlaySide = { points: [], model: [] };
+
 /**
  * The three overlays. `statusOf` gives a row's status between the releases; `systemChanged`
  * whether any input row of a system changed (used for the ladder diagram, where a point is a system:
- * its status there is 'corrected' for any change).
+ * its status there is 'corrected' for any change). With `hideFlow` (the H0 shift is withheld by
+ * blinding) the Hubble-flow supernovae are left out of every overlay.
  */
 export function buildOverlays(
   a: Results,
   b: Results,
   statusOf: StatusOf,
   systemChanged: (id: string) => boolean,
+  hideFlow = false,
 ): Overlay[] {
   const blinded = a.blinded || b.blinded;
+  const withheld = hideFlow ? FLOW_WITHHELD : null;
   return [
     {
       id: 'pl-relation',
@@ -101,6 +109,7 @@ export function buildOverlays(
       a: plSide(a, statusOf),
       b: plSide(b, statusOf),
       blinded: false,
+      withheld: null,
     },
     {
       id: 'hubble-diagram',
@@ -110,9 +119,10 @@ export function buildOverlays(
       x_log: true,
       y_log: false,
       x_categories: null,
-      a: hubbleSide(a, statusOf),
-      b: hubbleSide(b, statusOf),
+      a: hideFlow ? EMPTY : hubbleSide(a, statusOf),
+      b: hideFlow ? EMPTY : hubbleSide(b, statusOf),
       blinded,
+      withheld,
     },
     {
       id: 'ladder-diagram',
@@ -122,9 +132,10 @@ export function buildOverlays(
       x_log: false,
       y_log: true,
       x_categories: [...LADDER_RUNGS],
-      a: ladderSide(a, systemChanged, statusOf),
-      b: ladderSide(b, systemChanged, statusOf),
+      a: ladderSide(a, systemChanged, statusOf, !hideFlow),
+      b: ladderSide(b, systemChanged, statusOf, !hideFlow),
       blinded,
+      withheld,
     },
   ];
 }

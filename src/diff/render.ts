@@ -251,8 +251,10 @@ export function renderMarkdown(r: DiffReport): string {
   const top = r.attribution.filter((e) => e.differs).sort((x, y) => Math.abs(y.delta_h0) - Math.abs(x.delta_h0)).slice(0, MARKDOWN_CONTRIBUTIONS_MAX);
   if (top.length && h && h.delta !== null) {
     L.push('');
-    L.push('What moved it:');
-    for (const e of top) L.push(`- ${GROUP_LABEL[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
+    // shares of the total read as errors when contributions pull opposite ways (270 % and -170 %)
+    const cancelling = top.some((e) => Math.sign(e.delta_h0) !== Math.sign(top[0]!.delta_h0));
+    L.push(cancelling ? 'What moved it (partly cancelling):' : 'What moved it:');
+    for (const e of top) L.push(`- ${GROUP_LABEL[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
     const objs = r.top_objects.slice(0, MARKDOWN_OBJECTS_MAX);
     if (objs.length) {
       L.push(`- largest single rows: ${objs.map((o) => `${o.level === 'system' ? `${o.id} (${o.rows} rows)` : o.id} ${signed(o.delta_h0, 3)}`).join(', ')}`);
@@ -272,12 +274,18 @@ export function renderMarkdown(r: DiffReport): string {
     L.push('');
     L.push(`Parameters shifted by more than ${r.flag_threshold_sigma} σ of the difference: ${flagged.join(', ')}.`);
   }
+  if (r.blinding.a || r.blinding.b) {
+    L.push('');
+    L.push(`BLINDED: ${r.blinding.note}.`);
+  }
   L.push('');
   L.push('σ of a difference: each row\'s error propagated through both fits, shared rows counted once (identical data → 0; nested samples → √(σa² − σb²)).');
   if (r.links) {
     L.push('');
     const figs = Object.entries(r.links.figures).map(([k, url]) => `[${k}](${url})`).join(' · ');
-    L.push(`[Comparison page](${r.links.page})${r.links.matches_report ? '' : ` (it compares ${r.b} with ${r.releases.b.previous ?? 'no earlier release'})`} · Figures: ${figs}`);
+    L.push(`[Comparison page](${r.links.page})${r.links.matches_report ? '' : ` (it compares ${r.b} with ${r.releases.b.previous ?? 'no earlier release'})`}${figs ? ` · Figures: ${figs}` : ''}`);
   }
+  L.push('');
+  L.push('_Internal results for collaboration review; not for citation._');
   return L.join('\n') + '\n';
 }

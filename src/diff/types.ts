@@ -266,6 +266,12 @@ export interface Overlay {
   b: OverlaySide;
   /** The y values of this overlay depend on a blinded quantity on some side. */
   blinded: boolean;
+  /**
+   * Why points were left out to protect the blinding, or null. One blinded and one unblinded
+   * release (or two blinded differently) cannot share a Hubble diagram: the offset between the
+   * two samples about the unblinded model would measure the hidden offset.
+   */
+  withheld: string | null;
 }
 
 export interface BlindingComparison {
