@@ -56,6 +56,24 @@ function proseHeadingIds() {
   };
 }
 
+/**
+ * A display formula wider than the screen scrolls sideways (report.css); a scrolling region must
+ * be reachable from the keyboard (WCAG 2.1.1), so each display formula is focusable and named.
+ */
+function focusableDisplayMath() {
+  return (tree) => {
+    const visit = (node) => {
+      const cls = node.properties?.className;
+      if (node.type === 'element' && Array.isArray(cls) && cls.includes('katex-display')) {
+        node.properties = { ...node.properties, tabIndex: 0, role: 'group', ariaLabel: 'formula (scrolls sideways on narrow screens)' };
+        return;
+      }
+      for (const child of node.children ?? []) visit(child);
+    };
+    visit(tree);
+  };
+}
+
 export default defineConfig({
   root,
   srcDir: './site',
@@ -72,7 +90,7 @@ export default defineConfig({
   markdown: {
     remarkPlugins: [remarkMath],
     // strict 'ignore': a method note may use \lt and friends; errors still fail the build below.
-    rehypePlugins: [[rehypeKatex, { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml' }], proseHeadingIds],
+    rehypePlugins: [[rehypeKatex, { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml' }], focusableDisplayMath, proseHeadingIds],
     syntaxHighlight: false,
     smartypants: false,
   },

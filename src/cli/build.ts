@@ -9,6 +9,7 @@
  */
 import { resolve } from 'node:path';
 import { formatIssue, InputError } from '../types/issues.ts';
+import type { CompareDirs } from '../report/build.ts';
 import type { Results } from '../types/results.ts';
 
 /** Same shape as the command line's CliIO (src/cli/output.ts), plus optional test hooks. */
@@ -21,6 +22,8 @@ export interface BuildIo {
   env?: Record<string, string | undefined>;
   /** Calibration to use instead of the real one (for tests). */
   calibrate?: (releaseDir: string) => Promise<Results>;
+  /** Comparison to use instead of the real one; null: none (for tests whose releases hold no tables). */
+  compare?: CompareDirs | null;
   /** Folders for generated files and cached results (for tests; defaults under the repository). */
   workDir?: string;
   cacheDir?: string;
@@ -123,6 +126,7 @@ export async function runBuild(args: readonly string[], io: BuildIo): Promise<nu
       progress,
       progressStream: { write: (s: string) => io.stderr(s) },
       calibrate,
+      ...(io.compare !== undefined ? { compare: io.compare } : {}),
       ...(io.workDir !== undefined ? { workDir: io.workDir } : {}),
       ...(io.cacheDir !== undefined ? { cacheDir: io.cacheDir } : {}),
     });
@@ -130,7 +134,8 @@ export async function runBuild(args: readonly string[], io: BuildIo): Promise<nu
     io.stdout(
       `Built ${summary.releases.length} release${summary.releases.length === 1 ? '' : 's'} (${summary.releases.map((r) => `${r.id}${r.cached ? ' cached' : ''}`).join(', ')}) into ${summary.outDir}\n` +
         `${summary.pages} pages, ${summary.files} files, ${mb(summary.bytes)}; largest page ${summary.largestPage ? `${summary.largestPage.path} (${(summary.largestPage.bytes / 1024).toFixed(0)} KB)` : '—'}\n` +
-        `time: calibration ${(summary.timingsMs.calibrate / 1000).toFixed(1)} s, pages and figures ${(summary.timingsMs.generate / 1000).toFixed(1)} s, site ${(summary.timingsMs.site / 1000).toFixed(1)} s\n`,
+        `${summary.comparisons.length} comparison${summary.comparisons.length === 1 ? '' : 's'} with the previous release${summary.comparisons.length ? ` (${summary.comparisons.map((c) => `${c.a} -> ${c.b}${c.cached ? ' cached' : ''}`).join(', ')})` : ''}\n` +
+        `time: calibration ${(summary.timingsMs.calibrate / 1000).toFixed(1)} s, comparisons ${(summary.timingsMs.compare / 1000).toFixed(1)} s, pages and figures ${(summary.timingsMs.generate / 1000).toFixed(1)} s, site ${(summary.timingsMs.site / 1000).toFixed(1)} s\n`,
     );
     return 0;
   } catch (e) {

@@ -13,6 +13,8 @@
 import { mkdir, readFile, readdir, rm, stat, writeFile } from 'node:fs/promises';
 import { isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { buildLinks, linksFor } from '../diff/links.ts';
+import type { DiffReport } from '../diff/types.ts';
 import { compareResults } from '../publish/drift.ts';
 import { readPublishedRecord, verifyPublishedFolder } from '../publish/record.ts';
 import { InputError } from '../types/issues.ts';
@@ -20,11 +22,11 @@ import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
 import { buildSite, normaliseBase } from './astroBuild.ts';
 import { RELEASE_FIGURES } from './figures/index.ts';
 import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, type ReleaseFigure, removeRelease } from './generate.ts';
-import { calibrationCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
-import { REQUIRED_NOTES } from './pageData.ts';
+import { calibrationCodeHash, comparisonCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
+import { releasePath, REQUIRED_NOTES } from './pageData.ts';
 import { createProgress } from './progress.ts';
 import { publishedView } from './published.ts';
-import type { PublishedView, ReleaseSummary } from './types.ts';
+import type { PageLink, PublishedView, ReleaseSummary } from './types.ts';
 import { beginWork, type WorkState } from './workState.ts';
 
 export const REPO_ROOT = fileURLToPath(new URL('../../', import.meta.url));
@@ -38,6 +40,12 @@ export interface BuildReportOptions {
   site?: string;
   progress?: boolean;
   calibrate: (releaseDir: string) => Promise<Results>;
+  /**
+   * The comparison of a release folder with the folder of its previous release (default: the
+   * real one, src/diff compareReleaseDirs); null leaves the comparison pages without content
+   * (tests whose releases have no data tables).
+   */
+  compare?: CompareDirs | null;
   /** Folder for generated files and Astro's cache (default <repo>/.build). */
   workDir?: string;
   /** Cache of results.json files (default <repo>/.cache/results); null disables it. */
@@ -50,14 +58,24 @@ export interface BuildReportOptions {
   figures?: readonly ReleaseFigure[];
 }
 
+export type CompareDirs = (dirA: string, dirB: string) => Promise<DiffReport>;
+
+/** The real comparison, loaded only when a build needs it. */
+async function defaultCompare(): Promise<CompareDirs> {
+  const { compareReleaseDirs } = await import('../diff/compare.ts');
+  return (a, b) => compareReleaseDirs(a, b);
+}
+
 export interface BuildSummary {
   outDir: string;
   releases: { id: string; dir: string; cached: boolean; regenerated: boolean }[];
+  /** Comparisons with the previous release: computed now, or taken from the cache. */
+  comparisons: { a: string; b: string; cached: boolean }[];
   pages: number;
   files: number;
   bytes: number;
   largestPage: { path: string; bytes: number } | null;
-  timingsMs: { calibrate: number; generate: number; site: number; total: number };
+  timingsMs: { calibrate: number; compare: number; generate: number; site: number; total: number };
 }
 
 export class ReportBuildError extends Error {
@@ -156,6 +174,31 @@ async function calibrateCached(
   return { results, cached: false };
 }
 
+async function compareCached(
+  dirA: string,
+  dirB: string,
+  compare: CompareDirs,
+  cacheDir: string | null,
+  codeHash: string,
+  work: WorkState,
+): Promise<{ report: DiffReport; cached: boolean }> {
+  if (cacheDir === null) return { report: await compare(dirA, dirB), cached: false };
+  const key = sha256('rungbook.compare-cache/1', codeHash, await hashTree(dirA), await hashTree(dirB));
+  const file = join(cacheDir, `compare-${key}.json`);
+  const hit = await readIfExists(file);
+  if (hit !== null) {
+    try {
+      const report = JSON.parse(hit) as DiffReport;
+      if (report.schema === 'rungbook.diff/1') return { report, cached: true };
+    } catch {
+      // unreadable cache entry: compare again
+    }
+  }
+  const report = await compare(dirA, dirB);
+  work.later(file, `${JSON.stringify(report)}\n`);
+  return { report, cached: false };
+}
+
 /** Keep a release's generated files when what they were made from is unchanged. */
 async function generateReleaseCached(
   layout: GenLayout,
@@ -165,10 +208,21 @@ async function generateReleaseCached(
   published: PublishedView | null,
   reportHash: string,
   figures: readonly ReleaseFigure[],
+  comparison: { report: DiffReport; aBuilt: boolean } | null,
+  next: PageLink[],
 ): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
   const id = results.release.id;
   const stampFile = join(layout.root, 'stamps', `${id}.json`);
-  const stamp = sha256(JSON.stringify(results), notes ?? '\0no notes', String(previousBuilt), reportHash, JSON.stringify(published), figures.map((f) => f.id).join(','));
+  const stamp = sha256(
+    JSON.stringify(results),
+    notes ?? '\0no notes',
+    String(previousBuilt),
+    reportHash,
+    JSON.stringify(published),
+    figures.map((f) => f.id).join(','),
+    JSON.stringify(comparison),
+    JSON.stringify(next),
+  );
   const old = await readIfExists(stampFile);
   if (old !== null) {
     try {
@@ -180,7 +234,7 @@ async function generateReleaseCached(
     }
   }
   await rm(stampFile, { force: true });
-  const summary = await generateRelease(layout, { results, notes, previousBuilt, published }, figures);
+  const summary = await generateRelease(layout, { results, notes, previousBuilt, published, comparison, next }, figures);
   await mkdir(join(layout.root, 'stamps'), { recursive: true });
   await writeFile(stampFile, generatedJson({ stamp, summary }));
   return { summary, regenerated: true };
@@ -330,7 +384,39 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
     if (dup !== undefined) throw new ReportBuildError(`release id ${dup} appears in more than one folder`, 'release ids must be unique; each id names its pages');
     const t1 = performance.now();
 
-    // 2. Generated pages, figures and downloads.
+    // 2. Each release against its previous one, when both are in this report.
+    const dirOf = new Map(calibrated.map((c) => [c.results.release.id, c.dir]));
+    const comparisons = new Map<string, { report: DiffReport; aBuilt: boolean }>();
+    const compared: BuildSummary['comparisons'] = [];
+    const compare = opts.compare === null ? null : (opts.compare ?? (await defaultCompare()));
+    if (compare !== null) {
+      const compareHash = sha256(codeHash, await comparisonCodeHash(REPO_ROOT));
+      for (const c of calibrated) {
+        const b = c.results.release.id;
+        const a = c.results.release.previous;
+        const dirA = a === null ? undefined : dirOf.get(a);
+        if (a === null || dirA === undefined) continue;
+        progress.step(`comparing ${b} with ${a}`);
+        let out;
+        try {
+          out = await compareCached(dirA, c.dir, compare, cacheDir, compareHash, work);
+        } catch (e) {
+          throw new ReportBuildError(`comparison of release ${b} with ${a} failed: ${messageOf(e)}`, null, { cause: e });
+        }
+        // Links for this report's address (the cached comparison carries none).
+        const report: DiffReport = { ...out.report, links: linksFor(out.report, buildLinks(opts.site ?? 'http://localhost/', opts.base, a, b, a)) };
+        comparisons.set(b, { report, aBuilt: true });
+        compared.push({ a, b, cached: out.cached });
+        if (out.cached) progress.step('  (cached comparison)');
+      }
+    }
+    const nextOf = (id: string): PageLink[] =>
+      calibrated
+        .filter((c) => c.results.release.previous === id && comparisons.has(c.results.release.id))
+        .map((c) => ({ path: releasePath(c.results.release.id, 'compare/'), title: `Release ${c.results.release.id} compared with ${id}` }));
+    const tc = performance.now();
+
+    // 3. Generated pages, figures and downloads.
     const reportHash = await reportCodeHash(REPO_ROOT);
     const idSet = new Set(ids);
     const releases: BuildSummary['releases'] = [];
@@ -344,7 +430,7 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
         progress.step(`figures and pages of release ${r.release.id}`);
         const notes = await readIfExists(join(c.dir, 'notes.md'));
         const previousBuilt = r.release.previous !== null && idSet.has(r.release.previous);
-        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures);
+        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures, comparisons.get(r.release.id) ?? null, nextOf(r.release.id));
         if (!g.regenerated) progress.step('  unchanged, kept');
         summaries.push(g.summary);
         releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });
@@ -360,7 +446,7 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
     }
     const t2 = performance.now();
 
-    // 3. The static site.
+    // 4. The static site.
     progress.step('building the site with Astro');
     astroStarted = true;
     try {
@@ -389,8 +475,9 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
     return {
       outDir,
       releases,
+      comparisons: compared,
       ...measured,
-      timingsMs: { calibrate: t1 - t0, generate: t2 - t1, site: t3 - t2, total: t3 - t0 },
+      timingsMs: { calibrate: t1 - t0, compare: tc - t1, generate: t2 - tc, site: t3 - t2, total: t3 - t0 },
     };
   }
 }

@@ -88,6 +88,13 @@ export function distanceText(mpc: number | null): string {
   return `${sig(mpc, 3)} Mpc`;
 }
 
+/** Tick labels on a log distance axis: 10 pc, 1 kpc, 10 Mpc (only at powers of ten). */
+export function distanceTickText(mpc: number): string {
+  const e = Math.round(Math.log10(mpc));
+  if (Math.abs(Math.log10(mpc) - e) > 1e-9) return '';
+  return distanceText(10 ** e).replace(/\.0+ /, ' ');
+}
+
 /** A JSON-ish rendering of an analysis value for tables: arrays as "[a, b]", null as "null (fitted)" etc. */
 export function analysisValueText(v: unknown): string {
   if (v === null) return 'null';

@@ -13,14 +13,17 @@
  */
 import { mkdir, rm, writeFile } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
+import type { DiffReport } from '../diff/types.ts';
 import { writeCsv, writeEcsv } from '../io/writeEcsv.ts';
+import { comparisonFigures } from './compare/figures.ts';
+import { comparisonView } from './compare/view.ts';
 import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
 import { h0History, RELEASE_FIGURES, type FigureSpec } from './figures/index.ts';
 import { headline, releaseData, releasePath } from './pageData.ts';
 import { svgToPng } from './png.ts';
 import { notesTree, summaryTree, toMdx } from './prose.ts';
 import { resultTables } from './resultTables.ts';
-import { type DownloadLink, type FigureRef, GENERATED_MARK, type PublishedView, type ReleaseSummary, type SiteData } from './types.ts';
+import { type ComparisonView, type DownloadLink, type FigureRef, GENERATED_MARK, type PageLink, type PublishedView, type ReleaseData, type ReleaseSummary, type SiteData } from './types.ts';
 
 /** One figure of a release: its stable id and the function that draws it (null: its rung has no data). */
 export type ReleaseFigure = (typeof RELEASE_FIGURES)[number];
@@ -81,6 +84,11 @@ export interface ReleaseGenInput {
   previousBuilt: boolean;
   /** The publication record's notice, when the release is published (its results are then the published ones). */
   published?: PublishedView | null;
+  /** The comparison with the previous release (links already set for this report), or why there is none. */
+  comparison?: { report: DiffReport; aBuilt: boolean } | null;
+  comparisonState?: ReleaseData['comparisonState'];
+  /** Comparison pages of later releases that compare themselves with this one. */
+  next?: PageLink[];
 }
 
 /** Generate every file of one release; returns its entry for the home page. */
@@ -96,6 +104,18 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     if (spec === null) continue;
     if (spec.id !== f.id) throw new Error(`figure ${f.id} returned id ${spec.id}`);
     figures[f.id] = await writeFigure(layout, releasePath(id, 'figures/'), spec);
+  }
+
+  // The comparison with the previous release: its figures sit beside the release's own.
+  let comparison: ComparisonView | null = null;
+  if (input.comparison) {
+    const ids: string[] = [];
+    for (const spec of comparisonFigures(input.comparison.report)) {
+      if (figures[spec.id]) throw new Error(`comparison figure ${spec.id} has the id of a release figure`);
+      figures[spec.id] = await writeFigure(layout, releasePath(id, 'figures/'), spec);
+      ids.push(spec.id);
+    }
+    comparison = comparisonView({ report: input.comparison.report, aBuilt: input.comparison.aBuilt, figures: ids });
   }
 
   // Downloads: results.json and every result table as CSV and ECSV.
@@ -128,7 +148,19 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     await put(join(layout.proseDir, id, 'notes.mdx'), toMdx(notes));
   }
 
-  const data = releaseData({ results: r, figures, downloads, tableDownload, summaryProse, notesProse, previousBuilt: input.previousBuilt, published: input.published ?? null });
+  const data = releaseData({
+    results: r,
+    figures,
+    downloads,
+    tableDownload,
+    summaryProse,
+    notesProse,
+    previousBuilt: input.previousBuilt,
+    published: input.published ?? null,
+    comparison,
+    comparisonState: comparison ? 'shown' : (input.comparisonState ?? (r.release.previous === null ? 'first' : input.previousBuilt ? 'not-computed' : 'previous-missing')),
+    next: input.next ?? [],
+  });
   const { generated: _mark, ...rest } = data;
   await put(join(layout.dataDir, 'releases', `${id}.json`), generatedJson(rest));
   return { id, title: r.release.title, date: r.release.date, blinded: r.blinded, reached: r.reached, headline: headline(r), path: releasePath(id) };

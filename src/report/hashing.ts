@@ -65,3 +65,8 @@ export async function calibrationCodeHash(root: string): Promise<string> {
 export async function reportCodeHash(root: string): Promise<string> {
   return sha256('report', await hashTree(join(root, 'src', 'report')));
 }
+
+/** Version of the comparison code (src/diff); with the calibration code's, it keys cached comparisons. */
+export async function comparisonCodeHash(root: string): Promise<string> {
+  return sha256('comparison', await hashTree(join(root, 'src', 'diff')));
+}

@@ -6,9 +6,10 @@
 import { DEFAULT_ANALYSIS, type AnalysisKey } from '../types/analysis.ts';
 import type { Results, SystemResult } from '../types/results.ts';
 import { parameterBlinded } from './blinding.ts';
+import { changesParagraph } from './compare/view.ts';
 import { analysisValueText, distanceText, fixed, int, percent, pm, sig, valueErr } from './format.ts';
 import { type ColumnSpec, tableView } from './tables.ts';
-import type { CheckView, DownloadLink, FigureRef, Headline, InputUsed, KeyValue, PageLink, PublishedView, ReleaseData, RowMark, RungData, TableView } from './types.ts';
+import type { CheckView, ComparisonView, DownloadLink, FigureRef, Headline, InputUsed, KeyValue, PageLink, PublishedView, ReleaseData, RowMark, RungData, TableView } from './types.ts';
 import { GENERATED_MARK } from './types.ts';
 
 /** The rung pages: URL segment, method note (file under content/methods), input tables, figures. */
@@ -28,6 +29,7 @@ export const REQUIRED_NOTES: readonly string[] = [
   'variants',
   'blinding',
   'internal-review',
+  'comparison',
 ];
 
 export const OVERVIEW_FIGURES = ['ladder-diagram'];
@@ -47,6 +49,11 @@ export interface PageInputs {
   previousBuilt: boolean;
   /** Publication notice of a published release (its results are the published ones). */
   published?: PublishedView | null;
+  /** The comparison page's content, or null (comparisonState says why). */
+  comparison?: ComparisonView | null;
+  comparisonState?: ReleaseData['comparisonState'];
+  /** Comparison pages of later releases that compare themselves with this one. */
+  next?: PageLink[];
 }
 
 export function releasePath(id: string, rest = ''): string {
@@ -573,7 +580,10 @@ export function releaseData(p: PageInputs): ReleaseData {
     headline: headline(r),
     summaryProse: p.summaryProse,
     notesProse: p.notesProse,
-    changes: { text: null, page: releasePath(id, 'compare/') },
+    changes: { text: p.comparison ? changesParagraph(p.comparison) : null, page: releasePath(id, 'compare/') },
+    comparison: p.comparison ?? null,
+    comparisonState: p.comparisonState ?? (p.comparison ? 'shown' : r.release.previous === null ? 'first' : p.previousBuilt ? 'not-computed' : 'previous-missing'),
+    next: p.next ?? [],
     checks: checks(r),
     fit: globalFit(r, p).keyValues,
     parameters: parametersTable(r, p),

@@ -39,7 +39,7 @@ export interface TableColumn {
   numeric: boolean;
 }
 
-export type RowMark = 'blinded' | 'rejected' | 'failed' | 'default' | null;
+export type RowMark = 'blinded' | 'rejected' | 'failed' | 'default' | 'flagged' | null;
 
 export interface TableView {
   /** Unique within its page; also the anchor of the table. */
@@ -135,8 +135,14 @@ export interface ReleaseData {
   summaryProse: string;
   /** Id of the generated prose entry holding the release notes, or null without notes. */
   notesProse: string | null;
-  /** Slot for the comparison with the previous release (filled by the comparison step). */
+  /** One paragraph on the comparison with the previous release (null: none), and the comparison page. */
   changes: { text: string | null; page: string };
+  /** The comparison page's content, or null when there is nothing to compare with (see comparisonState). */
+  comparison: ComparisonView | null;
+  /** Why there is no comparison: 'first' release, 'previous-missing' from this report, 'not-computed' in this build. */
+  comparisonState: 'shown' | 'first' | 'previous-missing' | 'not-computed';
+  /** Later releases of this report that compare themselves with this one (links to their comparison pages). */
+  next: PageLink[];
   checks: CheckView[];
   fit: KeyValue[];
   parameters: TableView;
@@ -202,4 +208,47 @@ export interface SiteData {
   releases: ReleaseSummary[];
   latest: string | null;
   history: FigureRef | null;
+}
+
+/** One paragraph of a method or a caveat on the comparison page. */
+export interface MethodText {
+  title: string;
+  text: string;
+}
+
+/** The comparison of a release with its previous one, formatted for the comparison page. */
+export interface ComparisonView {
+  a: { id: string; title: string; date: string; built: boolean };
+  b: { id: string; title: string; date: string };
+  /** Nothing differs between the releases. */
+  identical: boolean;
+  /** The headline sentence (what H0 did, by how much, how significant). */
+  headline: string;
+  /** The shift is above the flag threshold. */
+  flagged: boolean;
+  /** The main contributions in one sentence, or null. */
+  contributions: string | null;
+  /** The largest input changes, one line each. */
+  largestInputs: string[];
+  /** Blinding sentence when either release is blinded, else null. */
+  blinding: string | null;
+  keyValues: KeyValue[];
+  attribution: { table: TableView | null; figure: string | null; note: string | null };
+  topObjects: { table: TableView | null; note: string };
+  inputs: {
+    tables: TableView;
+    columns: TableView | null;
+    columnChanges: string[];
+    analysis: TableView | null;
+    other: string[];
+    cells: TableView | null;
+  };
+  parameters: TableView;
+  systems: TableView | null;
+  fit: TableView;
+  /** Overlay figures drawn, and overlays left out (with the reason). */
+  overlays: { figures: string[]; missing: string[] };
+  methods: MethodText[];
+  /** The Markdown message to paste (same as `rungbook diff --format markdown` with the report's site). */
+  message: string;
 }

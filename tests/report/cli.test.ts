@@ -26,7 +26,7 @@ afterAll(async () => {
 describe('rungbook build: usage', () => {
   it('refuses an unknown option with exit code 2 and the usage on stderr', async () => {
     const c = capture();
-    expect(await runBuild(['--bogus'], { ...c.io, calibrate: calibrateFixture })).toBe(2);
+    expect(await runBuild(['--bogus'], { ...c.io, calibrate: calibrateFixture, compare: null })).toBe(2);
     expect(c.out).toEqual([]);
     expect(c.err.join('')).toContain('unknown argument "--bogus"');
     expect(c.err.join('')).toContain('usage: rungbook build');
@@ -35,13 +35,13 @@ describe('rungbook build: usage', () => {
   it('refuses an option without its value, and a --site that is not http(s)', async () => {
     for (const args of [['--out'], ['--releases', '--out', 'x'], ['--site', 'ftp://host/']]) {
       const c = capture();
-      expect(await runBuild(args, { ...c.io, calibrate: calibrateFixture }), args.join(' ')).toBe(2);
+      expect(await runBuild(args, { ...c.io, calibrate: calibrateFixture, compare: null }), args.join(' ')).toBe(2);
     }
   });
 
   it('prints the usage for --help with exit code 0', async () => {
     const c = capture();
-    expect(await runBuild(['--help'], { ...c.io, calibrate: calibrateFixture })).toBe(0);
+    expect(await runBuild(['--help'], { ...c.io, calibrate: calibrateFixture, compare: null })).toBe(0);
     expect(c.err.join('')).toContain('--releases DIR');
   });
 });
@@ -50,7 +50,7 @@ describe('rungbook build: failures', () => {
   it('exits 1 naming the folder when the releases folder does not exist', async () => {
     const c = capture();
     const missing = join(tmpdir(), 'rungbook-no-such-folder');
-    expect(await runBuild(['--releases', missing], { ...c.io, calibrate: calibrateFixture })).toBe(1);
+    expect(await runBuild(['--releases', missing], { ...c.io, calibrate: calibrateFixture, compare: null })).toBe(1);
     expect(c.err.join('')).toContain(`releases folder ${missing} cannot be read`);
     expect(c.out).toEqual([]);
   });
@@ -65,7 +65,7 @@ describe('rungbook build: failures', () => {
         { code: 'unknown-system', file: `${dir}/cepheids.ecsv`, line: 9, column: 'system', message: 'system "Nowhere" is not in systems.ecsv' },
       ]);
     };
-    const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist')], { ...c.io, calibrate: bad, workDir: join(tmp, 'work'), cacheDir: join(tmp, 'cache') });
+    const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist')], { ...c.io, calibrate: bad, compare: null, workDir: join(tmp, 'work'), cacheDir: join(tmp, 'cache') });
     expect(code).toBe(1);
     const err = c.err.join('');
     expect(err).toContain('2025.4/parallax.ecsv:14: column "parallax": value is not a number; expected a finite number, found "nan"');
@@ -82,7 +82,7 @@ describe('rungbook build: a full build', () => {
     const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist'), '--site', 'https://reports.example.org'], {
       ...c.io,
       env: { RUNGBOOK_BASE: '/team/h0' },
-      calibrate: calibrateFixture,
+      calibrate: calibrateFixture, compare: null,
       workDir: join(tmp, 'work'),
       cacheDir: join(tmp, 'cache'),
     });
@@ -100,7 +100,7 @@ describe('rungbook build: a full build', () => {
     const c = capture();
     const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist'), '--progress'], {
       ...c.io,
-      calibrate: calibrateFixture,
+      calibrate: calibrateFixture, compare: null,
       workDir: join(tmp, 'work'),
       cacheDir: join(tmp, 'cache'),
     });

@@ -7,7 +7,7 @@
 import * as Plot from '@observablehq/plot';
 import { distanceMpcFromModulus } from '../../ladder/distance.ts';
 import type { Results } from '../../types/results.ts';
-import { distanceText, int, pm } from '../format.ts';
+import { distanceText, distanceTickText, int, pm } from '../format.ts';
 import { blindedStamp, col, type FigureSpec, GREY, INK, legend, listText, r5, renderSvg, thin } from './plotting.ts';
 
 export const ID = 'ladder-diagram';
@@ -118,7 +118,7 @@ export function ladderDiagram(r: Results): FigureSpec | null {
     height,
     marginLeft: 110,
     marginTop: leg.marginTop,
-    x: { type: 'log', label: 'Distance (Mpc)', tickFormat: (d: number) => formatTick(d) },
+    x: { type: 'log', label: 'Distance (Mpc)', tickFormat: distanceTickText },
     y: { domain: [-0.5, RUNGS.length - 0.5], ticks: [0, 1, 2, 3], tickFormat: (i: number) => RUNGS[i] ?? '', label: null, reverse: true },
     marks,
   });
@@ -159,11 +159,4 @@ export function ladderDiagram(r: Results): FigureSpec | null {
     thinned: thinned.note,
     blinded,
   };
-}
-
-/** Tick labels on a log distance axis: 10 pc, 1 kpc, 10 Mpc (only at powers of ten). */
-function formatTick(d: number): string {
-  const e = Math.round(Math.log10(d));
-  if (Math.abs(Math.log10(d) - e) > 1e-9) return '';
-  return distanceText(10 ** e).replace(/\.0+ /, ' ');
 }
