@@ -6,6 +6,9 @@
  *   ratio of one dense N x N GLS solve to one structured solve of the same problem (dense solves
  *   are run at 1x and 4x; at 16x the dense time is extrapolated as N^3 from the 4x run unless
  *   --dense-all is given, because it would take tens of minutes and over 1.5 GB).
+ *   Report build: the demo from a cold cache, again with nothing changed, and 20 releases.
+ *   Comparison: a full comparison with attribution of the demo pair, in one thread and with two
+ *   worker threads, and at 16x the demo size, against the 10 s target for the demo pair.
  */
 import { execFileSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
@@ -72,7 +75,7 @@ for (const r of runs) {
 // ---- report build (issue: versioned report) --------------------------------------------------
 interface BuildRun {
   wallMs: number;
-  timingsMs: { calibrate: number; generate: number; site: number; total: number };
+  timingsMs: { calibrate: number; compare: number; generate: number; site: number; total: number };
   pages: number;
   files: number;
   bytes: number;
@@ -81,14 +84,54 @@ interface BuildRun {
 const buildOut = execFileSync(process.execPath, ['--import', 'tsx', here('./bench/build.ts')], { encoding: 'utf8', maxBuffer: 1 << 24 });
 const b = JSON.parse(buildOut.trim().split('\n').pop()!) as { cold: BuildRun; warm: BuildRun; twenty: BuildRun };
 console.log('\nreport build (rungbook build)');
-console.log('case | wall s | calibrate s | pages+figures s | astro s | pages | dist MB | largest page');
+console.log('case | wall s | calibrate s | compare s | pages+figures s | astro s | pages | dist MB | largest page');
 for (const [name, r] of [
   ['demo, cold cache', b.cold],
   ['demo, nothing changed', b.warm],
   ['20 generated releases', b.twenty],
 ] as const) {
   console.log(
-    [name, fmt(r.wallMs / 1000), fmt(r.timingsMs.calibrate / 1000), fmt(r.timingsMs.generate / 1000), fmt(r.timingsMs.site / 1000), r.pages, fmt(r.bytes / 1e6, 2), r.largestPage ? `${r.largestPage.path} (${fmt(r.largestPage.bytes / 1024, 0)} KB)` : '-'].join(' | '),
+    [name, fmt(r.wallMs / 1000), fmt(r.timingsMs.calibrate / 1000), fmt(r.timingsMs.compare / 1000), fmt(r.timingsMs.generate / 1000), fmt(r.timingsMs.site / 1000), r.pages, fmt(r.bytes / 1e6, 2), r.largestPage ? `${r.largestPage.path} (${fmt(r.largestPage.bytes / 1024, 0)} KB)` : '-'].join(' | '),
   );
 }
 console.log(`  rebuild with nothing changed: ${fmt((100 * b.warm.timingsMs.site) / b.warm.wallMs, 0)} % of its time in Astro`);
+
+// ---- release comparison (issue: comparing data releases) --------------------------------------
+interface DiffRun {
+  scale: number;
+  rows: { a: number; b: number };
+  groups: number;
+  hybrids: number;
+  threads: boolean;
+  ms: number;
+  wallMs: number;
+  stages: Record<string, number>;
+  peakRssMb: number;
+}
+/** Target for the demo pair on a 2-core machine (issue). */
+const DIFF_TARGET_MS = 10_000;
+const runDiff = (scale: number, workers: string): DiffRun =>
+  JSON.parse(
+    execFileSync(process.execPath, ['--import', 'tsx', here('./bench/diff.ts'), '--scale', String(scale), '--workers', workers], { encoding: 'utf8', maxBuffer: 1 << 24 })
+      .trim()
+      .split('\n')
+      .pop()!,
+  ) as DiffRun;
+console.log('\nrelease comparison with attribution (rungbook diff 2026.2 -> 2026.3; one process per case)');
+console.log('case | rows a+b | groups | hybrids | threads | comparison s | of 10 s target | peak MB | slowest step');
+const diffRuns: [string, DiffRun][] = [
+  ['demo, in one thread', runDiff(1, '0')],
+  ['demo, 2 worker threads', runDiff(1, '2')],
+  ['16x demo, auto', runDiff(16, 'auto')],
+];
+for (const [name, r] of diffRuns) {
+  const slowest = Object.entries(r.stages).sort((x, y) => y[1] - x[1])[0];
+  console.log(
+    [name, r.rows.a + r.rows.b, r.groups, r.hybrids, r.threads ? 'yes' : 'no', fmt(r.ms / 1000, 2), `${fmt((100 * r.ms) / DIFF_TARGET_MS, 0)} %`, fmt(r.peakRssMb, 0), slowest ? `${slowest[0]} (${fmt(slowest[1] / 1000, 2)} s)` : '-'].join(' | '),
+  );
+}
+const d1 = diffRuns[0]![1];
+const d16 = diffRuns[2]![1];
+const rowRatio = (d16.rows.a + d16.rows.b) / (d1.rows.a + d1.rows.b);
+console.log(`  scaling 1x -> 16x: rows x${fmt(rowRatio, 1)}, time x${fmt(d16.ms / d1.ms, 1)} -> ${fmt(d16.ms / d1.ms / rowRatio, 2)} per row (1.0 = linear)`);
+console.log(`  worker threads at 1x: ${fmt(diffRuns[1]![1].ms / d1.ms, 2)} of the one-thread time (thread start-up included)`);
