@@ -21,6 +21,8 @@ export interface Visit {
   failed: string[];
   outside: string[];
   serious: { id: string; impact: string | null | undefined; nodes: number; help: string }[];
+  /** Every axe-core violation, of any impact, as "rule/impact". */
+  all: string[];
   overflowPx: number;
 }
 
@@ -28,7 +30,7 @@ export async function visit(browser: Browser, server: StaticServer, base: string
   // axe needs a page from a context (not browser.newPage()).
   const context = await browser.newContext({ viewport });
   const page = await context.newPage();
-  const out: Visit = { consoleErrors: [], failed: [], outside: [], serious: [], overflowPx: 0 };
+  const out: Visit = { consoleErrors: [], failed: [], outside: [], serious: [], all: [], overflowPx: 0 };
   page.on('console', (m) => {
     if (m.type() === 'error') out.consoleErrors.push(m.text());
   });
@@ -48,6 +50,7 @@ export async function visit(browser: Browser, server: StaticServer, base: string
   out.serious = axe.violations
     .filter((v) => v.impact === 'serious' || v.impact === 'critical')
     .map((v) => ({ id: v.id, impact: v.impact, nodes: v.nodes.length, help: v.help }));
+  out.all = axe.violations.map((v) => `${v.id}/${v.impact}`);
   out.overflowPx = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
   await page.screenshot({ path: join(ARTIFACTS, `${shot}.png`), fullPage: true });
   await context.close();
