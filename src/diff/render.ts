@@ -3,6 +3,7 @@
  * into an email or a chat, with absolute links to the report). Both read only the DiffReport;
  * JSON output is the report itself. Long lists are capped here (all rows are in the JSON).
  */
+import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';
 import type { ColumnSummary, DiffReport, ParameterShift, SystemShift, TableChange } from './types.ts';
 
@@ -148,7 +149,7 @@ export function renderText(r: DiffReport): string {
     if (t.removed_ids.length) L.push(`    removed: ${t.removed_ids.join(', ')}${t.removed > t.removed_ids.length ? `, ... (${t.removed - t.removed_ids.length} more)` : ''}`);
   }
   const ic = r.input_changes;
-  for (const c of ic.analysis) L.push(`  analysis: ${c.key} ${JSON.stringify(c.a)} -> ${JSON.stringify(c.b)}${!c.set_a ? ' (a: default)' : ''}${!c.set_b ? ' (b: default)' : ''}`);
+  for (const c of ic.analysis) L.push(`  analysis: ${c.key} ${JSON.stringify(c.a)} -> ${JSON.stringify(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}${!c.set_a ? ' (a: default)' : ''}${!c.set_b ? ' (b: default)' : ''}`);
   for (const key of ic.analysis_set_only) L.push(`  analysis: ${key} has the same value, set in release.yaml on one side and left to its default on the other`);
   for (const v of ic.variants) L.push(`  variant ${v.kind}: "${v.name}"${v.kind === 'changed' ? ` ${JSON.stringify(v.a)} -> ${JSON.stringify(v.b)}` : ''}`);
   for (const m of ic.manifest) L.push(`  release.yaml ${m.field}: ${JSON.stringify(m.a)} -> ${JSON.stringify(m.b)}`);
@@ -222,7 +223,7 @@ function largestInputChanges(r: DiffReport): string[] {
     if (t.bytes_only) parts.push('file changed, no values');
     out.push({ weight: t.added + t.removed + t.changed, text: `\`${t.table}\`: ${parts.join('; ')}` });
   }
-  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `\`analysis\`: ${c.key} ${JSON.stringify(c.a)} → ${JSON.stringify(c.b)}` });
+  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `\`analysis\`: ${c.key} ${JSON.stringify(c.a)} → ${JSON.stringify(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}` });
   for (const v of r.input_changes.variants) out.push({ weight: 0, text: `variant ${v.kind}: "${v.name}"` });
   return out.sort((x, y) => y.weight - x.weight).map((x) => x.text);
 }

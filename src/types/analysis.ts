@@ -36,6 +36,28 @@ export interface AnalysisChoices {
 
 export type AnalysisKey = keyof AnalysisChoices;
 
+/** Unit of each analysis choice, as the comments above give it ('' for a pure number or a flag). */
+export const ANALYSIS_UNITS: Readonly<Record<AnalysisKey, string>> = Object.freeze({
+  parallax_zero_point: 'mas',
+  parallax_zero_point_err: 'mas',
+  parallax_floor: 'mas',
+  r_v: '',
+  ms_color_range: 'mag',
+  ms_poly_degree: '',
+  ms_feh_slope: 'mag/dex',
+  wesenheit_r: '',
+  pl_pivot_logp: '',
+  fit_pl_metallicity: '',
+  sn_alpha: '',
+  sn_beta: '',
+  z_min: '',
+  z_max: '',
+  sigma_pec: 'km/s',
+  q0: '',
+  j0: '',
+  clip_sigma: '',
+});
+
 export interface SystematicVariant {
   name: string;
   overrides: Partial<AnalysisChoices>;

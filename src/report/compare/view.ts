@@ -12,6 +12,7 @@ import { renderMarkdown, tableLine } from '../../diff/render.ts';
 import { tableTouched } from '../../diff/inputs.ts';
 import type { DiffReport, ParameterShift, Shift, SystemShift } from '../../diff/types.ts';
 import { analysisValueText, fixed, int, sig } from '../format.ts';
+import { ANALYSIS_UNITS, type AnalysisKey } from '../../types/analysis.ts';
 import { tableView } from '../tables.ts';
 import type { ComparisonView, KeyValue, MethodText, RowMark, TableView } from '../types.ts';
 import { GROUP_TITLE, sigmaText, signedText, STATUS_TEXT } from './words.ts';
@@ -82,10 +83,15 @@ function contributionsText(r: DiffReport): string | null {
   return `What moved it: ${parts.join(', ')}${rest} ${H0_UNIT}${cancelling ? ', partly cancelling' : ''}.`;
 }
 
+/** " mas" after a value of an analysis choice that has a unit, else "". */
+function unitOf(key: AnalysisKey): string {
+  return ANALYSIS_UNITS[key] ? ` ${ANALYSIS_UNITS[key]}` : '';
+}
+
 function largestInputs(r: DiffReport): string[] {
   const out: { weight: number; text: string }[] = [];
   for (const t of r.inputs.filter(tableTouched)) out.push({ weight: t.added + t.removed + t.changed + (t.column_changes.length ? 1e6 : 0), text: tableLine(t).replaceAll(' -> ', ' → ') });
-  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `release.yaml: ${c.key} ${analysisValueText(c.a)} → ${analysisValueText(c.b)}` });
+  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `release.yaml: ${c.key} ${analysisValueText(c.a)} → ${analysisValueText(c.b)}${unitOf(c.key)}` });
   return out.sort((x, y) => y.weight - x.weight).slice(0, OPENING_INPUTS_MAX).map((x) => x.text);
 }
 
@@ -245,10 +251,11 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
         'Analysis choices (release.yaml)',
         [
           ['key', 'Key', null, false],
+          ['unit', 'Unit', null, false],
           ['a', `In ${r.a}`, null, false],
           ['b', `In ${r.b}`, null, false],
         ],
-        ic.analysis.map((c) => [c.key, `${analysisValueText(c.a)}${c.set_a ? '' : ' (default)'}`, `${analysisValueText(c.b)}${c.set_b ? '' : ' (default)'}`]),
+        ic.analysis.map((c) => [c.key, unitOf(c.key).trim() || '—', `${analysisValueText(c.a)}${c.set_a ? '' : ' (default)'}`, `${analysisValueText(c.b)}${c.set_b ? '' : ' (default)'}`]),
       )
     : null;
   const other: string[] = [
