@@ -106,6 +106,16 @@ describe('the blinded release in the built report', () => {
     expect(leaks(files, site.dist, trueValues().flatMap(forms))).toEqual([]);
   });
 
+  it('publishes nowhere the true Hubble-flow intercept a_B, from which H0 follows (3 to 5 decimals, full precision)', () => {
+    // a_B = log10 H0 - 0.2 M_B - 5 for the fitted M_B: with M_B (shown) it would give H0 away.
+    const aB = unblinded.parameters.a_B!.value;
+    const files = listFilesSync(site.dist).filter((f) => f.startsWith(`releases/${BLINDED}/`) && TEXT_FILE.test(f));
+    const tokens = [...new Set([3, 4, 5].map((p) => aB.toFixed(p)).concat(String(aB)))];
+    expect(leaks(files, site.dist, tokens)).toEqual([]);
+    // and the same search finds it in the unblinded copy's downloads
+    expect(leaks([`releases/${BLINDED}/downloads/results.json`], unblindedSite.dist, tokens)).not.toEqual([]);
+  });
+
   it('publishes it nowhere in the pages shared by all releases, apart from other releases\' own values', () => {
     const shared = listFilesSync(site.dist).filter((f) => !f.startsWith('releases/') && !f.startsWith('_astro/') && TEXT_FILE.test(f));
     expect(shared).toContain('index.html');
