@@ -218,23 +218,28 @@ export function reduceNormal(ne: NormalEquations, p: number, keep: number[], nam
   const fOO = new Float64Array(o * o);
   for (let a = 0; a < o; a++) for (let b = 0; b < o; b++) fOO[a * o + b] = ne.f[other[a] * p + other[b]];
   const l = choleskyFlat(fOO, o, other.map((j) => names[j]));
+  const lt = transposeFlat(l, o);
   // Z = F_OO^-1 [F_OK | b_O]
   const cols: Float64Array[] = [];
   for (let c = 0; c <= k; c++) {
     const rhs = new Float64Array(o);
     for (let a = 0; a < o; a++) rhs[a] = c < k ? ne.f[other[a] * p + keep[c]] : ne.b[other[a]];
-    cols.push(solveWithFactor(l, o, rhs));
+    cols.push(solveWithFactors(l, lt, o, rhs));
   }
   const f = new Float64Array(k * k);
   const b = new Float64Array(k);
+  const fKO = new Float64Array(o); // row keep[i] of F restricted to `other`, gathered once
   for (let i = 0; i < k; i++) {
+    for (let a = 0; a < o; a++) fKO[a] = ne.f[keep[i] * p + other[a]];
     for (let j = 0; j < k; j++) {
       let s = ne.f[keep[i] * p + keep[j]];
-      for (let a = 0; a < o; a++) s -= ne.f[keep[i] * p + other[a]] * cols[j][a];
+      const z = cols[j];
+      for (let a = 0; a < o; a++) s -= fKO[a] * z[a];
       f[i * k + j] = s;
     }
     let sb = ne.b[keep[i]];
-    for (let a = 0; a < o; a++) sb -= ne.f[keep[i] * p + other[a]] * cols[k][a];
+    const zb = cols[k];
+    for (let a = 0; a < o; a++) sb -= fKO[a] * zb[a];
     b[i] = sb;
   }
   let c = ne.c;
@@ -305,17 +310,35 @@ export function choleskyFlat(a: Float64Array, p: number, names?: string[]): Floa
 }
 
 export function solveWithFactor(l: Float64Array, p: number, b: ArrayLike<number>): Float64Array {
+  return solveWithFactors(l, transposeFlat(l, p), p, b);
+}
+
+/** The transpose of a flat p x p matrix. */
+export function transposeFlat(a: Float64Array, p: number): Float64Array {
+  const t = new Float64Array(p * p);
+  for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) t[j * p + i] = a[i * p + j];
+  return t;
+}
+
+/**
+ * Solve L L^T x = b given L and its transpose: both substitutions then run along rows
+ * (contiguous memory), which matters for p in the hundreds; the arithmetic, and so the
+ * result, is the same as with L alone. Pass the same transpose to many solves.
+ */
+export function solveWithFactors(l: Float64Array, lt: Float64Array, p: number, b: ArrayLike<number>): Float64Array {
   const z = new Float64Array(p);
   for (let i = 0; i < p; i++) {
     let s = b[i];
-    for (let t = 0; t < i; t++) s -= l[i * p + t] * z[t];
-    z[i] = s / l[i * p + i];
+    const row = i * p;
+    for (let t = 0; t < i; t++) s -= l[row + t] * z[t];
+    z[i] = s / l[row + i];
   }
   const x = new Float64Array(p);
   for (let i = p - 1; i >= 0; i--) {
     let s = z[i];
-    for (let t = i + 1; t < p; t++) s -= l[t * p + i] * x[t];
-    x[i] = s / l[i * p + i];
+    const row = i * p;
+    for (let t = i + 1; t < p; t++) s -= lt[row + t] * x[t];
+    x[i] = s / l[row + i];
   }
   return x;
 }
@@ -325,20 +348,28 @@ export function solveWithFactor(l: Float64Array, p: number, b: ArrayLike<number>
  * then F^-1 = L^-T L^-1 (p^3/6).
  */
 export function inverseFromFactor(l: Float64Array, p: number): Float64Array {
-  const li = new Float64Array(p * p);
+  // Column j of X = L^-1 by forward substitution, stored as row j of xt (xt = X^T), so that
+  // every inner loop below walks memory in order; same operations in the same order as the
+  // textbook column-wise form.
+  const xt = new Float64Array(p * p);
   for (let j = 0; j < p; j++) {
-    li[j * p + j] = 1 / l[j * p + j];
+    const col = j * p;
+    xt[col + j] = 1 / l[j * p + j];
     for (let i = j + 1; i < p; i++) {
+      const row = i * p;
       let s = 0;
-      for (let t = j; t < i; t++) s -= l[i * p + t] * li[t * p + j];
-      li[i * p + j] = s / l[i * p + i];
+      for (let t = j; t < i; t++) s -= l[row + t] * xt[col + t];
+      xt[col + i] = s / l[row + i];
     }
   }
+  // F^-1 = X^T X: (i, j) is the dot product of columns i and j of X, rows t >= max(i, j).
   const inv = new Float64Array(p * p);
   for (let i = 0; i < p; i++) {
+    const ci = i * p;
     for (let j = 0; j <= i; j++) {
+      const cj = j * p;
       let s = 0;
-      for (let t = i; t < p; t++) s += li[t * p + i] * li[t * p + j];
+      for (let t = i; t < p; t++) s += xt[ci + t] * xt[cj + t];
       inv[i * p + j] = s;
       inv[j * p + i] = s;
     }
