@@ -51,14 +51,35 @@ function unitSuffix(unit: string | null): string {
   return unit ? ` ${unit}` : '';
 }
 
+/** Plain ids that no Markdown reader turns into markup or a link (letters, digits, . - and inner _). */
+const MARKDOWN_SAFE_TEXT = /^[A-Za-z0-9](?:[A-Za-z0-9.-]|(?<=[A-Za-z0-9])_(?=[A-Za-z0-9]))*$/;
+
+/**
+ * Text from the data (row ids, column names, units, variant names) for the Markdown message: kept
+ * as it is when it is a plain id, otherwise put in a code span, where no link, image, raw HTML,
+ * emphasis or automatic link is recognised (CommonMark, GFM). A code span's fence is longer than
+ * any run of backticks inside, and padded with a space when the text begins or ends with one.
+ * So a pasted message never carries a link, image or markup that the data put there.
+ */
+export function mdData(text: string): string {
+  const flat = text.replace(/[\r\n\t]+/g, ' ');
+  if (MARKDOWN_SAFE_TEXT.test(flat) && !/www\./i.test(flat)) return flat;
+  const longest = Math.max(0, ...Array.from(flat.matchAll(/`+/g), (m) => m[0].length));
+  const fence = '`'.repeat(longest + 1);
+  const pad = /^[` ]|[` ]$/.test(flat) ? ' ' : '';
+  return `${fence}${pad}${flat}${pad}${fence}`;
+}
+
 function sigmaText(x: number | null): string {
   return x === null ? '—' : `${signed(x, 1)} sigma`;
 }
 
-export function columnLine(t: TableChange, c: ColumnSummary): string {
-  let s = `${c.column}: ${c.changed} ${t.noun} changed`;
+/** One column's summary; `data` formats the names and ids taken from the files (default: as they are). */
+export function columnLine(t: TableChange, c: ColumnSummary, data: (text: string) => string = (x) => x): string {
+  const unit = c.unit ? ` ${data(c.unit)}` : '';
+  let s = `${data(c.column)}: ${c.changed} ${t.noun} changed`;
   if (c.median !== null && c.largest !== null) {
-    s += `, median ${signedSig(c.median)}${unitSuffix(c.unit)}, largest ${signedSig(c.largest)}${unitSuffix(c.unit)} (${c.largest_id})`;
+    s += `, median ${signedSig(c.median)}${unit}, largest ${signedSig(c.largest)}${unit}${c.largest_id === null ? '' : ` (${data(c.largest_id)})`}`;
   }
   if (c.appeared) s += `, ${c.appeared} gained a value`;
   if (c.disappeared) s += `, ${c.disappeared} lost their value`;
@@ -218,13 +239,13 @@ function largestInputChanges(r: DiffReport): string[] {
     if (t.added) parts.push(`${t.added} added`);
     if (t.removed) parts.push(`${t.removed} removed`);
     const col = [...t.columns].sort((x, y) => y.changed - x.changed)[0];
-    if (col) parts.push(columnLine(t, col));
-    for (const c of t.column_changes) parts.push(c.detail);
+    if (col) parts.push(columnLine(t, col, mdData));
+    for (const c of t.column_changes) parts.push(mdData(c.detail));
     if (t.bytes_only) parts.push('file changed, no values');
     out.push({ weight: t.added + t.removed + t.changed, text: `\`${t.table}\`: ${parts.join('; ')}` });
   }
   for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `\`analysis\`: ${c.key} ${JSON.stringify(c.a)} → ${JSON.stringify(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}` });
-  for (const v of r.input_changes.variants) out.push({ weight: 0, text: `variant ${v.kind}: "${v.name}"` });
+  for (const v of r.input_changes.variants) out.push({ weight: 0, text: `variant ${v.kind}: ${mdData(v.name)}` });
   return out.sort((x, y) => y.weight - x.weight).map((x) => x.text);
 }
 
@@ -232,7 +253,7 @@ function largestInputChanges(r: DiffReport): string[] {
 export function renderMarkdown(r: DiffReport): string {
   const L: string[] = [];
   const h = r.h0;
-  const title = `Release ${r.b} compared with ${r.a}`;
+  const title = `Release ${mdData(r.b)} compared with ${mdData(r.a)}`;
   if (r.identical) {
     L.push(`**${title}: identical inputs and analysis choices; nothing changed.**`);
   } else if (!h) {
@@ -258,7 +279,7 @@ export function renderMarkdown(r: DiffReport): string {
     for (const e of top) L.push(`- ${GROUP_LABEL[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
     const objs = r.top_objects.slice(0, MARKDOWN_OBJECTS_MAX);
     if (objs.length) {
-      L.push(`- largest single rows: ${objs.map((o) => `${o.level === 'system' ? `${o.id} (${o.rows} rows)` : o.id} ${signed(o.delta_h0, 3)}`).join(', ')}`);
+      L.push(`- largest single rows: ${objs.map((o) => `${o.level === 'system' ? `${mdData(o.id)} (${o.rows} rows)` : mdData(o.id)} ${signed(o.delta_h0, 3)}`).join(', ')}`);
     }
   } else if (r.attribution_note && !r.identical && h && h.delta !== null) {
     L.push('');
