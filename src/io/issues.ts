@@ -43,7 +43,8 @@ export function shown(value: unknown): string {
   if (value === undefined) return 'nothing';
   if (typeof value === 'string') {
     const s = value.length > 60 ? value.slice(0, 57) + '...' : value;
-    return JSON.stringify(s);
+    // JSON escapes C0 controls; C1 controls (U+0080-U+009F) too, so a message never carries one
+    return JSON.stringify(s).replace(/[\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
   }
   if (value instanceof Date) return value.toISOString();
   if (Array.isArray(value)) return `a list of ${value.length}`;

@@ -20,7 +20,7 @@ import type { ReleaseManifest } from '../types/release.ts';
 import type { Problem } from './issues.ts';
 import { shown } from './issues.ts';
 import { nearest } from './suggest.ts';
-import { decodeUtf8 } from './text.ts';
+import { CONTROL_CHARACTER, decodeUtf8 } from './text.ts';
 import { yamlProblemText } from './yaml-errors.ts';
 
 export interface ManifestRead {
@@ -210,6 +210,7 @@ export function parseManifest(text: string, folderName: string): ManifestRead {
   else {
     const value = jsOf(titlePair.value);
     if (typeof value !== 'string' || value.trim() === '') bad('title', 'bad-title', 'the title must be non-empty text', 'text', shown(value), 'put the title in quotes');
+    else if (CONTROL_CHARACTER.test(value.trim())) bad('title', 'control-character', 'the title holds a control character', 'printable text on one line', shown(value));
     else title = value;
   }
 
@@ -320,6 +321,9 @@ function readAnalysis(map: YAMLMap, result: ManifestRead, lineOf: (n: unknown, f
         if (typeof value !== 'string' || value.trim() === '') {
           ok = false;
           problems.push({ code: 'bad-variant-name', line: lineOf(pair.value, keyLine), column: `${where}.name`, message: 'a variant name must be non-empty text', expected: 'text', found: shown(value) });
+        } else if (CONTROL_CHARACTER.test(value)) {
+          ok = false;
+          problems.push({ code: 'control-character', line: lineOf(pair.value, keyLine), column: `${where}.name`, message: 'a variant name holds a control character', expected: 'printable text on one line', found: shown(value) });
         } else {
           const first = names.get(value);
           if (first !== undefined) {

@@ -75,3 +75,9 @@ export function lineAtOffset(newlines: readonly number[], offset: number): numbe
 export function sha256Hex(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
 }
+
+/**
+ * C0 and C1 control characters and DEL. In an id, a name or a title they are a data error (often a
+ * stray escape from another tool) and, printed, they would drive the reader's terminal.
+ */
+export const CONTROL_CHARACTER = /[\u0000-\u001f\u007f-\u009f]/;

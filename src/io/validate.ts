@@ -10,6 +10,7 @@ import type { RawColumn, RawTable } from './raw-table.ts';
 import type { ColumnSpec, TableSpec } from './schema.ts';
 import { nearest } from './suggest.ts';
 import { checkUnit } from './units.ts';
+import { CONTROL_CHARACTER } from './text.ts';
 
 export interface ValidatedTable<Row> {
   /** Rows that passed every check (all of them when `problems` is empty). */
@@ -63,6 +64,13 @@ function readNumberCell(text: string, column: RawColumn, spec: ColumnSpec, conve
 }
 
 function readTextCell(cell: string, spec: ColumnSpec): CellResult {
+  const control = CONTROL_CHARACTER.exec(cell);
+  if (control) {
+    const code = control[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, '0');
+    return {
+      problem: { code: 'control-character', message: `the text holds the control character U+${code}; ids and names must be printable text`, expected: 'printable text', found: shown(cell) },
+    };
+  }
   if (spec.oneOf && !spec.oneOf.includes(cell)) {
     const list = spec.oneOf.length > 1 ? `${spec.oneOf.slice(0, -1).join(', ')} or ${spec.oneOf.at(-1)}` : spec.oneOf[0];
     return { problem: { code: 'not-allowed', message: 'the value is not one of the allowed ones', expected: list, found: shown(cell) } };

@@ -169,6 +169,19 @@ describe('text columns', () => {
     }
   });
 
+  test('an id holding a control character (a terminal escape, DEL, a C1 control) is refused, shown escaped', () => {
+    // Common practice, no source: control characters are never part of an id, and printed they drive the terminal.
+    for (const [bad, code] of [['alder\u001b[31m', '001B'], ['al\u007fder', '007F'], ['alder\u009b2J', '009B']] as const) {
+      const def = edited((d) => setCell(d, 'systems', 0, 'system', bad));
+      const dir = writeRelease(def);
+      const issue = onlyIssue(issuesOf(dir), 'control-character');
+      expect(issue).toMatchObject({ file: join(dir, 'systems.ecsv'), line: rowLine(def, dir, 'systems', 0), column: 'system', expected: 'printable text' });
+      expect(issue.message).toContain(`U+${code}`);
+      // the message itself carries no control character
+      expect(/[\u0000-\u001f\u007f-\u009f]/.test(`${issue.message} ${issue.found}`)).toBe(false);
+    }
+  });
+
   test('a text column declared numeric, and a numeric column declared text', () => {
     const def = edited((d) => {
       d.tables.parallax!.columns.find((c) => c.name === 'star')!.datatype = 'int64';
