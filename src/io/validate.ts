@@ -104,6 +104,8 @@ function checkColumns(raw: RawTable, spec: TableSpec<unknown>, problems: Problem
     const first = index.get(c.name);
     if (c.name === '') {
       problems.push({ code: 'empty-column-name', line: c.line, message: `column ${i + 1} has no name`, expected: 'a column name', found: 'an empty name' });
+    } else if (CONTROL_CHARACTER.test(c.name)) {
+      problems.push({ code: 'control-character', line: c.line, message: `the name of column ${i + 1} holds a control character`, expected: 'printable text', found: shown(c.name) });
     } else if (first !== undefined) {
       problems.push({
         code: 'duplicate-column',

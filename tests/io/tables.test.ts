@@ -286,6 +286,15 @@ describe('column names', () => {
     ]);
   });
 
+  test('a column name holding a control character (plain CSV)', () => {
+    const dir = writeRelease(validRelease(), { formats: { main_sequence: 'csv' } });
+    const path = join(dir, 'main_sequence.csv');
+    const text = readFileSync(path, 'utf8').replace('star,system,color,color_err,mag,mag_err', 'star,system,color,color_err,mag,mag_err,note\u001b[0m');
+    writeFileSync(path, text.replace(/^(a-101.*)$/m, '$1,x').replace(/^(b-101.*)$/m, '$1,y'));
+    const issue = onlyIssue(issuesOf(dir), 'control-character');
+    expect(issue).toMatchObject({ file: path, line: 1, message: 'the name of column 7 holds a control character', found: '"note\\u001b[0m"' });
+  });
+
   test('an ECSV unit that is not text', () => {
     const dir = writeRelease(validRelease());
     const path = join(dir, 'cepheids.ecsv');
