@@ -100,7 +100,7 @@ export function buildOverlays(
   return [
     {
       id: 'pl-relation',
-      title: 'Period-luminosity relation, both releases',
+      title: 'Period–luminosity relation, both releases',
       x_label: 'log10 period (days)',
       y_label: 'absolute Wesenheit magnitude W - mu (mag)',
       x_log: false,

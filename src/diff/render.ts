@@ -5,7 +5,7 @@
  */
 import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';
-import type { ColumnSummary, DiffReport, ParameterShift, SystemShift, TableChange } from './types.ts';
+import type { AttributionEntry, ColumnSummary, DiffReport, ParameterShift, SystemShift, TableChange } from './types.ts';
 
 /** Changed cells listed in text output (all of them are in the JSON). */
 export const TEXT_CELLS_MAX = 25;
@@ -47,8 +47,18 @@ function plain(x: number | string | null): string {
   return String(x);
 }
 
-function unitSuffix(unit: string | null): string {
+/** " mas" after a value whose unit is "mas"; nothing without a unit. */
+export function unitSuffix(unit: string | null): string {
   return unit ? ` ${unit}` : '';
+}
+
+/**
+ * The groups that differ, largest contribution first, and whether they pull in opposite
+ * directions: then shares of the total (270 % and -170 %) read as errors and are not given.
+ */
+export function rankedContributions(r: Pick<DiffReport, 'attribution'>): { moving: AttributionEntry[]; cancelling: boolean } {
+  const moving = r.attribution.filter((e) => e.differs).sort((x, y) => Math.abs(y.delta_h0) - Math.abs(x.delta_h0));
+  return { moving, cancelling: moving.some((e) => Math.sign(e.delta_h0) !== Math.sign(moving[0]!.delta_h0)) };
 }
 
 /** Plain ids that no Markdown reader turns into markup or a link (letters, digits, . - and inner _). */
@@ -270,11 +280,10 @@ export function renderMarkdown(r: DiffReport): string {
         : ` (BLINDED alike: values hidden; a shift of blinded values, i.e. the true shift times the common hidden factor; ratio b/a = ${h.ratio?.toFixed(5)})`;
     L.push(`**${title}: H0 moved by ${signed(h.delta, 2)} km/s/Mpc**${values}, ${sig}.${h.flagged ? ' Flagged.' : ''}`);
   }
-  const top = r.attribution.filter((e) => e.differs).sort((x, y) => Math.abs(y.delta_h0) - Math.abs(x.delta_h0)).slice(0, MARKDOWN_CONTRIBUTIONS_MAX);
+  const { moving, cancelling } = rankedContributions(r);
+  const top = moving.slice(0, MARKDOWN_CONTRIBUTIONS_MAX);
   if (top.length && h && h.delta !== null) {
     L.push('');
-    // shares of the total read as errors when contributions pull opposite ways (270 % and -170 %)
-    const cancelling = top.some((e) => Math.sign(e.delta_h0) !== Math.sign(top[0]!.delta_h0));
     L.push(cancelling ? 'What moved it (partly cancelling):' : 'What moved it:');
     for (const e of top) L.push(`- ${GROUP_LABEL[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
     const objs = r.top_objects.slice(0, MARKDOWN_OBJECTS_MAX);
@@ -296,7 +305,8 @@ export function renderMarkdown(r: DiffReport): string {
     L.push('');
     L.push(`Parameters shifted by more than ${r.flag_threshold_sigma} σ of the difference: ${flagged.join(', ')}.`);
   }
-  if (r.blinding.a || r.blinding.b) {
+  // a withheld shift already says why in the headline
+  if ((r.blinding.a || r.blinding.b) && !(h && h.delta === null)) {
     L.push('');
     L.push(`BLINDED: ${r.blinding.note}.`);
   }

@@ -14,7 +14,7 @@ import { mkdir, readFile, readdir, rm, stat, writeFile } from 'node:fs/promises'
 import { isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { buildLinks, linksFor } from '../diff/links.ts';
-import type { DiffReport } from '../diff/types.ts';
+import { DIFF_SCHEMA, type DiffReport } from '../diff/types.ts';
 import { compareResults } from '../publish/drift.ts';
 import { readPublishedRecord, verifyPublishedFolder } from '../publish/record.ts';
 import { InputError } from '../types/issues.ts';
@@ -149,6 +149,34 @@ function checkResults(r: Results, dir: string): void {
   }
 }
 
+/**
+ * A JSON result from the cache folder (file named by the hash of all it was made from) when it
+ * is there and readable with the expected schema; else computed. A new entry is written only if
+ * the whole build succeeds (a failed build leaves the cache as it was).
+ */
+async function cachedJson<T extends { schema: string }>(
+  cacheDir: string | null,
+  file: () => Promise<string>,
+  schema: string,
+  compute: () => Promise<T>,
+  work: WorkState,
+): Promise<{ value: T; cached: boolean }> {
+  if (cacheDir === null) return { value: await compute(), cached: false };
+  const path = join(cacheDir, await file());
+  const hit = await readIfExists(path);
+  if (hit !== null) {
+    try {
+      const value = JSON.parse(hit) as T;
+      if (value.schema === schema) return { value, cached: true };
+    } catch {
+      // unreadable cache entry: compute again
+    }
+  }
+  const value = await compute();
+  work.later(path, `${JSON.stringify(value)}\n`);
+  return { value, cached: false };
+}
+
 async function calibrateCached(
   dir: string,
   calibrate: BuildReportOptions['calibrate'],
@@ -156,22 +184,9 @@ async function calibrateCached(
   codeHash: string,
   work: WorkState,
 ): Promise<{ results: Results; cached: boolean }> {
-  if (cacheDir === null) return { results: await calibrate(dir), cached: false };
-  const key = sha256('rungbook.results-cache/1', codeHash, await hashTree(dir));
-  const file = join(cacheDir, `${key}.json`);
-  const hit = await readIfExists(file);
-  if (hit !== null) {
-    try {
-      const results = JSON.parse(hit) as Results;
-      if (results.schema === RESULTS_SCHEMA) return { results, cached: true };
-    } catch {
-      // unreadable cache entry: calibrate again
-    }
-  }
-  const results = await calibrate(dir);
-  // Written only if the whole build succeeds (a failed build leaves the cache as it was).
-  work.later(file, `${JSON.stringify(results)}\n`);
-  return { results, cached: false };
+  const file = async () => `${sha256('rungbook.results-cache/1', codeHash, await hashTree(dir))}.json`;
+  const { value, cached } = await cachedJson(cacheDir, file, RESULTS_SCHEMA, () => calibrate(dir), work);
+  return { results: value, cached };
 }
 
 async function compareCached(
@@ -182,21 +197,9 @@ async function compareCached(
   codeHash: string,
   work: WorkState,
 ): Promise<{ report: DiffReport; cached: boolean }> {
-  if (cacheDir === null) return { report: await compare(dirA, dirB), cached: false };
-  const key = sha256('rungbook.compare-cache/1', codeHash, await hashTree(dirA), await hashTree(dirB));
-  const file = join(cacheDir, `compare-${key}.json`);
-  const hit = await readIfExists(file);
-  if (hit !== null) {
-    try {
-      const report = JSON.parse(hit) as DiffReport;
-      if (report.schema === 'rungbook.diff/1') return { report, cached: true };
-    } catch {
-      // unreadable cache entry: compare again
-    }
-  }
-  const report = await compare(dirA, dirB);
-  work.later(file, `${JSON.stringify(report)}\n`);
-  return { report, cached: false };
+  const file = async () => `compare-${sha256('rungbook.compare-cache/1', codeHash, await hashTree(dirA), await hashTree(dirB))}.json`;
+  const { value, cached } = await cachedJson(cacheDir, file, DIFF_SCHEMA, () => compare(dirA, dirB), work);
+  return { report: value, cached };
 }
 
 /** Keep a release's generated files when what they were made from is unchanged. */
@@ -208,7 +211,7 @@ async function generateReleaseCached(
   published: PublishedView | null,
   reportHash: string,
   figures: readonly ReleaseFigure[],
-  comparison: { report: DiffReport; aBuilt: boolean } | null,
+  comparison: DiffReport | null,
   next: PageLink[],
 ): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
   const id = results.release.id;
@@ -334,6 +337,8 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
   const cacheDir = opts.cacheDir === null ? null : abs(opts.cacheDir ?? join(REPO_ROOT, '.cache', 'results'));
   const methodsDir = abs(opts.methodsDir ?? join(REPO_ROOT, 'content', 'methods'));
   const figures = opts.figures ?? RELEASE_FIGURES;
+  // Origin of absolute links (figure previews, the messages to paste); as astro.config.mjs defaults it.
+  const siteUrl = opts.site ?? 'http://localhost/';
   const progress = createProgress(opts.progress === true, opts.progressStream);
   const layout = genLayout(join(workDir, 'gen'));
 
@@ -386,7 +391,7 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
 
     // 2. Each release against its previous one, when both are in this report.
     const dirOf = new Map(calibrated.map((c) => [c.results.release.id, c.dir]));
-    const comparisons = new Map<string, { report: DiffReport; aBuilt: boolean }>();
+    const comparisons = new Map<string, DiffReport>();
     const compared: BuildSummary['comparisons'] = [];
     const compare = opts.compare === null ? null : (opts.compare ?? (await defaultCompare()));
     if (compare !== null) {
@@ -404,8 +409,7 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
           throw new ReportBuildError(`comparison of release ${b} with ${a} failed: ${messageOf(e)}`, null, { cause: e });
         }
         // Links for this report's address (the cached comparison carries none).
-        const report: DiffReport = { ...out.report, links: linksFor(out.report, buildLinks(opts.site ?? 'http://localhost/', opts.base, a, b, a)) };
-        comparisons.set(b, { report, aBuilt: true });
+        comparisons.set(b, { ...out.report, links: linksFor(out.report, buildLinks(siteUrl, opts.base, a, b, a)) });
         compared.push({ a, b, cached: out.cached });
         if (out.cached) progress.step('  (cached comparison)');
       }
@@ -456,7 +460,7 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
         genDir: layout.root,
         methodsDir,
         base: normaliseBase(opts.base),
-        site: opts.site ?? 'http://localhost/',
+        site: siteUrl,
         verify: async (dir) => {
           try {
             await verifySite(dir);

@@ -23,7 +23,7 @@ import { headline, releaseData, releasePath } from './pageData.ts';
 import { svgToPng } from './png.ts';
 import { notesTree, summaryTree, toMdx } from './prose.ts';
 import { resultTables } from './resultTables.ts';
-import { type ComparisonView, type DownloadLink, type FigureRef, GENERATED_MARK, type PageLink, type PublishedView, type ReleaseData, type ReleaseSummary, type SiteData } from './types.ts';
+import { type ComparisonView, type DownloadLink, type FigureRef, GENERATED_MARK, type PageLink, type PublishedView, type ReleaseSummary, type SiteData } from './types.ts';
 
 /** One figure of a release: its stable id and the function that draws it (null: its rung has no data). */
 export type ReleaseFigure = (typeof RELEASE_FIGURES)[number];
@@ -84,9 +84,8 @@ export interface ReleaseGenInput {
   previousBuilt: boolean;
   /** The publication record's notice, when the release is published (its results are then the published ones). */
   published?: PublishedView | null;
-  /** The comparison with the previous release (links already set for this report), or why there is none. */
-  comparison?: { report: DiffReport; aBuilt: boolean } | null;
-  comparisonState?: ReleaseData['comparisonState'];
+  /** The comparison with the previous release (links already set for this report), or null. */
+  comparison?: DiffReport | null;
   /** Comparison pages of later releases that compare themselves with this one. */
   next?: PageLink[];
 }
@@ -110,12 +109,12 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
   let comparison: ComparisonView | null = null;
   if (input.comparison) {
     const ids: string[] = [];
-    for (const spec of comparisonFigures(input.comparison.report)) {
+    for (const spec of comparisonFigures(input.comparison)) {
       if (figures[spec.id]) throw new Error(`comparison figure ${spec.id} has the id of a release figure`);
       figures[spec.id] = await writeFigure(layout, releasePath(id, 'figures/'), spec);
       ids.push(spec.id);
     }
-    comparison = comparisonView({ report: input.comparison.report, aBuilt: input.comparison.aBuilt, figures: ids });
+    comparison = comparisonView(input.comparison, ids);
   }
 
   // Downloads: results.json and every result table as CSV and ECSV.
@@ -158,7 +157,6 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     previousBuilt: input.previousBuilt,
     published: input.published ?? null,
     comparison,
-    comparisonState: comparison ? 'shown' : (input.comparisonState ?? (r.release.previous === null ? 'first' : input.previousBuilt ? 'not-computed' : 'previous-missing')),
     next: input.next ?? [],
   });
   const { generated: _mark, ...rest } = data;

@@ -49,9 +49,8 @@ export interface PageInputs {
   previousBuilt: boolean;
   /** Publication notice of a published release (its results are the published ones). */
   published?: PublishedView | null;
-  /** The comparison page's content, or null (comparisonState says why). */
+  /** The comparison page's content, or null (ReleaseData.comparisonState says why). */
   comparison?: ComparisonView | null;
-  comparisonState?: ReleaseData['comparisonState'];
   /** Comparison pages of later releases that compare themselves with this one. */
   next?: PageLink[];
 }
@@ -582,7 +581,7 @@ export function releaseData(p: PageInputs): ReleaseData {
     notesProse: p.notesProse,
     changes: { text: p.comparison ? changesParagraph(p.comparison) : null, page: releasePath(id, 'compare/') },
     comparison: p.comparison ?? null,
-    comparisonState: p.comparisonState ?? (p.comparison ? 'shown' : r.release.previous === null ? 'first' : p.previousBuilt ? 'not-computed' : 'previous-missing'),
+    comparisonState: p.comparison ? 'shown' : r.release.previous === null ? 'first' : p.previousBuilt ? 'not-computed' : 'previous-missing',
     next: p.next ?? [],
     checks: checks(r),
     fit: globalFit(r, p).keyValues,

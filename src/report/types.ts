@@ -218,7 +218,7 @@ export interface MethodText {
 
 /** The comparison of a release with its previous one, formatted for the comparison page. */
 export interface ComparisonView {
-  a: { id: string; title: string; date: string; built: boolean };
+  a: { id: string; title: string; date: string };
   b: { id: string; title: string; date: string };
   /** Nothing differs between the releases. */
   identical: boolean;

@@ -11,7 +11,7 @@ import * as Plot from '@observablehq/plot';
 import { compareFigureId, figuresDrawn, type CompareFigure } from '../../diff/links.ts';
 import type { DiffReport, Overlay, OverlayPoint } from '../../diff/types.ts';
 import { distanceTickText, fixed, int } from '../format.ts';
-import { blindedStamp, clip, col, type FigureSpec, GREY, INK, legend, type LegendItem, LIGHT, r5, renderSvg, thin } from '../figures/plotting.ts';
+import { blindedStamp, clip, col, FIGURE_WIDTH, type FigureSpec, GREY, INK, legend, type LegendItem, LIGHT, r5, renderSvg, thin } from '../figures/plotting.ts';
 import { GROUP_TITLE, signedText } from './words.ts';
 
 /** All drawn figures of a comparison, in the page's order. */
@@ -62,7 +62,7 @@ function waterfall(r: DiffReport): FigureSpec | null {
     { label: 'total shift', kind: 'band', fill: LIGHT },
   ];
   if (sigma !== null && sigma > 0) items.push({ label: '± σ of the difference', kind: 'line', width: 1.5 });
-  const leg = legend(items, 640, 170);
+  const leg = legend(items, FIGURE_WIDTH, 170);
   const marks: Plot.Markish[] = [
     Plot.gridX({ stroke: GREY, strokeOpacity: 0.2 }),
     Plot.ruleX([origin], { stroke: INK, strokeDasharray: '4,3' }),
@@ -138,12 +138,6 @@ const AXIS: Record<Overlay['id'], { x: string; y: string }> = {
   'ladder-diagram': { x: 'Distance (log scale)', y: '' },
 };
 
-const TITLE: Record<Overlay['id'], string> = {
-  'pl-relation': 'Period–luminosity relation, both releases',
-  'hubble-diagram': 'Hubble diagram, both releases',
-  'ladder-diagram': 'Distance ladder, both releases',
-};
-
 function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): FigureSpec | null {
   const id = compareFigureId(figure);
   const all: Drawn[] = [...o.a.points.map((p) => ({ side: 'a' as const, p })), ...o.b.points.map((p) => ({ side: 'b' as const, p }))];
@@ -179,11 +173,11 @@ function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): Figure
   }
   if (o.blinded) marks.push(blindedStamp());
   const marginLeft = ladder ? 110 : 60;
-  const leg = legend(items, 640, marginLeft);
+  const leg = legend(items, FIGURE_WIDTH, marginLeft);
   marks.push(...leg.marks);
   const out = renderSvg({
     id,
-    label: TITLE[o.id],
+    label: o.title,
     height: (ladder ? 300 : 420) + leg.marginTop,
     marginTop: leg.marginTop,
     marginLeft,
@@ -199,7 +193,7 @@ function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): Figure
   const thinned = [ta.note && `release ${r.a}: ${ta.note}`, tb.note && `release ${r.b}: ${tb.note}`].filter(Boolean).join(' ') || null;
   return {
     id,
-    title: TITLE[o.id],
+    title: o.title,
     caption:
       `Release ${r.a} in grey (open circles${o.a.model.length > 1 ? ', dashed fit' : ''}) and release ${r.b} in black (dots${o.b.model.length > 1 ? ', solid fit' : ''}). ` +
       `A row added, removed or changed between the releases is a grey cross (as it was in ${r.a}) and an open triangle (as it is in ${r.b}).` +

@@ -8,11 +8,11 @@
  * While a release is blinded the comparison has already withheld what must not
  * be shown (src/diff/blinding.ts); this module only marks what remains.
  */
-import { renderMarkdown, tableLine } from '../../diff/render.ts';
+import { rankedContributions, renderMarkdown, tableLine, unitSuffix } from '../../diff/render.ts';
 import { tableTouched } from '../../diff/inputs.ts';
 import type { DiffReport, ParameterShift, Shift, SystemShift } from '../../diff/types.ts';
 import { analysisValueText, fixed, int, sig } from '../format.ts';
-import { ANALYSIS_UNITS, type AnalysisKey } from '../../types/analysis.ts';
+import { ANALYSIS_UNITS } from '../../types/analysis.ts';
 import { tableView } from '../tables.ts';
 import type { ComparisonView, KeyValue, MethodText, RowMark, TableView } from '../types.ts';
 import { GROUP_TITLE, sigmaText, signedText, STATUS_TEXT } from './words.ts';
@@ -23,14 +23,6 @@ export const PAGE_CELLS_MAX = 40;
 export const PAGE_SYSTEMS_MAX = 40;
 /** Input changes named in the memo's opening. */
 export const OPENING_INPUTS_MAX = 4;
-
-export interface ComparisonViewInput {
-  report: DiffReport;
-  /** The previous release is part of this report (so its pages exist). */
-  aBuilt: boolean;
-  /** Figure ids drawn for this comparison (compare-*). */
-  figures: string[];
-}
 
 const H0_UNIT = 'km/s/Mpc';
 
@@ -73,25 +65,17 @@ function headlineText(r: DiffReport): { text: string; flagged: boolean } {
 function contributionsText(r: DiffReport): string | null {
   if (r.blinding.shift_hidden && (r.blinding.a || r.blinding.b)) return null; // said by the blinding line
   if (!r.h0 || r.h0.delta === null || r.attribution.length === 0 || r.identical) return r.attribution_note && !r.identical ? `No attribution: ${r.attribution_note}.` : null;
-  const moving = r.attribution.filter((e) => e.differs).sort((x, y) => Math.abs(y.delta_h0) - Math.abs(x.delta_h0));
+  const { moving, cancelling } = rankedContributions(r);
   if (moving.length === 0) return null;
-  // Shares are only meaningful when the contributions pull the same way; with
-  // opposite signs a share of 270 % reads as an error, so say "partly cancelling".
-  const cancelling = moving.some((e) => Math.sign(e.delta_h0) !== Math.sign(moving[0]!.delta_h0));
   const parts = moving.slice(0, 3).map((e) => `${GROUP_TITLE[e.group]} ${signedText(e.delta_h0, 2)}${cancelling || e.fraction === null ? '' : ` (${fixed(100 * e.fraction, 0)} %)`}`);
   const rest = moving.length > 3 ? `, and ${moving.length - 3} more group${moving.length - 3 === 1 ? '' : 's'}` : '';
   return `What moved it: ${parts.join(', ')}${rest} ${H0_UNIT}${cancelling ? ', partly cancelling' : ''}.`;
 }
 
-/** " mas" after a value of an analysis choice that has a unit, else "". */
-function unitOf(key: AnalysisKey): string {
-  return ANALYSIS_UNITS[key] ? ` ${ANALYSIS_UNITS[key]}` : '';
-}
-
 function largestInputs(r: DiffReport): string[] {
   const out: { weight: number; text: string }[] = [];
   for (const t of r.inputs.filter(tableTouched)) out.push({ weight: t.added + t.removed + t.changed + (t.column_changes.length ? 1e6 : 0), text: tableLine(t).replaceAll(' -> ', ' → ') });
-  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `release.yaml: ${c.key} ${analysisValueText(c.a)} → ${analysisValueText(c.b)}${unitOf(c.key)}` });
+  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `release.yaml: ${c.key} ${analysisValueText(c.a)} → ${analysisValueText(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}` });
   return out.sort((x, y) => y.weight - x.weight).slice(0, OPENING_INPUTS_MAX).map((x) => x.text);
 }
 
@@ -255,7 +239,7 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
           ['a', `In ${r.a}`, null, false],
           ['b', `In ${r.b}`, null, false],
         ],
-        ic.analysis.map((c) => [c.key, unitOf(c.key).trim() || '—', `${analysisValueText(c.a)}${c.set_a ? '' : ' (default)'}`, `${analysisValueText(c.b)}${c.set_b ? '' : ' (default)'}`]),
+        ic.analysis.map((c) => [c.key, ANALYSIS_UNITS[c.key] || '—', `${analysisValueText(c.a)}${c.set_a ? '' : ' (default)'}`, `${analysisValueText(c.b)}${c.set_b ? '' : ' (default)'}`]),
       )
     : null;
   const other: string[] = [
@@ -277,7 +261,7 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
           ['unit', 'Unit', null, false],
         ],
         ic.cells.map((c) => [`${c.table}:${c.line_b}`, c.id, c.column, cellText(c.a), cellText(c.b), c.unit ?? '—']),
-        { limit: PAGE_CELLS_MAX, caption: `All ${int(ic.cells.length)} changed values are in \`rungbook diff ${r.a} ${r.b} --format json\`.` },
+        { limit: PAGE_CELLS_MAX, caption: `All ${int(ic.cells.length)} changed values are in the output of \`rungbook diff --format json\` on the two release folders.` },
       )
     : null;
   return { tables, columns, columnChanges, analysis, other, cells };
@@ -304,7 +288,7 @@ function markOf(s: Shift & { blinded?: boolean }): RowMark {
 function parameterTable(r: DiffReport): TableView {
   const rows = r.parameters.map((p) => {
     const d = paramDecimals(p);
-    return [p.name, valueOr(p.a, d, p.blinded), valueOr(p.b, d, p.blinded), ...shiftCells({ ...p, delta: p.delta }, d), p.unit || '—', p.sigma_rule ?? '—'];
+    return [p.name, valueOr(p.a, d, p.blinded), valueOr(p.b, d, p.blinded), ...shiftCells(p, d), p.unit || '—', p.sigma_rule ?? '—'];
   });
   return tableView(
     'parameter-shifts',
@@ -322,7 +306,7 @@ function parameterTable(r: DiffReport): TableView {
     rows,
     {
       caption: `Flagged: |shift| above ${r.flag_threshold_sigma} σ of the difference and at least ${r.flag_negligible_fraction} of the parameter's own error. σ rules: linear (propagated through both fits), nested, independent, fixed.`,
-      marks: r.parameters.map((p) => (p.flagged ? 'flagged' : p.blinded ? 'blinded' : null)),
+      marks: r.parameters.map(markOf),
     },
   );
 }
@@ -382,17 +366,17 @@ function methods(r: DiffReport): MethodText[] {
   return m;
 }
 
-export function comparisonView(input: ComparisonViewInput): ComparisonView {
-  const r = input.report;
+/** The page's content for comparison `r`; `figures`: ids of the comparison figures drawn (compare-*). */
+export function comparisonView(r: DiffReport, figures: readonly string[]): ComparisonView {
   const head = headlineText(r);
   const overlayIds = ['compare-pl-relation', 'compare-hubble-diagram', 'compare-ladder-diagram'];
-  const drawn = overlayIds.filter((id) => input.figures.includes(id));
+  const drawn = overlayIds.filter((id) => figures.includes(id));
   const missing = r.overlays
     .filter((o) => !drawn.includes(`compare-${o.id}`) || o.withheld)
     .map((o) => `${o.title}: ${o.withheld ?? 'neither release has points for it'}.`);
   const blindingSentence = r.blinding.a || r.blinding.b ? `${r.blinding.note}.` : null;
   return {
-    a: { id: r.a, title: r.releases.a.title, date: r.releases.a.date, built: input.aBuilt },
+    a: { id: r.a, title: r.releases.a.title, date: r.releases.a.date },
     b: { id: r.b, title: r.releases.b.title, date: r.releases.b.date },
     identical: r.identical,
     headline: head.text,
@@ -403,7 +387,7 @@ export function comparisonView(input: ComparisonViewInput): ComparisonView {
     keyValues: keyValues(r),
     attribution: {
       table: attributionTable(r),
-      figure: input.figures.includes('compare-attribution') ? 'compare-attribution' : null,
+      figure: figures.includes('compare-attribution') ? 'compare-attribution' : null,
       note: r.attribution.length === 0 ? (r.attribution_note ?? 'no attribution') : null,
     },
     topObjects: {
