@@ -3,55 +3,44 @@
  * outside request, pass axe-core (no serious or critical violation), fit a phone screen, and the
  * copy button puts exactly the message shown on the page on the clipboard.
  */
-import { mkdirSync } from 'node:fs';
-import { rm } from 'node:fs/promises';
-import { type Browser, chromium } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BASE, buildDemo, DEMO_BUILD_TIMEOUT_MS, type DemoBuild } from '../report/demoBuild.ts';
-import { serveStatic, type StaticServer } from '../report/serveStatic.ts';
-import { ARTIFACTS, CHROMIUM, CHROMIUM_ARGS, expectClean, LAPTOP, PHONE, visit } from './visit.ts';
+import { BASE, buildDemo, DEMO_BUILD_TIMEOUT_MS } from '../report/demoBuild.ts';
+import { expectClean, LAPTOP, openInChromium, PHONE, type SiteInBrowser } from './visit.ts';
 
 const PAGE_TIMEOUT_MS = 120_000;
 
-let built: DemoBuild;
-let server: StaticServer;
-let browser: Browser;
+let site: SiteInBrowser;
 
 beforeAll(async () => {
-  built = await buildDemo();
-  server = await serveStatic(built.dist, BASE);
-  browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS });
-  mkdirSync(ARTIFACTS, { recursive: true });
+  site = await openInChromium(await buildDemo(), BASE);
 }, DEMO_BUILD_TIMEOUT_MS);
 
 afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-  if (built) await rm(built.tmp, { recursive: true, force: true });
+  await site?.close();
 });
 
 describe('comparison pages in Chromium', () => {
   it('2026.2 -> 2026.3 and the blinded 2026.3 -> 2026.4 load cleanly and pass axe with no finding at all', async () => {
     for (const id of ['2026.3', '2026.4']) {
-      const v = await visit(browser, server, BASE, `releases/${id}/compare/`, `compare-${id}`);
+      const v = await site.visit(`releases/${id}/compare/`, `compare-${id}`);
       expectClean(v);
       expect(v.all).toEqual([]);
     }
   }, PAGE_TIMEOUT_MS);
 
   it('fits a phone screen without sideways scrolling of the page', async () => {
-    const v = await visit(browser, server, BASE, 'releases/2026.3/compare/', 'compare-2026.3-phone', PHONE);
+    const v = await site.visit('releases/2026.3/compare/', 'compare-2026.3-phone', PHONE);
     expectClean(v);
     expect(v.all).toEqual([]);
     expect(v.overflowPx).toBeLessThanOrEqual(0);
   }, PAGE_TIMEOUT_MS);
 
   it('copies the message to paste with one click', async () => {
-    const context = await browser.newContext({ viewport: LAPTOP, permissions: ['clipboard-read', 'clipboard-write'] });
+    const context = await site.browser.newContext({ viewport: LAPTOP, permissions: ['clipboard-read', 'clipboard-write'] });
     const page = await context.newPage();
     const errors: string[] = [];
     page.on('pageerror', (e) => errors.push(String(e)));
-    await page.goto(`${server.url}releases/2026.3/compare/`);
+    await page.goto(`${site.server.url}releases/2026.3/compare/`);
     const button = page.getByRole('button', { name: 'Copy the message' });
     expect(await button.isVisible()).toBe(true);
     await button.click();

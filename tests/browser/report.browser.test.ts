@@ -6,63 +6,50 @@
  * serious or critical accessibility violation. Screenshots (laptop, phone and
  * print) go to tests/artifacts/ for review.
  */
-import { mkdirSync } from 'node:fs';
-import { rm } from 'node:fs/promises';
 import { join } from 'node:path';
-import { type Browser, chromium } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BASE, buildFixture, FIXTURE_IDS, type FixtureBuild } from '../report/fixtureBuild.ts';
-import { serveStatic, type StaticServer } from '../report/serveStatic.ts';
-import { ARTIFACTS, CHROMIUM, CHROMIUM_ARGS, expectClean, LAPTOP, PHONE, visit as visitPage } from './visit.ts';
+import { BASE, buildFixture, FIXTURE_IDS } from '../report/fixtureBuild.ts';
+import { ARTIFACTS, expectClean, LAPTOP, openInChromium, PHONE, type SiteInBrowser } from './visit.ts';
 
 const BUILD_TIMEOUT_MS = 300_000;
 const PAGE_TIMEOUT_MS = 120_000;
 
-let built: FixtureBuild;
-let server: StaticServer;
-let browser: Browser;
+let site: SiteInBrowser;
 
 beforeAll(async () => {
-  built = await buildFixture();
-  server = await serveStatic(built.dist, BASE);
-  browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS });
-  mkdirSync(ARTIFACTS, { recursive: true });
+  site = await openInChromium(await buildFixture(), BASE);
 }, BUILD_TIMEOUT_MS);
 
 afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-  if (built) await rm(built.tmp, { recursive: true, force: true });
+  await site?.close();
 });
-
-const visit = (path: string, shot: string, viewport = LAPTOP) => visitPage(browser, server, BASE, path, shot, viewport);
 
 describe('report in Chromium', () => {
   for (const id of FIXTURE_IDS) {
     it(`release ${id} overview loads cleanly and passes axe`, async () => {
-      expectClean(await visit(`releases/${id}/`, `overview-${id}`));
+      expectClean(await site.visit(`releases/${id}/`, `overview-${id}`));
     }, PAGE_TIMEOUT_MS);
   }
 
   it('a rung page (Cepheids of the dense release) loads cleanly and passes axe', async () => {
-    expectClean(await visit('releases/2026.1/cepheids/', 'rung-2026.1-cepheids'));
+    expectClean(await site.visit('releases/2026.1/cepheids/', 'rung-2026.1-cepheids'));
   }, PAGE_TIMEOUT_MS);
 
   it('a figure page and the home page load cleanly and pass axe', async () => {
-    expectClean(await visit('releases/2026.2/figures/variants/', 'figure-2026.2-variants'));
-    expectClean(await visit('', 'home'));
+    expectClean(await site.visit('releases/2026.2/figures/variants/', 'figure-2026.2-variants'));
+    expectClean(await site.visit('', 'home'));
   }, PAGE_TIMEOUT_MS);
 
   it('fits a phone screen without sideways scrolling of the page', async () => {
-    const v = await visit('releases/2026.1/', 'overview-2026.1-phone', PHONE);
+    const v = await site.visit('releases/2026.1/', 'overview-2026.1-phone', PHONE);
     expectClean(v);
     expect(v.overflowPx).toBeLessThanOrEqual(0);
   }, PAGE_TIMEOUT_MS);
 
   it('prints a rung page without the navigation', async () => {
-    const context = await browser.newContext({ viewport: LAPTOP });
+    const context = await site.browser.newContext({ viewport: LAPTOP });
     const page = await context.newPage();
-    await page.goto(`${server.url}releases/2026.1/parallax/`);
+    await page.goto(`${site.server.url}releases/2026.1/parallax/`);
     await page.emulateMedia({ media: 'print' });
     expect(await page.locator('.release-nav').isVisible()).toBe(false);
     expect(await page.locator('.notice').isVisible()).toBe(true);

@@ -3,18 +3,44 @@
  * requests outside the site, serious or critical axe-core violations, sideways overflow, and a
  * full-page screenshot into tests/artifacts/ for review.
  */
+import { mkdirSync } from 'node:fs';
+import { rm } from 'node:fs/promises';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { AxeBuilder } from '@axe-core/playwright';
-import type { Browser } from 'playwright-core';
+import { type Browser, chromium } from 'playwright-core';
 import { expect } from 'vitest';
-import type { StaticServer } from '../report/serveStatic.ts';
+import { serveStatic, type StaticServer } from '../report/serveStatic.ts';
 
 export const CHROMIUM = '/usr/bin/chromium';
 export const CHROMIUM_ARGS = ['--no-sandbox', '--disable-gpu', '--disable-dev-shm-usage'];
 export const ARTIFACTS = fileURLToPath(new URL('../artifacts/', import.meta.url));
 export const LAPTOP = { width: 1366, height: 900 };
 export const PHONE = { width: 390, height: 844 };
+
+/** A built site served under `base` and a Chromium to visit it; close() also removes the build folder. */
+export interface SiteInBrowser {
+  browser: Browser;
+  server: StaticServer;
+  visit: (path: string, shot: string, viewport?: { width: number; height: number }) => Promise<Visit>;
+  close: () => Promise<void>;
+}
+
+export async function openInChromium(built: { dist: string; tmp: string }, base: string): Promise<SiteInBrowser> {
+  const server = await serveStatic(built.dist, base);
+  const browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS });
+  mkdirSync(ARTIFACTS, { recursive: true });
+  return {
+    browser,
+    server,
+    visit: (path, shot, viewport = LAPTOP) => visit(browser, server, base, path, shot, viewport),
+    close: async () => {
+      await browser.close();
+      await server.close();
+      await rm(built.tmp, { recursive: true, force: true });
+    },
+  };
+}
 
 export interface Visit {
   consoleErrors: string[];

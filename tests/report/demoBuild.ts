@@ -3,16 +3,15 @@
  * and the real comparisons, into a fresh temporary folder. Slower than the fixture build
  * (about 15 to 30 s), so the demo-site tests share one build per test file.
  */
-import { mkdtemp } from 'node:fs/promises';
 import { readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { JSDOM } from 'jsdom';
 import { calibrateReleaseDir } from '../../src/cli/calibrate.ts';
-import { buildReport, REPO_ROOT, type BuildReportOptions, type BuildSummary } from '../../src/report/build.ts';
+import type { BuildReportOptions } from '../../src/report/build.ts';
+import { DEMO_RELEASES } from '../trust/releaseCopy.ts';
+import { buildInTemp, type FixtureBuild } from './fixtureBuild.ts';
 
-export const DEMO_RELEASES = join(REPO_ROOT, 'content', 'releases');
-export const DEMO_IDS = ['2026.1', '2026.2', '2026.3', '2026.4'] as const;
+export { DEMO_RELEASES };
 /** Pairs compared in the report: each release with its `previous` (release.yaml). */
 export const DEMO_PAIRS = [
   ['2026.1', '2026.2'],
@@ -23,11 +22,7 @@ export const BASE = '/collab/ladder/';
 export const SITE = 'https://reports.example.org';
 export const DEMO_BUILD_TIMEOUT_MS = 400_000;
 
-export interface DemoBuild {
-  tmp: string;
-  dist: string;
-  cacheDir: string;
-  summary: BuildSummary;
+export interface DemoBuild extends FixtureBuild {
   /** Text of a built file, path relative to the site root. */
   text: (rel: string) => string;
   /** Parsed page, parsed once. */
@@ -35,27 +30,15 @@ export interface DemoBuild {
 }
 
 export async function buildDemo(over: Partial<BuildReportOptions> = {}, tmp?: string): Promise<DemoBuild> {
-  const dir = tmp ?? (await mkdtemp(join(tmpdir(), 'rungbook-demo-site-')));
-  const opts: BuildReportOptions = {
-    releasesDir: DEMO_RELEASES,
-    outDir: join(dir, 'dist'),
-    workDir: join(dir, 'work'),
-    cacheDir: join(dir, 'cache'),
-    base: BASE,
-    site: SITE,
-    progress: false,
-    calibrate: calibrateReleaseDir,
-    ...over,
-  };
-  const summary = await buildReport(opts);
+  const built = await buildInTemp('rungbook-demo-site-', { releasesDir: DEMO_RELEASES, base: BASE, site: SITE, calibrate: calibrateReleaseDir }, over, tmp);
   const docs = new Map<string, Document>();
-  const text = (rel: string) => readFileSync(join(opts.outDir, rel), 'utf8');
+  const text = (rel: string) => readFileSync(join(built.dist, rel), 'utf8');
   const doc = (rel: string) => {
     let d = docs.get(rel);
     if (!d) docs.set(rel, (d = new JSDOM(text(rel)).window.document));
     return d;
   };
-  return { tmp: dir, dist: opts.outDir, cacheDir: opts.cacheDir!, summary, text, doc };
+  return { ...built, text, doc };
 }
 
 /** Numbers written with the typographic minus the pages use, read back. */

@@ -23,21 +23,41 @@ export interface FixtureBuild {
   summary: BuildSummary;
 }
 
-export async function buildFixture(over: Partial<BuildReportOptions> = {}, tmp?: string): Promise<FixtureBuild> {
-  const dir = tmp ?? (await mkdtemp(join(tmpdir(), 'rungbook-report-')));
+/**
+ * Build a report into a fresh temporary folder (or `tmp`): dist/, work/ and cache/ inside it.
+ * `defaults` are a test file's options, `over` a test's changes to them.
+ */
+export async function buildInTemp(
+  prefix: string,
+  defaults: Omit<BuildReportOptions, 'outDir'>,
+  over: Partial<BuildReportOptions> = {},
+  tmp?: string,
+): Promise<FixtureBuild> {
+  const dir = tmp ?? (await mkdtemp(join(tmpdir(), prefix)));
   const opts: BuildReportOptions = {
-    releasesDir: FIXTURE_RELEASES,
     outDir: join(dir, 'dist'),
     workDir: join(dir, 'work'),
     cacheDir: join(dir, 'cache'),
-    base: BASE,
-    site: SITE,
     progress: false,
-    calibrate: calibrateFixture,
-    // The fixture releases hold no data tables: their comparison pages say the comparison was not computed.
-    compare: null,
+    ...defaults,
     ...over,
   };
   const summary = await buildReport(opts);
   return { tmp: dir, dist: opts.outDir, workDir: opts.workDir!, cacheDir: opts.cacheDir!, summary };
+}
+
+export function buildFixture(over: Partial<BuildReportOptions> = {}, tmp?: string): Promise<FixtureBuild> {
+  return buildInTemp(
+    'rungbook-report-',
+    {
+      releasesDir: FIXTURE_RELEASES,
+      base: BASE,
+      site: SITE,
+      calibrate: calibrateFixture,
+      // The fixture releases hold no data tables: their comparison pages say the comparison was not computed.
+      compare: null,
+    },
+    over,
+    tmp,
+  );
 }
