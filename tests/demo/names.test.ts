@@ -13,6 +13,7 @@
  * and without its diacritics dropped: a name is found as a whole word or a run
  * of whole words, in any case, with any separator between its words.
  */
+import { execFileSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { readFileSync, readdirSync, statSync } from 'node:fs';
 import { dirname, join, relative } from 'node:path';
@@ -163,6 +164,19 @@ describe('invented names [edge]', () => {
     const files = filesUnder(join(ROOT, 'content', 'releases'));
     expect(files.length).toBeGreaterThanOrEqual(24);
     for (const file of files) expect(realNamesIn(readFileSync(file, 'utf8')), relative(ROOT, file)).toEqual([]);
+  });
+
+  it('no file of the repository holds one (this test file included: the list is of digests)', () => {
+    const files = execFileSync('git', ['ls-files', '--cached', '--others', '--exclude-standard'], { cwd: ROOT, encoding: 'utf8' }).split('\n').filter((f) => f !== '');
+    expect(files.length).toBeGreaterThan(200);
+    expect(files).toContain('tests/demo/names.test.ts');
+    for (const f of files) {
+      const path = join(ROOT, f);
+      if (!statSync(path, { throwIfNoEntry: false })?.isFile()) continue;
+      const bytes = readFileSync(path);
+      if (bytes.includes(0)) continue; // binary: fonts, images
+      expect(realNamesIn(bytes.toString('utf8')), f).toEqual([]);
+    }
   });
 
   it('the generator and its names list use none either', () => {
