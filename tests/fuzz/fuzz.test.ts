@@ -73,6 +73,16 @@ async function runBoth(pool: CommandPool, c: Case): Promise<void> {
   c.calibrateErr = stderrOf(calibrate);
 }
 
+/** Run check and calibrate on every case, two worker threads at most. */
+async function runAll(list: Case[]): Promise<void> {
+  const pool = new CommandPool(Math.max(1, Math.min(2, availableParallelism())));
+  try {
+    await Promise.all(list.map((c) => runBoth(pool, c)));
+  } finally {
+    await pool.close();
+  }
+}
+
 /**
  * Where check is not the gate: a case check and calibrate end differently (one refuses, the other
  * not, or one as an input problem and the other as an analysis problem), or refuse in other words.
@@ -108,12 +118,7 @@ describe('fuzz: damaged demo releases', () => {
       const mutation = mutateRelease(dir, MUTATION_KINDS[n % MUTATION_KINDS.length]!, rng);
       cases.push({ n, release, dir, resultsFile: join(caseDir, 'results.json'), mutation });
     }
-    const pool = new CommandPool(Math.max(1, Math.min(2, availableParallelism())));
-    try {
-      await Promise.all(cases.map((c) => runBoth(pool, c)));
-    } finally {
-      await pool.close();
-    }
+    await runAll(cases);
 
     const byCheck = new Map<string, Map<Ending, number>>();
     const byCalibrate = new Map<string, Map<Ending, number>>();
@@ -155,12 +160,7 @@ describe('fuzz: damaged demo releases', () => {
       s.edit(dir);
       return { n: CASES + i, release: '2026.1', dir, resultsFile: join(caseDir, 'results.json'), mutation: { kind: 'file' as const, file: s.name, description: s.rule }, expected: s };
     });
-    const pool = new CommandPool(Math.max(1, Math.min(2, availableParallelism())));
-    try {
-      await Promise.all(structural.map((c) => runBoth(pool, c)));
-    } finally {
-      await pool.close();
-    }
+    await runAll(structural);
     const rows = new Map<string, Map<Ending, number>>();
     for (const c of structural) count(rows, c.expected.ending === 'analysis error' ? 'ladder' : c.expected.ending === 'ok' ? 'ignored file' : 'contract', c.check!.ending);
     console.log(`\n${endingTable(`rungbook check on ${structural.length} releases, one per rule (calibrate ends the same way in each)`, [...rows.keys()], rows)}\n`);
