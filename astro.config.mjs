@@ -1,7 +1,8 @@
 // Astro configuration of the static report.
 //
 // The pages under site/ lay out what src/report generated (JSON data, prose as
-// MDX, figure files). Where those generated files live, and where the site is
+// sanitised HTML inside JSON, figure files). There is no MDX: no text of a data
+// release can reach a compiler (DEVELOPERS.md, "Data never becomes code"). Where those generated files live, and where the site is
 // hosted, come from the environment so that `rungbook build` (src/cli/build.ts)
 // and a plain `npx astro build` agree:
 //
@@ -14,7 +15,6 @@
 //
 // trailingSlash 'always' keeps `${BASE_URL}x` joins correct under a base path.
 import { defineConfig } from 'astro/config';
-import mdx from '@astrojs/mdx';
 import remarkMath from 'remark-math';
 import rehypeKatex from 'rehype-katex';
 import { fileURLToPath } from 'node:url';
@@ -34,26 +34,6 @@ process.env.RUNGBOOK_METHODS_DIR = methodsDir;
 function normaliseBase(base) {
   const trimmed = (base ?? '/').trim().replace(/^\/+|\/+$/g, '');
   return trimmed === '' ? '/' : `/${trimmed}/`;
-}
-
-/**
- * Headings of generated prose (release notes come from the data release) get ids of our own,
- * "<file>-heading-<n>": an id made from their text could repeat an id of the page itself
- * ("main", "top", "checks") and break its links. Astro's own heading ids keep an existing id.
- */
-const proseDir = resolve(genDir, 'prose');
-function proseHeadingIds() {
-  return (tree, file) => {
-    const path = file.path ?? file.history?.[0] ?? '';
-    if (!resolve(path).startsWith(`${proseDir}/`)) return;
-    const stem = path.replace(/^.*\//, '').replace(/\.[^.]*$/, '').replace(/[^A-Za-z0-9-]/g, '-');
-    let n = 0;
-    const visit = (node) => {
-      if (node.type === 'element' && /^h[1-6]$/.test(node.tagName)) node.properties = { ...node.properties, id: `${stem}-heading-${(n += 1)}` };
-      for (const child of node.children ?? []) visit(child);
-    };
-    visit(tree);
-  };
 }
 
 /**
@@ -86,11 +66,10 @@ export default defineConfig({
   build: { format: 'directory', inlineStylesheets: 'never' },
   devToolbar: { enabled: false },
   prefetch: false,
-  integrations: [mdx()],
   markdown: {
     remarkPlugins: [remarkMath],
     // strict 'ignore': a method note may use \lt and friends; errors still fail the build below.
-    rehypePlugins: [[rehypeKatex, { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml' }], focusableDisplayMath, proseHeadingIds],
+    rehypePlugins: [[rehypeKatex, { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml' }], focusableDisplayMath],
     syntaxHighlight: false,
     smartypants: false,
   },

@@ -3,7 +3,10 @@
  *
  * - releases: one JSON file per release, written by src/report (ReleaseData).
  * - site:     the list of releases for the home page (SiteData).
- * - prose:    generated MDX (summary paragraphs, sanitised release notes).
+ * - prose:    generated prose as data: one JSON file per text holding HTML that
+ *             src/report made from a sanitised syntax tree (summary paragraphs,
+ *             release notes). It is inserted as it is, never compiled: no text of
+ *             a release ever reaches MDX or a template (DEVELOPERS.md).
  * - methods:  the authored method notes under content/methods, one per rung.
  *
  * Ids are given explicitly (never the default slug, which drops dots and would
@@ -57,7 +60,8 @@ const site = defineCollection({
 });
 
 const prose = defineCollection({
-  loader: glob({ pattern: '**/*.mdx', base: dirUrl(`${genDir}/prose`), generateId: ({ entry }) => entry.replace(/\.mdx$/, '') }),
+  loader: glob({ pattern: '**/*.json', base: dirUrl(`${genDir}/prose`), generateId: ({ entry }) => entry.replace(/\.json$/, '') }),
+  schema: z.object({ generated: z.string(), html: z.string() }),
 });
 
 const source = z.union([z.string(), z.object({ ref: z.string(), note: z.string().optional(), checked: z.boolean().optional() })]);

@@ -383,7 +383,11 @@ function crossCheck(a: AnalysisChoices, line: number | undefined, where: string,
 
 /** Read release.yaml from a release folder (read-only). Decoding problems are returned as problems. */
 export function readManifestFile(path: string, folderName: string): ManifestRead & { bytes: Uint8Array } {
-  const bytes = readFileSync(path);
+  return parseManifestBytes(readFileSync(path), folderName);
+}
+
+/** release.yaml from its bytes (no file system access). */
+export function parseManifestBytes(bytes: Uint8Array, folderName: string): ManifestRead & { bytes: Uint8Array } {
   const decoded = decodeUtf8(bytes);
   if ('problem' in decoded) {
     return { analysis: { ...DEFAULT_ANALYSIS, ms_color_range: [...DEFAULT_ANALYSIS.ms_color_range] }, analysisKeysSet: [], variants: [], problems: [decoded.problem], bytes };

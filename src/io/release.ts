@@ -4,16 +4,16 @@
  * description of every input file. All problems of all files are collected and
  * thrown together as one InputError. The folder is only read, never written.
  */
-import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { readdirSync, readFileSync, statSync, type Dirent } from 'node:fs';
 import { basename, join, resolve } from 'node:path';
 import { InputError, type InputIssue } from '../types/issues.ts';
 import { TABLE_NAMES, type InputFile, type Release, type TableName } from '../types/release.ts';
-import { classifyFolder, MANIFEST_FILE, NOTES_FILE } from './folder.ts';
+import { classifyFolder, MANIFEST_FILE, NOTES_FILE, type EntryKind, type FolderEntry } from './folder.ts';
 import { finishFileIssues, newFileIssues, shown, type FileIssues, type Problem } from './issues.ts';
-import { readManifestFile, type ManifestRead } from './manifest.ts';
+import { parseManifestBytes, readManifestFile, type ManifestRead } from './manifest.ts';
 import { TABLE_SPECS, type TableRows } from './schema.ts';
 import { nearest } from './suggest.ts';
-import { readTableFile, type TableRead } from './table.ts';
+import { parseTable, type TableRead } from './table.ts';
 import { decodeUtf8, sha256Hex } from './text.ts';
 import { verifyPublishedFolder } from '../publish/record.ts';
 
@@ -22,10 +22,45 @@ const REFERENCING_TABLES = TABLE_NAMES.filter((t) => TABLE_SPECS[t].systemRef !=
 
 type Reads = { [T in TableName]?: TableRead<T> };
 
-function listFiles(abs: string): string[] {
-  return readdirSync(abs, { withFileTypes: true })
-    .filter((d) => d.isFile() || (d.isSymbolicLink() && statSync(join(abs, d.name), { throwIfNoEntry: false })?.isFile()))
-    .map((d) => d.name);
+function entryKind(abs: string, d: Dirent): EntryKind {
+  if (d.isSymbolicLink()) {
+    let target;
+    try {
+      target = statSync(join(abs, d.name), { throwIfNoEntry: false });
+    } catch {
+      target = undefined; // a loop of links, or a link into a folder we may not enter
+    }
+    if (!target) return 'broken-link';
+    return target.isFile() ? 'file' : target.isDirectory() ? 'directory' : 'other';
+  }
+  return d.isFile() ? 'file' : d.isDirectory() ? 'directory' : 'other';
+}
+
+/** Every entry of a release folder with what it is (symbolic links followed). */
+export function releaseFolderEntries(dir: string): FolderEntry[] {
+  const abs = resolve(dir);
+  return readdirSync(abs, { withFileTypes: true }).map((d) => ({ name: d.name, kind: entryKind(abs, d) }));
+}
+
+/**
+ * The bytes of a file, or the problem of a file that exists but cannot be read
+ * (no read permission, an input/output error): named, never an internal error.
+ */
+function readBytes(path: string): { bytes: Uint8Array } | { problem: Problem } {
+  try {
+    return { bytes: readFileSync(path) };
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code ?? 'error';
+    return {
+      problem: {
+        code: 'unreadable-file',
+        message: 'the file cannot be read',
+        expected: 'a file that the user running rungbook may read',
+        found: `${code} (${(e as Error).message.replace(/^[A-Z]+: /, '').replace(/, open .*$/, '')})`,
+        hint: code === 'EACCES' ? 'give read permission (chmod a+r)' : undefined,
+      },
+    };
+  }
 }
 
 /**
@@ -79,7 +114,7 @@ export function loadRelease(dir: string): Release {
   };
   const inputs: InputFile[] = [];
 
-  const layout = classifyFolder(listFiles(abs));
+  const layout = classifyFolder(releaseFolderEntries(abs));
   // Issues are listed per file in this order: release.yaml, the tables, then other files.
   issuesOf(MANIFEST_FILE);
   for (const table of TABLE_NAMES) issuesOf(layout.tables[table]?.fileName ?? `${table}.ecsv`);
@@ -87,15 +122,19 @@ export function loadRelease(dir: string): Release {
 
   // release.yaml
   let manifest: ManifestRead | undefined;
-  if (!layout.hasManifest) {
-    issuesOf(MANIFEST_FILE).push({
+  const manifestBytes = layout.hasManifest ? readBytes(join(abs, MANIFEST_FILE)) : null;
+  if (manifestBytes !== null && 'problem' in manifestBytes) {
+    issuesOf(MANIFEST_FILE).push(manifestBytes.problem);
+  } else if (manifestBytes === null) {
+    // release.yaml that is there but no file has its problem already (layout.problems).
+    if (!layout.notFiles.includes(MANIFEST_FILE)) issuesOf(MANIFEST_FILE).push({
       code: 'missing-file',
       message: 'the release has no release.yaml',
       expected: 'release.yaml with id, title and date',
       found: 'no such file',
     });
   } else {
-    const read = readManifestFile(join(abs, MANIFEST_FILE), folderName);
+    const read = parseManifestBytes(manifestBytes.bytes, folderName);
     manifest = read;
     issuesOf(MANIFEST_FILE).push(...read.problems);
     inputs.push({ table: 'release', file: MANIFEST_FILE, format: 'yaml', sha256: sha256Hex(read.bytes), rows: 0, extraColumns: [], columnUnits: {} });
@@ -108,7 +147,7 @@ export function loadRelease(dir: string): Release {
     const ref = layout.tables[table];
     if (!ref) {
       absentTables.push(table);
-      if (table === 'systems') {
+      if (table === 'systems' && !layout.notFiles.some((f) => f.startsWith('systems.'))) {
         issuesOf('systems.ecsv').push({
           code: 'missing-table',
           message: 'the release has no systems table; every release needs one',
@@ -118,7 +157,12 @@ export function loadRelease(dir: string): Release {
       }
       continue;
     }
-    const read = readTableFile(table, join(abs, ref.fileName), ref.fileName, ref.format);
+    const bytes = readBytes(join(abs, ref.fileName));
+    if ('problem' in bytes) {
+      issuesOf(ref.fileName).push(bytes.problem);
+      continue;
+    }
+    const read = parseTable(table, ref.fileName, ref.format, bytes.bytes);
     (reads as Record<string, TableRead<TableName>>)[table] = read;
     issuesOf(ref.fileName).push(...read.problems);
     inputs.push(read.input);
@@ -128,8 +172,10 @@ export function loadRelease(dir: string): Release {
 
   // notes.md
   let notes: string | null = null;
-  if (layout.hasNotes) {
-    const bytes = readFileSync(join(abs, NOTES_FILE));
+  const notesBytes = layout.hasNotes ? readBytes(join(abs, NOTES_FILE)) : null;
+  if (notesBytes !== null && 'problem' in notesBytes) issuesOf(NOTES_FILE).push(notesBytes.problem);
+  else if (notesBytes !== null) {
+    const bytes = notesBytes.bytes;
     const decoded = decodeUtf8(bytes);
     if ('problem' in decoded) issuesOf(NOTES_FILE).push(decoded.problem);
     else notes = decoded.text;

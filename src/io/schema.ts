@@ -30,7 +30,7 @@ export interface ColumnSpec<F extends string = string> {
   absent?: number;
   /** Text columns: the only values allowed. */
   oneOf?: readonly string[];
-  /** Number columns: must be > 0 (every *_err column, the period). */
+  /** Number columns: must be > 0 (every *_err column, the period, the Hubble-flow redshift). */
   positive?: boolean;
   /**
    * Optional columns: a value here needs a value in this other column of the row
@@ -150,7 +150,8 @@ const SN_HUBBLE_FLOW: TableSpec<SnHubbleFlowRow> = {
   key: 'sn',
   columns: [
     text('sn', 'sn'),
-    num('z', 'z', ''),
+    // A distance needs z > 0: the Hubble-flow modulus is 5 log10(c z f(z)) (release-format.md, the model).
+    num('z', 'z', '', { positive: true }),
     num('z_err', 'zErr', '', err),
     ...lightCurve<Exclude<keyof SnHubbleFlowRow, 'line'>>(),
   ],

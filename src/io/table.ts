@@ -3,7 +3,6 @@
  * extension, apply the table's schema, and describe the file for the
  * provenance list (sha256, rows, extra columns, units as written).
  */
-import { readFileSync } from 'node:fs';
 import type { InputFile, TableName } from '../types/release.ts';
 import { readCsv } from './csv.ts';
 import { readEcsv } from './ecsv.ts';
@@ -70,9 +69,4 @@ export function parseTable<T extends TableName>(table: T, fileName: string, form
     keys: v.keys,
     systemRefs: v.systemRefs,
   };
-}
-
-/** Read a table file from disk (read-only). */
-export function readTableFile<T extends TableName>(table: T, path: string, fileName: string, format: TableFormat): TableRead<T> {
-  return parseTable(table, fileName, format, readFileSync(path));
 }

@@ -8,17 +8,18 @@ import { withOverrides } from '../types/analysis.ts';
 import type { Release } from '../types/release.ts';
 import type { CheckResult, Results, VariantResult } from '../types/results.ts';
 import { RESULTS_SCHEMA } from '../types/results.ts';
-import { AnalysisError } from '../types/issues.ts';
+import { AnalysisError, type AnalysisProblem } from '../types/issues.ts';
 import type { DistancePriorBlock } from './types.ts';
 import { fitParallaxRung } from './parallax.ts';
 import { fitMainSequenceRung, buildDistancePriors } from './mainSequence.ts';
-import { selectHubbleFlow, log10H0 } from './hubbleFlow.ts';
+import { emptySampleProblem, selectHubbleFlow, log10H0 } from './hubbleFlow.ts';
 import { cepheidChecks } from './cepheids.ts';
 import { fitGlobal } from './globalFit.ts';
 import { PARAM } from './globalModel.ts';
 import { assembleResults } from './assemble.ts';
 import { errorBudget } from './budget.ts';
 import { systematicError } from './variants.ts';
+import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
 
 /** Everything one pass of the ladder produces (before variants). */
 export interface LadderRun {
@@ -61,8 +62,13 @@ function cached<T>(map: Map<string, T>, key: string, compute: () => T): T {
   return v;
 }
 
-/** One pass of the ladder with the given analysis choices. */
+/**
+ * One pass of the ladder with the given analysis choices. Refuses first, before any fit, a
+ * release whose structure the ladder cannot use (src/ladder/requirements.ts); what remains to
+ * refuse is what only the fits can tell (a parameter the data do not determine).
+ */
 export function runLadder(release: Release, analysis: AnalysisChoices, cache: RungCache = newRungCache()): LadderRun {
+  requireLadder(release, analysis);
   const checks: CheckResult[] = [];
   const parallax = cached(cache.parallax, keyOf(analysis, PARALLAX_KEYS), () => fitParallaxRung(release, analysis));
   checks.push(...parallax.checks);
@@ -81,12 +87,7 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
       severity: 'warning',
       detail: `${hubbleFlow.used.length} of ${release.snHubbleFlow.length} supernovae have ${analysis.z_min} <= z <= ${analysis.z_max}; ${hubbleFlow.excluded.length} left out`,
     });
-    if (hubbleFlow.used.length === 0) {
-      throw new AnalysisError(
-        `No Hubble-flow supernova lies inside ${analysis.z_min} <= z <= ${analysis.z_max} (all ${release.snHubbleFlow.length} are cut).`,
-        'Widen z_min/z_max in release.yaml or check the redshift column.',
-      );
-    }
+    if (hubbleFlow.used.length === 0) throw AnalysisError.of(emptySampleProblem(release.snHubbleFlow, analysis));
   }
   // Without calibrator supernovae M_B is unknown, so the Hubble flow cannot be reached: its rows
   // stay out of the fit (they would only determine a_B, which then leads nowhere) and a check says so.
@@ -105,7 +106,9 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
   if (release.cepheids.length === 0) {
     return { analysis, parallax, mainSequence, priors, hubbleFlow, fit: null, log10H0: null, checks, reached };
   }
-  linkageCheck(release, priors.systems, parallax.fieldStars.map((s) => s.star));
+  // Checked by requireLadder on the release; asserted again on the rungs' own results.
+  const [unlinked] = linkageProblems(release, priors.systems, parallax.fieldStars.map((s) => s.star));
+  if (unlinked !== undefined) throw AnalysisError.of(unlinked);
   const fit = fitGlobal({
     analysis,
     priors,
@@ -141,29 +144,23 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
   return { analysis, parallax, mainSequence, priors, hubbleFlow, fit, log10H0: h0, checks, reached };
 }
 
-/** Every Cepheid system must be tied to a distance for M_W to be determined; say which are not. */
-function linkageCheck(release: Release, priorSystems: string[], fieldStarIds: string[]): void {
-  const anchored = new Set(priorSystems);
-  const fieldStars = new Set(fieldStarIds);
-  const tied = release.cepheids.some((c) => anchored.has(c.system) || fieldStars.has(c.star));
-  if (!tied) {
-    const systems = [...new Set(release.cepheids.map((c) => c.system))];
-    const named = systems.slice(0, 10).map((s) => `"${s}"`).join(', ') + (systems.length > 10 ? ` and ${systems.length - 10} more` : '');
-    throw new AnalysisError(
-      `The ladder cannot reach a geometric anchor from any Cepheid system (${named}): ` +
-        'none has a parallax or main-sequence distance, and no field Cepheid has its own parallax.',
-      'Add parallaxes or main-sequence photometry for at least one Cepheid system.',
-    );
+/**
+ * Everything for which `calibrateRelease` would refuse this release, in its words: every
+ * structural problem (src/ladder/requirements.ts), or, when there is none, what the baseline
+ * pass of the ladder refuses (the same `runLadder` the calibration runs first; the systematic
+ * variants never refuse a release, a failed variant is reported in its results). Empty when the
+ * release calibrates. This is what `rungbook check` runs after the input contract.
+ */
+export function checkLadder(release: Release): AnalysisProblem[] {
+  const problems = ladderProblems(release, release.analysis);
+  if (problems.length > 0) return problems;
+  try {
+    runLadder(release, release.analysis);
+  } catch (e) {
+    if (e instanceof AnalysisError) return [{ message: e.message, hint: e.hint }];
+    throw e;
   }
-  const hosts = new Set(release.cepheids.map((c) => c.system));
-  const orphans = [...new Set(release.snCalibrators.map((s) => s.system))].filter((s) => !hosts.has(s) && !anchored.has(s));
-  if (orphans.length > 0) {
-    throw new AnalysisError(
-      `The ladder cannot reach a geometric anchor from ${orphans.map((o) => `"${o}"`).join(', ')}: ` +
-        `${orphans.length === 1 ? 'this supernova host has' : 'these supernova hosts have'} no Cepheids and no distance of ${orphans.length === 1 ? 'its' : 'their'} own.`,
-      'Add Cepheids for the host to cepheids, or remove its supernovae from sn_calibrators.',
-    );
-  }
+  return [];
 }
 
 export interface CalibrateOptions {

@@ -7,7 +7,7 @@
  * other and with the anchors; buildDistancePriors assembles that covariance.
  */
 import type { AnalysisChoices } from '../types/analysis.ts';
-import { AnalysisError } from '../types/issues.ts';
+import { AnalysisError, type AnalysisProblem } from '../types/issues.ts';
 import type { MainSequenceRow, Release, SystemRow } from '../types/release.ts';
 import type { CheckResult, LocusResult, MainSequenceStarResult, MainSequenceTargetResult } from '../types/results.ts';
 import { addMatrices, diag, matMul, sandwich, symmetrize, type Matrix } from '../math/matrix.ts';
@@ -54,6 +54,79 @@ function fail(what: string, value: unknown, expected: string): never {
  */
 export const MS_METHOD_FLOOR_MAG = 0.05;
 
+/** Which main-sequence rows belong to which system, the anchors among them, and the targets. */
+interface MainSequenceLayout {
+  rowsBySystem: Map<string, MainSequenceRow[]>;
+  /** Indices (in `anchorSystems`) of the anchors that have main-sequence rows. */
+  anchorIdx: number[];
+  /** Systems with main-sequence rows and no parallax rows. */
+  targets: SystemRow[];
+  /** Systems with main-sequence and parallax rows that are not anchors (kind field). */
+  ignored: string[];
+}
+
+function mainSequenceLayout(release: Release, anchorSystems: readonly string[]): MainSequenceLayout {
+  const rowsBySystem = new Map<string, MainSequenceRow[]>();
+  for (const r of release.mainSequence) {
+    const list = rowsBySystem.get(r.system);
+    if (list) list.push(r);
+    else rowsBySystem.set(r.system, [r]);
+  }
+  const withParallax = new Set(release.parallax.map((r) => r.system));
+  const anchorIdx = anchorSystems.map((_, i) => i).filter((i) => rowsBySystem.has(anchorSystems[i]));
+  const targets = release.systems.filter((x) => rowsBySystem.has(x.system) && !withParallax.has(x.system));
+  const ignored = [...rowsBySystem.keys()].filter((id) => withParallax.has(id) && !anchorSystems.includes(id));
+  return { rowsBySystem, anchorIdx, targets, ignored };
+}
+
+/** Main-sequence targets: systems with main-sequence rows and no parallax rows (their distance comes from the locus). */
+export function mainSequenceTargets(release: Release): SystemRow[] {
+  return mainSequenceLayout(release, []).targets;
+}
+
+/** An anchor star's intrinsic colour c0 = color - E(B-V) of its anchor (0 when the anchor gives none). */
+function anchorColor0(row: MainSequenceRow, sys: SystemRow): number {
+  return row.color - (sys.ebv ?? 0);
+}
+
+/**
+ * Why the main-sequence rung cannot run on this release, or null: targets but no geometric
+ * anchor with main-sequence rows to calibrate the locus on, or too few anchor stars in the
+ * colour range for the locus' degree. `anchorSystems` are the geometric anchors of the
+ * parallax rung. The one statement of these rules: the rung refuses with them and
+ * `rungbook check` reports them (src/ladder/requirements.ts).
+ */
+export function mainSequenceProblem(release: Release, analysis: AnalysisChoices, anchorSystems: readonly string[]): AnalysisProblem | null {
+  const { anchorIdx, targets, rowsBySystem } = mainSequenceLayout(release, anchorSystems);
+  if (anchorIdx.length === 0) {
+    if (targets.length === 0) return null;
+    const noParallax = release.absentTables.includes('parallax') ? ' (the release has no parallax table)' : '';
+    return {
+      message: `main-sequence target(s) ${targets.map((t) => `"${t.system}"`).join(', ')} but no geometric anchor has main-sequence rows${noParallax}`,
+      hint: 'add main_sequence photometry for at least one cluster with parallaxes, so that the locus can be calibrated',
+    };
+  }
+  const range = analysis.ms_color_range;
+  const degree = analysis.ms_poly_degree;
+  const sysById = new Map(release.systems.map((x) => [x.system, x]));
+  let inRange = 0;
+  for (const a of anchorIdx) {
+    const sys = sysById.get(anchorSystems[a])!;
+    for (const row of rowsBySystem.get(sys.system)!) {
+      const c0 = anchorColor0(row, sys);
+      if (c0 >= range[0] && c0 <= range[1]) inRange++;
+    }
+  }
+  const needed = MIN_LOCUS_STARS_PER_COEFF * (degree + 1);
+  if (inRange < needed) {
+    return {
+      message: `${inRange} anchor main-sequence star(s) lie in the colour range [${range.join(', ')}]; a degree-${degree} locus needs at least ${needed}`,
+      hint: 'add anchor photometry, widen ms_color_range, or lower ms_poly_degree',
+    };
+  }
+  return null;
+}
+
 export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices, parallax: ParallaxRungResult): MainSequenceRungResult {
   const { r_v: rV, ms_feh_slope: s, ms_poly_degree: degree } = analysis;
   const range: [number, number] = [analysis.ms_color_range[0], analysis.ms_color_range[1]];
@@ -62,32 +135,17 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
   const pivot = 0.5 * (range[0] + range[1]);
 
   const anchorSystems = parallax.anchors.map((a) => a.system);
-  const rowsBySystem = new Map<string, MainSequenceRow[]>();
-  for (const r of release.mainSequence) {
-    const list = rowsBySystem.get(r.system);
-    if (list) list.push(r);
-    else rowsBySystem.set(r.system, [r]);
-  }
-  const withParallax = new Set(release.parallax.map((r) => r.system));
+  const { rowsBySystem, anchorIdx, targets, ignored } = mainSequenceLayout(release, anchorSystems);
   const sysById = new Map(release.systems.map((x) => [x.system, x]));
-  const anchorIdx = parallax.anchors.map((_, i) => i).filter((i) => rowsBySystem.has(anchorSystems[i]));
-  const targets = release.systems.filter((x) => rowsBySystem.has(x.system) && !withParallax.has(x.system));
-  const ignored = [...rowsBySystem.keys()].filter((id) => withParallax.has(id) && !anchorSystems.includes(id));
   const inputs: CheckInputs = { ignored, anchorsNoEbv: [], noFeh: [], targets: [], locus: null, rV };
 
   const empty: MainSequenceRungResult = {
     locus: null, targets: [], stars: [], checks: [], anchorSystems,
     targetAnchorJacobian: [], targetCovarianceMainSequence: [],
   };
-  if (anchorIdx.length === 0) {
-    if (targets.length > 0) {
-      throw new AnalysisError(
-        `main-sequence target(s) ${targets.map((t) => `"${t.system}"`).join(', ')} but no geometric anchor has main-sequence rows`,
-        'add main_sequence photometry for at least one cluster with parallaxes, so that the locus can be calibrated',
-      );
-    }
-    return { ...empty, checks: mainSequenceChecks(inputs) };
-  }
+  const problem = mainSequenceProblem(release, analysis, anchorSystems);
+  if (problem !== null) throw AnalysisError.of(problem);
+  if (anchorIdx.length === 0) return { ...empty, checks: mainSequenceChecks(inputs) };
 
   // ---- locus on the anchors ----
   const nA = anchorSystems.length;
@@ -105,7 +163,7 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
     ebvErrA[a] = sys.ebv !== undefined ? (sys.ebvErr ?? 0) : 0;
     fehErrA[a] = sys.fehErr ?? 0;
     for (const row of rowsBySystem.get(id)!) {
-      const c0 = row.color - ebv;
+      const c0 = anchorColor0(row, sys);
       const y = row.mag - parallax.anchors[a].mu - rV * ebv + s * (sys.feh ?? 0);
       anchorRows.push({ row, c0, y });
       if (c0 >= range[0] && c0 <= range[1]) {
@@ -113,14 +171,18 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
       }
     }
   }
-  const p = degree + 1;
-  if (locusStars.length < MIN_LOCUS_STARS_PER_COEFF * p) {
+  let fit: ReturnType<typeof fitLocus>;
+  try {
+    fit = fitLocus(locusStars, { degree, pivot, rV, fehSlope: s, nAnchors: nA });
+  } catch (e) {
+    // Photometry that cannot constrain the locus (all stars at one colour, say) is the data's
+    // limit, not a defect of the code: say so, in the words of the numerical kernel.
+    if (!(e instanceof RangeError)) throw e;
     throw new AnalysisError(
-      `${locusStars.length} anchor main-sequence star(s) lie in the colour range [${range.join(', ')}]; a degree-${degree} locus needs at least ${MIN_LOCUS_STARS_PER_COEFF * p}`,
-      'add anchor photometry, widen ms_color_range, or lower ms_poly_degree',
+      `the main-sequence locus cannot be fitted on the ${locusStars.length} anchor star(s) in the colour range [${range.join(', ')}]: ${e.message}`,
+      'add anchor photometry that spans the colour range, or lower ms_poly_degree',
     );
   }
-  const fit = fitLocus(locusStars, { degree, pivot, rV, fehSlope: s, nAnchors: nA });
   const pBinaryByRow = new Map(locusStars.map((st, i) => [st.row, fit.pBinary[i]]));
   for (const { row, c0, y } of anchorRows) {
     starResults.set(row, {

@@ -3,7 +3,7 @@
  * mean of its members' zero-point corrected parallaxes.
  */
 import { FIVE_OVER_LN10 } from '../constants/index.ts';
-import { AnalysisError } from '../types/issues.ts';
+import { AnalysisError, type AnalysisProblem } from '../types/issues.ts';
 import type { ParallaxRow } from '../types/release.ts';
 import type { AnchorResult } from '../types/results.ts';
 import { distanceModulusFromParallaxMas } from './distance.ts';
@@ -24,31 +24,17 @@ export interface AnchorFit {
   fractionalError: number;
 }
 
-/**
- * Weighted mean parallax of one anchor and its distance modulus.
- *   corr_i = measured_i - Z0,  w_i = 1/sigma_i^2,  mean = sum w corr / sum w,
- *   err = (sum w)^-1/2 * max(1, sqrt(chi2/(N-1))),  err_tot = sqrt(err^2 + floor^2),
- *   mu = 10 - 5 log10(mean),  mu_err_stat = (5/ln 10) err_tot / mean,
- *   K = d mu / d Z = (5/ln 10) / mean  (mag per mas; a larger Z lowers the corrected parallax),
- *   mu_err = sqrt(mu_err_stat^2 + K^2 sigma_Z^2).
- * Common practice for the mean and the chi^2 scaling; the modulus error is first order.
- * Throws AnalysisError (with a hint) for one member, a non-positive mean, or f > 0.2.
- * Cost O(N).
- */
-export function fitAnchorParallax(
-  system: string,
-  rows: readonly ParallaxRow[],
-  zeroPointMas: number,
-  zeroPointErrMas: number,
-  floorMas: number,
-): AnchorFit {
-  const n = rows.length;
-  if (n < 2) {
-    throw new AnalysisError(
-      `anchor "${system}" has ${n} parallax star(s) (line ${rows[0]?.line ?? '?'} of parallax); a mean parallax needs at least 2`,
-      'add more members, or make the system kind "field" so that each star enters the fit with its own parallax',
-    );
-  }
+interface AnchorMean {
+  mean: number;
+  errTot: number;
+  scale: number;
+  chi2: number;
+  dof: number;
+  frac: number;
+}
+
+/** The weighted mean corrected parallax of an anchor's members and its error (formulas at fitAnchorParallax). */
+function anchorMean(rows: readonly ParallaxRow[], zeroPointMas: number, floorMas: number): AnchorMean {
   let sw = 0;
   let swx = 0;
   for (const r of rows) {
@@ -62,18 +48,58 @@ export function fitAnchorParallax(
     const d = r.parallaxMas - zeroPointMas - mean;
     chi2 += (d * d) / (r.parallaxErrMas * r.parallaxErrMas);
   }
-  const dof = n - 1;
+  const dof = rows.length - 1;
   const scale = chi2 / dof > 1 ? Math.sqrt(chi2 / dof) : 1;
-  const err = Math.sqrt(1 / sw) * scale;
-  const errTot = Math.hypot(err, floorMas);
-  const frac = errTot / mean;
+  const errTot = Math.hypot(Math.sqrt(1 / sw) * scale, floorMas);
+  return { mean, errTot, scale, chi2, dof, frac: errTot / mean };
+}
+
+/**
+ * Why an anchor's mean parallax cannot give its distance modulus, or null: fewer than two
+ * members, a mean that is not positive, or a fractional error above MAX_ANCHOR_FRACTIONAL_ERROR.
+ * The one statement of this rule: the rung refuses with it and `rungbook check` reports it
+ * (src/ladder/requirements.ts).
+ */
+export function anchorParallaxProblem(system: string, rows: readonly ParallaxRow[], zeroPointMas: number, floorMas: number): AnalysisProblem | null {
+  if (rows.length < 2) {
+    return {
+      message: `anchor "${system}" has ${rows.length} parallax star(s) (line ${rows[0]?.line ?? '?'} of parallax); a mean parallax needs at least 2`,
+      hint: 'add more members, or make the system kind "field" so that each star enters the fit with its own parallax',
+    };
+  }
+  const { mean, errTot, frac } = anchorMean(rows, zeroPointMas, floorMas);
   if (!(mean > 0) || frac > MAX_ANCHOR_FRACTIONAL_ERROR) {
     const what = mean > 0 ? `fractional error ${frac.toFixed(3)} > ${MAX_ANCHOR_FRACTIONAL_ERROR}` : 'is not positive';
-    throw new AnalysisError(
-      `anchor "${system}": mean corrected parallax ${mean.toPrecision(4)} ± ${errTot.toPrecision(3)} mas ${what}; its distance modulus would be unreliable`,
-      'use more members, or make the system kind "field" so that its stars enter the global fit in parallax space',
-    );
+    return {
+      message: `anchor "${system}": mean corrected parallax ${mean.toPrecision(4)} ± ${errTot.toPrecision(3)} mas ${what}; its distance modulus would be unreliable (parallax lines ${rows.map((r) => r.line).slice(0, 3).join(', ')}${rows.length > 3 ? ', ...' : ''})`,
+      hint: 'use more members, or make the system kind "field" so that its stars enter the global fit in parallax space',
+    };
   }
+  return null;
+}
+
+/**
+ * Weighted mean parallax of one anchor and its distance modulus.
+ *   corr_i = measured_i - Z0,  w_i = 1/sigma_i^2,  mean = sum w corr / sum w,
+ *   err = (sum w)^-1/2 * max(1, sqrt(chi2/(N-1))),  err_tot = sqrt(err^2 + floor^2),
+ *   mu = 10 - 5 log10(mean),  mu_err_stat = (5/ln 10) err_tot / mean,
+ *   K = d mu / d Z = (5/ln 10) / mean  (mag per mas; a larger Z lowers the corrected parallax),
+ *   mu_err = sqrt(mu_err_stat^2 + K^2 sigma_Z^2).
+ * Common practice for the mean and the chi^2 scaling; the modulus error is first order.
+ * Throws AnalysisError (with a hint) for one member, a non-positive mean, or f > 0.2
+ * (anchorParallaxProblem). Cost O(N).
+ */
+export function fitAnchorParallax(
+  system: string,
+  rows: readonly ParallaxRow[],
+  zeroPointMas: number,
+  zeroPointErrMas: number,
+  floorMas: number,
+): AnchorFit {
+  const problem = anchorParallaxProblem(system, rows, zeroPointMas, floorMas);
+  if (problem !== null) throw AnalysisError.of(problem);
+  const n = rows.length;
+  const { mean, errTot, scale, chi2, dof, frac } = anchorMean(rows, zeroPointMas, floorMas);
   const mu = distanceModulusFromParallaxMas(mean);
   const muErrStat = (FIVE_OVER_LN10 * errTot) / mean;
   const k = FIVE_OVER_LN10 / mean;

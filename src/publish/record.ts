@@ -24,6 +24,7 @@ import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import type { InputIssue } from '../types/issues.ts';
 import type { Results } from '../types/results.ts';
+import { isIgnoredName } from '../io/folder.ts';
 import { sha256Hex } from '../io/text.ts';
 
 export const PUBLISHED_FILE = 'published.json';
@@ -47,10 +48,13 @@ export interface PublishedRecord {
   results: Results;
 }
 
-/** The files a publication records: regular, non-hidden files directly in the folder, except the record itself; sorted. */
+/**
+ * The files a publication records: regular files directly in the folder, except the record itself and the
+ * hidden files and editor backups that no reader reads (src/io/folder.ts); sorted.
+ */
 export function recordedFileNames(dir: string): string[] {
   return readdirSync(dir, { withFileTypes: true })
-    .filter((d) => !d.name.startsWith('.') && d.name !== PUBLISHED_FILE)
+    .filter((d) => !isIgnoredName(d.name) && d.name !== PUBLISHED_FILE)
     .filter((d) => d.isFile() || (d.isSymbolicLink() && statSync(join(dir, d.name), { throwIfNoEntry: false })?.isFile()))
     .map((d) => d.name)
     .sort();

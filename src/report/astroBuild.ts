@@ -11,10 +11,13 @@
  *
  * Astro also writes per-build files into `<root>/.astro/` (the list of content
  * modules to import), so two builds of the same repository at once would read
- * each other's lists. A lock folder makes builds take turns, across processes.
+ * each other's lists. A lock folder makes builds take turns, across processes
+ * (src/report/lock.ts); it is taken last, after the build's own work-folder lock
+ * (src/report/build.ts), so that two builds never wait for each other in a circle.
  */
-import { cp, mkdir, readFile, rename, rm, stat, writeFile } from 'node:fs/promises';
+import { cp, mkdir, rename, rm, stat } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
+import { acquireLock } from './lock.ts';
 
 export interface AstroBuildOptions {
   root: string;
@@ -62,42 +65,6 @@ async function moveDir(from: string, to: string): Promise<void> {
     if ((e as NodeJS.ErrnoException).code !== 'EXDEV') throw e;
     await cp(from, to, { recursive: true });
     await rm(from, { recursive: true, force: true });
-  }
-}
-
-const LOCK_POLL_MS = 250;
-const LOCK_WAIT_MS = 15 * 60_000;
-
-function alive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch (e) {
-    return (e as NodeJS.ErrnoException).code === 'EPERM';
-  }
-}
-
-/** Take the build lock (a folder holding the owner's pid); a lock whose owner died is taken over. */
-async function acquireLock(lock: string): Promise<() => Promise<void>> {
-  const started = Date.now();
-  await mkdir(dirname(lock), { recursive: true });
-  for (;;) {
-    try {
-      await mkdir(lock);
-      await writeFile(join(lock, 'pid'), String(process.pid));
-      return () => rm(lock, { recursive: true, force: true });
-    } catch (e) {
-      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
-    }
-    const owner = Number(await readFile(join(lock, 'pid'), 'utf8').catch(() => 'NaN'));
-    const ageMs = Date.now() - ((await stat(lock).catch(() => null))?.mtimeMs ?? Date.now());
-    const orphan = Number.isInteger(owner) ? owner !== process.pid && !alive(owner) : ageMs > 30_000;
-    if (orphan) {
-      await rm(lock, { recursive: true, force: true });
-      continue;
-    }
-    if (Date.now() - started > LOCK_WAIT_MS) throw new Error(`another report build holds ${lock} (pid ${owner}); remove the folder if no build is running`);
-    await new Promise((ok) => setTimeout(ok, LOCK_POLL_MS));
   }
 }
 

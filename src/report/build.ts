@@ -9,6 +9,11 @@
  *   and the calibration code's hash;
  * - a release's generated files are kept when its results, its notes and the
  *   report code are unchanged (a stamp file records what they were made from).
+ *
+ * Two builds that share a work folder (two `rungbook build` in one checkout) take
+ * turns: the second waits for the first, saying so, then builds its own release set
+ * into its own output. Cache entries are written atomically and named by what they
+ * were made from, so builds with other work folders may share the cache folder.
  */
 import { mkdir, readFile, readdir, rm, stat, writeFile } from 'node:fs/promises';
 import { isAbsolute, join, resolve } from 'node:path';
@@ -27,6 +32,7 @@ import { releasePath, REQUIRED_NOTES } from './pageData.ts';
 import { createProgress } from './progress.ts';
 import { publishedView } from './published.ts';
 import type { PageLink, PublishedView, ReleaseSummary } from './types.ts';
+import { acquireLock } from './lock.ts';
 import { beginWork, type WorkState } from './workState.ts';
 
 export const REPO_ROOT = fileURLToPath(new URL('../../', import.meta.url));
@@ -345,22 +351,31 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
   await checkMethodNotes(methodsDir);
   const dirs = await findReleaseDirs(releasesDir);
 
-  // Every cache moves forward only with a successful build (src/report/workState.ts).
-  const work = await beginWork([layout.root, join(workDir, 'astro-cache')]);
-  let astroStarted = false;
+  // One build at a time in a work folder: the generated files and Astro's cache in it are this build's alone.
+  const notice = opts.progressStream ?? process.stderr;
+  const unlock = await acquireLock(join(workDir, 'build.lock'), {
+    onWait: (pid) => notice.write(`rungbook build: another build${Number.isInteger(pid) ? ` (process ${pid})` : ''} is using ${workDir}; waiting for it to finish\n`),
+  });
   try {
-    const summary = await buildWithin(work);
-    await work.commit();
-    return summary;
-  } catch (e) {
-    // Astro saves its content store on a timer after it returns; let that write land before
-    // the cache folder is put back, or it would overwrite the restored store.
-    if (astroStarted) await new Promise((ok) => setTimeout(ok, ASTRO_STORE_SETTLE_MS));
-    await work.rollback();
-    throw e;
+    // Every cache moves forward only with a successful build (src/report/workState.ts).
+    const work = await beginWork([layout.root, join(workDir, 'astro-cache')]);
+    let astroStarted = false;
+    try {
+      const summary = await buildWithin(work, () => (astroStarted = true));
+      await work.commit();
+      return summary;
+    } catch (e) {
+      // Astro saves its content store on a timer after it returns; let that write land before
+      // the cache folder is put back, or it would overwrite the restored store.
+      if (astroStarted) await new Promise((ok) => setTimeout(ok, ASTRO_STORE_SETTLE_MS));
+      await work.rollback();
+      throw e;
+    }
+  } finally {
+    await unlock();
   }
 
-  async function buildWithin(work: WorkState): Promise<BuildSummary> {
+  async function buildWithin(work: WorkState, astroStarts: () => void): Promise<BuildSummary> {
     // 1. Calibrate (or reuse).
     const codeHash = await calibrationCodeHash(REPO_ROOT);
     const calibrated: { dir: string; results: Results; cached: boolean; published: PublishedView | null }[] = [];
@@ -452,7 +467,7 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
 
     // 4. The static site.
     progress.step('building the site with Astro');
-    astroStarted = true;
+    astroStarts();
     try {
       await buildSite({
         root: REPO_ROOT,

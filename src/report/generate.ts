@@ -6,7 +6,7 @@
  *   <gen>/public/figures/h0-history.svg|png|csv                 report-wide figure
  *   <gen>/data/releases/<id>.json                               data of a release's pages
  *   <gen>/data/site.json                                        list of releases
- *   <gen>/prose/<id>/summary.mdx, notes.mdx                     generated prose
+ *   <gen>/prose/<id>/summary.json, notes.json                   generated prose: sanitised HTML as data (prose.ts)
  *
  * Every text file starts with the generated mark (JSON: as its first key; CSV and
  * ECSV downloads excepted, where a comment line would break the format's readers).
@@ -21,7 +21,7 @@ import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
 import { h0History, RELEASE_FIGURES, type FigureSpec } from './figures/index.ts';
 import { headline, releaseData, releasePath } from './pageData.ts';
 import { svgToPng } from './png.ts';
-import { notesTree, summaryTree, toMdx } from './prose.ts';
+import { notesHtml, summaryHtml } from './prose.ts';
 import { resultTables } from './resultTables.ts';
 import { type ComparisonView, type DownloadLink, type FigureRef, GENERATED_MARK, type PageLink, type PublishedView, type ReleaseSummary, type SiteData } from './types.ts';
 
@@ -137,14 +137,14 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     return f;
   };
 
-  // Prose.
+  // Prose: HTML from a sanitised tree, stored as data and inserted by the page as it is (never compiled).
   const summaryProse = `${id}/summary`;
-  await put(join(layout.proseDir, id, 'summary.mdx'), toMdx(summaryTree(r)));
+  await put(join(layout.proseDir, id, 'summary.json'), generatedJson({ html: summaryHtml(r) }));
   let notesProse: string | null = null;
-  const notes = input.notes === null ? null : notesTree(input.notes);
+  const notes = input.notes === null ? null : notesHtml(input.notes);
   if (notes !== null) {
     notesProse = `${id}/notes`;
-    await put(join(layout.proseDir, id, 'notes.mdx'), toMdx(notes));
+    await put(join(layout.proseDir, id, 'notes.json'), generatedJson({ html: notes }));
   }
 
   const data = releaseData({

@@ -1,45 +1,158 @@
 /**
- * Generated prose as MDX, built as a Markdown syntax tree (mdast) and
- * serialised with the MDX, math and GFM extensions of mdast-util-to-markdown.
- * The serialiser escapes `<`, `{`, `$`, backticks and table pipes, so no data
- * value can become JSX, an expression or math (see the stack notes, items 6-7).
- * Math in the summary is built by this module from numbers only.
+ * Generated prose as HTML: the summary paragraph of a release and its release
+ * notes, each built as a Markdown syntax tree (mdast), turned into an HTML tree
+ * (hast, mdast-util-to-hast), cleaned with an allow-list (hast-util-sanitize)
+ * and written out as an HTML string (hast-util-to-html), which the build stores
+ * as data (JSON) and a page inserts as it is.
+ *
+ * Nothing here is ever compiled: no string of a release reaches MDX, a template
+ * or an expression (a paragraph that begins with `import` or `export` in MDX is
+ * an ES module statement and runs when the site is built; DEVELOPERS.md, "Data
+ * never becomes code"). Math in the summary is typeset here with KaTeX, from
+ * numbers only.
  *
  * Release notes are authored Markdown from the release folder. They are parsed
  * (CommonMark + GFM, no math: a "$5" stays a dollar sign), then made safe:
  * raw HTML becomes visible text, links keep only http(s), mailto and relative
  * targets, images become links (a report page loads nothing from elsewhere),
- * and headings move two levels down to sit under the page's own headings.
+ * task-list boxes become the text "[x] " or "[ ] ", headings move two levels
+ * down to sit under the page's own headings, and every id is ours
+ * ("notes-heading-1", "notes-fn-1"): an id made from the text could repeat an
+ * id of the page itself ("main", "top") and break its links.
  */
-import type { Heading, Link, Parent, PhrasingContent, Root, RootContent, Text } from 'mdast';
+import type { Element, ElementContent, Root as HastRoot, RootContent as HastContent } from 'hast';
+import { sanitize, type Schema } from 'hast-util-sanitize';
+import { toHtml } from 'hast-util-to-html';
+import katex from 'katex';
+import type { FootnoteDefinition, FootnoteReference, Heading, Link, Parent, PhrasingContent, Root, RootContent, Text } from 'mdast';
 import { fromMarkdown } from 'mdast-util-from-markdown';
-import { gfmFromMarkdown, gfmToMarkdown } from 'mdast-util-gfm';
-import { mathToMarkdown } from 'mdast-util-math';
-import { mdxToMarkdown } from 'mdast-util-mdx';
-import { toMarkdown } from 'mdast-util-to-markdown';
+import { gfmFromMarkdown } from 'mdast-util-gfm';
+import { toHast, type Handlers } from 'mdast-util-to-hast';
 import { gfm } from 'micromark-extension-gfm';
 import type { Results } from '../types/results.ts';
 import { valueErr } from './format.ts';
-import { GENERATED_MARK } from './types.ts';
 
-/** Serialise a tree to MDX text, first line the generated mark (an MDX comment, which renders nothing). */
-export function toMdx(tree: Root): string {
-  const body = toMarkdown(tree, {
-    extensions: [mdxToMarkdown(), mathToMarkdown(), gfmToMarkdown()],
-    bullet: '-',
-    emphasis: '_',
-    strong: '*',
-    fences: true,
-    rule: '-',
+// ---------------------------------------------------------------------------
+// Syntax tree to HTML.
+
+/** An inline formula of the summary (mdast-util-math's node, built here from numbers only). */
+interface InlineMath {
+  type: 'inlineMath';
+  value: string;
+}
+
+/** Class of the placeholder an inline formula becomes before it is typeset (as remark-math's). */
+const MATH_CLASS = 'math-inline';
+
+/**
+ * What generated prose may contain: the elements Markdown makes, links to safe schemes, table
+ * alignment, list start numbers, and the footnote structure of GFM (with ids of ours, checked
+ * below). No style, no class (but the formula placeholder where math is allowed), no script,
+ * no embedded content, no comments. Every top-level key is given (a missing one would fall
+ * back to the library's default).
+ */
+function proseSchema(math: boolean): Schema {
+  return {
+    allowComments: false,
+    allowDoctypes: false,
+    ancestors: { tbody: ['table'], td: ['table'], th: ['table'], thead: ['table'], tr: ['table'] },
+    attributes: {
+      a: ['href', 'id', 'dataFootnoteRef', 'dataFootnoteBackref', 'ariaDescribedBy', 'ariaLabel'],
+      ol: ['start'],
+      li: ['id'],
+      td: ['align'],
+      th: ['align'],
+      h3: ['id'],
+      section: ['dataFootnotes'],
+      ...(math ? { span: [['className', MATH_CLASS]] } : {}),
+    },
+    clobber: [],
+    clobberPrefix: '',
+    protocols: { href: ['http', 'https', 'mailto'] },
+    required: {},
+    strip: ['script', 'style'],
+    tagNames: [
+      'p', 'br', 'hr', 'em', 'strong', 'del', 'code', 'pre', 'blockquote', 'ul', 'ol', 'li', 'a', 'sup',
+      'h3', 'h4', 'h5', 'h6', 'table', 'thead', 'tbody', 'tr', 'th', 'td', 'section',
+      ...(math ? ['span'] : []),
+    ],
+  };
+}
+
+const isElement = (n: HastContent | ElementContent | HastRoot): n is Element => n.type === 'element';
+
+function walk(node: HastRoot | Element, visit: (e: Element) => void): void {
+  for (const child of node.children) {
+    if (!isElement(child)) continue;
+    visit(child);
+    walk(child, visit);
+  }
+}
+
+/**
+ * Ids of our own on every heading ("<prefix>-heading-<n>", in order) and the footnote label;
+ * footnote ids are "<prefix>-fn-<n>" already (footnotes renumbered, clobberPrefix).
+ */
+function ourIds(tree: HastRoot, prefix: string): void {
+  let n = 0;
+  const label = `${prefix}-footnote-label`;
+  walk(tree, (e) => {
+    if (/^h[1-6]$/.test(e.tagName)) e.properties = { ...e.properties, id: e.properties.id === 'footnote-label' ? label : `${prefix}-heading-${(n += 1)}` };
+    if (e.properties.ariaDescribedBy !== undefined) e.properties.ariaDescribedBy = [label];
   });
-  return `{/* ${GENERATED_MARK} */}\n\n${body}`;
+}
+
+/** Options of KaTeX as for the method notes (astro.config.mjs): errors stop the build. */
+const KATEX_OPTIONS = { throwOnError: true, strict: 'ignore', output: 'htmlAndMathml', displayMode: false } as const;
+
+/**
+ * KaTeX's HTML for a formula of ours (numbers and fixed commands only, see tex()), put in place of
+ * the placeholders after sanitising; the tree then holds it as one raw node, written verbatim.
+ */
+function typesetMath(tree: HastRoot): void {
+  const replace = (parent: HastRoot | Element): void => {
+    parent.children = parent.children.map((child) => {
+      if (!isElement(child)) return child;
+      const cls = child.properties.className;
+      if (child.tagName === 'span' && Array.isArray(cls) && cls.includes(MATH_CLASS)) {
+        const tex = child.children.map((c) => (c.type === 'text' ? c.value : '')).join('');
+        return { type: 'raw', value: katex.renderToString(tex, KATEX_OPTIONS) } as unknown as ElementContent;
+      }
+      replace(child);
+      return child;
+    }) as typeof parent.children;
+  };
+  replace(tree);
+}
+
+/**
+ * HTML of a prose tree: mdast to hast (raw HTML never passed through), sanitised with the
+ * allow-list, ids of ours, math typeset when allowed (the summary's own formulas). `prefix`
+ * names the prose ("notes", "summary") in its ids.
+ */
+export function proseHtml(tree: Root, prefix: string, options: { math: boolean }): string {
+  const hast = toHast(tree, {
+    allowDangerousHtml: false,
+    clobberPrefix: `${prefix}-`,
+    footnoteLabelTagName: 'h3',
+    footnoteLabelProperties: {},
+    // A formula of the summary becomes a placeholder holding its TeX as text (the node type is mdast-util-math's).
+    handlers: {
+      inlineMath: (_state: unknown, node: InlineMath): Element => ({ type: 'element', tagName: 'span', properties: { className: [MATH_CLASS] }, children: [{ type: 'text', value: node.value }] }),
+    } as unknown as Handlers,
+  }) as HastRoot;
+  const clean = sanitize(hast, proseSchema(options.math)) as HastRoot;
+  ourIds(clean, prefix);
+  if (options.math) typesetMath(clean);
+  // Raw nodes exist only where typesetMath put KaTeX's output; sanitize removed any other.
+  return toHtml(clean, { allowDangerousHtml: options.math });
 }
 
 // ---------------------------------------------------------------------------
 // Summary paragraph of a release.
 
 const t = (value: string): Text => ({ type: 'text', value });
-const m = (value: string): PhrasingContent => ({ type: 'inlineMath', value }) as PhrasingContent;
+const m = (value: string): PhrasingContent => ({ type: 'inlineMath', value }) as unknown as PhrasingContent;
 const strong = (value: string): PhrasingContent => ({ type: 'strong', children: [t(value)] });
 
 /** A number for LaTeX: ASCII digits, point and minus only. */
@@ -124,6 +237,11 @@ export function summaryTree(r: Results): Root {
   return { type: 'root', children };
 }
 
+/** The summary of a release as HTML (its formulas typeset). */
+export function summaryHtml(r: Results): string {
+  return proseHtml(summaryTree(r), 'summary', { math: true });
+}
+
 function rungName(reached: Results['reached']): string {
   const names: Record<Results['reached'], string> = {
     parallax: 'parallax',
@@ -150,7 +268,7 @@ export function isSafeUrl(url: string): boolean {
 /** Make a parsed note safe in place (see the module comment). Cost: one pass over the tree. */
 const FLOW_CONTAINERS = new Set(['root', 'blockquote', 'listItem', 'footnoteDefinition']);
 
-function sanitise(parent: Parent): void {
+function sanitise(parent: Parent, footnotes: Map<string, string>): void {
   const flow = FLOW_CONTAINERS.has(parent.type);
   const out: RootContent[] = [];
   for (const node of parent.children as RootContent[]) {
@@ -172,7 +290,7 @@ function sanitise(parent: Parent): void {
         break;
       case 'link':
         if (!isSafeUrl(node.url)) {
-          sanitise(node);
+          sanitise(node, footnotes);
           out.push(...(node.children as RootContent[]));
           continue;
         }
@@ -180,10 +298,33 @@ function sanitise(parent: Parent): void {
       case 'heading':
         (node as Heading).depth = Math.min(6, node.depth + 2) as Heading['depth'];
         break;
+      case 'listItem':
+        // A task-list box is shown as written ("[x] "), not as a form control.
+        if (typeof node.checked === 'boolean') {
+          const mark = node.checked ? '[x] ' : '[ ] ';
+          const first = node.children[0];
+          if (first?.type === 'paragraph') first.children.unshift(t(mark));
+          else node.children.unshift({ type: 'paragraph', children: [t(mark)] });
+          node.checked = null;
+        }
+        break;
+      case 'footnoteReference':
+      case 'footnoteDefinition': {
+        // Numbered in order of first appearance, so that the ids made from them are ours.
+        const n = footnotes.get(node.identifier) ?? String(footnotes.size + 1);
+        footnotes.set(node.identifier, n);
+        (node as FootnoteReference | FootnoteDefinition).identifier = n;
+        (node as FootnoteReference | FootnoteDefinition).label = n;
+        break;
+      }
+      case 'code':
+        node.lang = null;
+        node.meta = null;
+        break;
       default:
         break;
     }
-    if ('children' in node) sanitise(node as Parent);
+    if ('children' in node) sanitise(node as Parent, footnotes);
     out.push(node);
   }
   parent.children = out as Parent['children'];
@@ -194,7 +335,12 @@ export function notesTree(markdown: string): Root | null {
   const source = markdown.replace(/^\uFEFF/, '');
   if (source.trim() === '') return null;
   const tree = fromMarkdown(source, { extensions: [gfm()], mdastExtensions: [gfmFromMarkdown()] });
-  sanitise(tree);
+  sanitise(tree, new Map());
   return tree;
 }
 
+/** Authored release notes as safe HTML, or null for empty notes. */
+export function notesHtml(markdown: string): string | null {
+  const tree = notesTree(markdown);
+  return tree === null ? null : proseHtml(tree, 'notes', { math: false });
+}

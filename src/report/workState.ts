@@ -14,8 +14,8 @@
  * restores it before anything else, so an interrupted build counts as failed.
  * Cost: one copy of each folder per build (a few MB per release).
  */
-import { cp, mkdir, rename, rm, stat, writeFile } from 'node:fs/promises';
-import { dirname } from 'node:path';
+import { cp, rename, rm, stat } from 'node:fs/promises';
+import { writeFileAtomic } from '../io/atomicWrite.ts';
 
 async function exists(p: string): Promise<boolean> {
   try {
@@ -67,10 +67,8 @@ export async function beginWork(folders: readonly string[]): Promise<WorkState> 
     async commit() {
       if (finished) return;
       finished = true;
-      for (const p of pending) {
-        await mkdir(dirname(p.path), { recursive: true });
-        await writeFile(p.path, p.content);
-      }
+      // Atomically: another build sharing the cache folder may read the entry at any time.
+      for (const p of pending) writeFileAtomic(p.path, p.content);
       for (const s of saved) if (s.existed) await rm(previousOf(s.dir), { recursive: true, force: true });
     },
     async rollback() {

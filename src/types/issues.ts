@@ -43,6 +43,12 @@ export class InputError extends Error {
   }
 }
 
+/** Why the analysis of a release cannot proceed, in words the user can act on (e.g. one anchor star). */
+export interface AnalysisProblem {
+  message: string;
+  hint?: string;
+}
+
 /** An analysis that cannot proceed for a reason the user can fix (e.g. one anchor star). */
 export class AnalysisError extends Error {
   readonly hint?: string;
@@ -50,5 +56,9 @@ export class AnalysisError extends Error {
     super(message);
     this.name = 'AnalysisError';
     this.hint = hint;
+  }
+
+  static of(problem: AnalysisProblem): AnalysisError {
+    return new AnalysisError(problem.message, problem.hint);
   }
 }

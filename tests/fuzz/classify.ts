@@ -1,7 +1,8 @@
 /**
  * How a command on a damaged release ended. Acceptable endings: success, or
  * exit 1 with a message that names a file of the release (an input problem) or
- * says why the analysis cannot proceed. Everything else is a defect of ours:
+ * says why the analysis cannot proceed (calibrate: "rungbook calibrate: <why>";
+ * check: "rungbook check: <dir>: <why>"). Everything else is a defect of ours:
  * an internal error, an escaped exception, a hang, a non-finite number, output
  * left half-written, or an exit code other than 0 or 1.
  */
@@ -52,6 +53,8 @@ export function classify(command: 'check' | 'calibrate', o: Outcome, dir: string
   }
   if (o.code !== 1) return { ending: 'bad exit', why: `exit ${o.code}: ${err.slice(0, 300)}` };
   if (written) return { ending: 'partial output', why: 'exit 1 but results.json was written' };
+  // check gives the ladder's reasons as "rungbook check: <dir>: <calibrate's words>".
+  if (command === 'check' && err.split('\n').some((l) => l.startsWith(`rungbook check: ${dir}: `))) return { ending: 'analysis error', why: '' };
   // An input problem names a file of the release: "<dir>/<file>:<line>: ..." (or "<dir>/<file>: ..." for a whole file).
   if (err.split('\n').some((l) => l.startsWith(`${dir}/`) || l.startsWith(`${dir}:`))) return { ending: 'input error', why: '' };
   if (command === 'calibrate' && err.startsWith('rungbook calibrate: ') && err.trim().length > 'rungbook calibrate: '.length + 20) return { ending: 'analysis error', why: '' };
@@ -70,4 +73,15 @@ export function endingTable(title: string, rows: readonly string[], counts: Map<
   const width = head.map((h, j) => Math.max(h.length, ...body.map((b) => b[j]!.length)));
   const line = (cells: string[]) => cells.map((c, j) => (j === 0 ? c.padEnd(width[j]!) : c.padStart(width[j]!))).join('  ');
   return [title, line(head), ...body.map(line)].join('\n');
+}
+
+/** The lines of an input error that name a file of the release (the problems themselves, without the commands' own summaries). */
+export function issueLines(stderr: string, dir: string): string[] {
+  return stderr.split('\n').filter((l) => l.startsWith(`${dir}/`));
+}
+
+/** The reason calibrate gave for refusing the analysis ("rungbook calibrate: <why>" and its hint line), or null. */
+export function calibrateReason(stderr: string): string | null {
+  const m = /^rungbook calibrate: ((?!.*input problem\(s\)).*(?:\n {2}hint: .*)?)/.exec(stderr);
+  return m ? m[1]! : null;
 }

@@ -12,6 +12,12 @@
  * proceed (and no results.json); never an internal error, an escaped
  * exception, a hang, a non-finite number or a half-written output.
  *
+ * `check` is the gate: it refuses exactly the releases `calibrate` refuses, in
+ * the same words (the same problem lines for an input error, calibrate's reason
+ * for an analysis error), on the random corpus and on one damaged release per
+ * rule for which calibrate refuses (tests/fuzz/structure.ts); no output of
+ * either command anywhere says "internal error".
+ *
  * The table of endings (mutation kind x ending) is printed on stdout.
  *
  * Time limits: a command that runs longer than CASE_LIMIT_MS is a hang. A normal
@@ -26,9 +32,10 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { main } from '../../src/cli/main.ts';
 import { createRng } from '../../src/demo/random.ts';
 import { copyDemo, DEMO_IDS, tempDir } from '../trust/releaseCopy.ts';
-import { classify, DEFECTS, type Ended, type Ending, endingTable } from './classify.ts';
+import { calibrateReason, classify, DEFECTS, type Ended, type Ending, endingTable, issueLines } from './classify.ts';
 import { type Mutation, MUTATION_KINDS, mutateRelease } from './mutate.ts';
-import { CommandPool } from './pool.ts';
+import { CommandPool, type Outcome } from './pool.ts';
+import { STRUCTURE_CASES } from './structure.ts';
 
 const FUZZ_SEED = 20260514;
 const CASES = 150;
@@ -44,12 +51,56 @@ interface Case {
   mutation: Mutation;
   check?: Ended;
   calibrate?: Ended;
+  /** What each command printed on stderr. */
+  checkErr?: string;
+  calibrateErr?: string;
 }
 
 const parent = tempDir('rungbook-fuzz-');
 afterAll(() => rmSync(parent, { recursive: true, force: true }));
 
 const cases: Case[] = [];
+
+const stderrOf = (o: Outcome): string => ('timeout' in o ? '' : o.stderr);
+
+/** Run check and calibrate on a case, in the pool. */
+async function runBoth(pool: CommandPool, c: Case): Promise<void> {
+  const check = await pool.run(['check', c.dir], CASE_LIMIT_MS);
+  c.check = classify('check', check, c.dir, null);
+  c.checkErr = stderrOf(check);
+  const calibrate = await pool.run(['calibrate', c.dir, '--json', c.resultsFile], CASE_LIMIT_MS);
+  c.calibrate = classify('calibrate', calibrate, c.dir, c.resultsFile);
+  c.calibrateErr = stderrOf(calibrate);
+}
+
+/** Run check and calibrate on every case, two worker threads at most. */
+async function runAll(list: Case[]): Promise<void> {
+  const pool = new CommandPool(Math.max(1, Math.min(2, availableParallelism())));
+  try {
+    await Promise.all(list.map((c) => runBoth(pool, c)));
+  } finally {
+    await pool.close();
+  }
+}
+
+/**
+ * Where check is not the gate: a case check and calibrate end differently (one refuses, the other
+ * not, or one as an input problem and the other as an analysis problem), or refuse in other words.
+ */
+function notTheGate(c: Case): string | null {
+  const where = `case ${c.n} (${c.mutation.kind}, ${c.mutation.file}: ${c.mutation.description})`;
+  if (c.check!.ending !== c.calibrate!.ending) return `${where}: check ${c.check!.ending}, calibrate ${c.calibrate!.ending}\n${c.checkErr}\n${c.calibrateErr}`;
+  if (c.check!.ending === 'input error') {
+    const a = issueLines(c.checkErr!, c.dir);
+    const b = issueLines(c.calibrateErr!, c.dir);
+    if (a.length === 0 || a.join('\n') !== b.join('\n')) return `${where}: other problems\ncheck:\n${a.join('\n')}\ncalibrate:\n${b.join('\n')}`;
+  }
+  if (c.check!.ending === 'analysis error') {
+    const reason = calibrateReason(c.calibrateErr!);
+    if (reason === null || !c.checkErr!.includes(`rungbook check: ${c.dir}: ${reason}`)) return `${where}: other words\ncheck: ${c.checkErr}\ncalibrate: ${c.calibrateErr}`;
+  }
+  return null;
+}
 
 function count(rows: Map<string, Map<Ending, number>>, kind: string, e: Ending): void {
   const m = rows.get(kind) ?? new Map<Ending, number>();
@@ -67,17 +118,7 @@ describe('fuzz: damaged demo releases', () => {
       const mutation = mutateRelease(dir, MUTATION_KINDS[n % MUTATION_KINDS.length]!, rng);
       cases.push({ n, release, dir, resultsFile: join(caseDir, 'results.json'), mutation });
     }
-    const pool = new CommandPool(Math.max(1, Math.min(2, availableParallelism())));
-    try {
-      await Promise.all(
-        cases.map(async (c) => {
-          c.check = classify('check', await pool.run(['check', c.dir], CASE_LIMIT_MS), c.dir, null);
-          c.calibrate = classify('calibrate', await pool.run(['calibrate', c.dir, '--json', c.resultsFile], CASE_LIMIT_MS), c.dir, c.resultsFile);
-        }),
-      );
-    } finally {
-      await pool.close();
-    }
+    await runAll(cases);
 
     const byCheck = new Map<string, Map<Ending, number>>();
     const byCalibrate = new Map<string, Map<Ending, number>>();
@@ -103,11 +144,37 @@ describe('fuzz: damaged demo releases', () => {
     // and a release that check accepts is never refused by calibrate as an input problem.
     const disagree = cases.filter((c) => (c.check!.ending === 'input error') !== (c.calibrate!.ending === 'input error'));
     expect(disagree.map((c) => `case ${c.n}: ${c.mutation.description}: check ${c.check!.ending}, calibrate ${c.calibrate!.ending}`)).toEqual([]);
+    // check is the gate: it refuses exactly what calibrate refuses, in the same words, and nothing says "internal error".
+    expect(cases.map(notTheGate).filter((x) => x !== null)).toEqual([]);
+    expect(cases.filter((c) => /internal error/.test(`${c.checkErr}${c.calibrateErr}`)).map((c) => c.n)).toEqual([]);
     // The damage is real: most cases are refused, and some still calibrate.
     const refused = cases.filter((c) => c.check!.ending === 'input error').length;
     expect(refused).toBeGreaterThan(CASES / 2);
     expect(cases.some((c) => c.calibrate!.ending === 'ok')).toBe(true);
   }, 3_600_000);
+
+  it(`check refuses what calibrate refuses, in its words: one damaged release per rule (${STRUCTURE_CASES.length})`, async () => {
+    const structural: (Case & { expected: (typeof STRUCTURE_CASES)[number] })[] = STRUCTURE_CASES.map((s, i) => {
+      const caseDir = join(parent, `rule-${i}`);
+      const dir = copyDemo('2026.1', caseDir);
+      s.edit(dir);
+      return { n: CASES + i, release: '2026.1', dir, resultsFile: join(caseDir, 'results.json'), mutation: { kind: 'file' as const, file: s.name, description: s.rule }, expected: s };
+    });
+    await runAll(structural);
+    const rows = new Map<string, Map<Ending, number>>();
+    for (const c of structural) count(rows, c.expected.ending === 'analysis error' ? 'ladder' : c.expected.ending === 'ok' ? 'ignored file' : 'contract', c.check!.ending);
+    console.log(`\n${endingTable(`rungbook check on ${structural.length} releases, one per rule (calibrate ends the same way in each)`, [...rows.keys()], rows)}\n`);
+    for (const c of structural) {
+      const what = `${c.expected.name} (${c.expected.rule})`;
+      expect([c.check!.ending, c.calibrate!.ending], `${what}\n${c.checkErr}\n${c.calibrateErr}`).toEqual([c.expected.ending, c.expected.ending]);
+      if (c.expected.message) {
+        expect(c.checkErr, what).toMatch(c.expected.message);
+        expect(c.calibrateErr, what).toMatch(c.expected.message);
+      }
+      expect(notTheGate(c), what).toBeNull();
+      expect(`${c.checkErr}${c.calibrateErr}`, what).not.toMatch(/internal error/);
+    }
+  }, 600_000);
 
   it(`build ends cleanly on ${BUILD_CASES} damaged releases, with the site complete or absent`, async () => {
     expect(cases.length).toBe(CASES);

@@ -3,11 +3,15 @@
  * absent tables, the description of every input, errors gathered across
  * files, the cap per file, and that reading never writes.
  */
+import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { readdirSync, readFileSync, renameSync, statSync, unlinkSync, writeFileSync } from 'node:fs';
+import { chmodSync, copyFileSync, mkdirSync, readdirSync, readFileSync, renameSync, statSync, symlinkSync, unlinkSync, writeFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { describe, expect, test } from 'vitest';
-import { loadRelease } from '../../src/io/release.ts';
+import { classifyFolder, isIgnoredName } from '../../src/io/folder.ts';
+import { loadRelease, releaseFolderEntries } from '../../src/io/release.ts';
+import { runCheck } from '../../src/cli/check.ts';
 import { InputError, MAX_ISSUES_PER_FILE } from '../../src/types/issues.ts';
 import { TABLE_NAMES } from '../../src/types/release.ts';
 import { edited, issuesOf, loadValid, onlyIssue, setCell, tempDir, validRelease, writeRelease, type FixtureFormat } from './fixtures.ts';
@@ -159,6 +163,109 @@ describe('file names', () => {
   test('notes.md that is not UTF-8', () => {
     const dir = writeRelease(edited((d) => (d.extraFiles = { 'notes.md': Buffer.from('caf\u00e9\n', 'latin1') })));
     expect(onlyIssue(issuesOf(dir), 'not-utf8')).toMatchObject({ file: join(dir, 'notes.md'), line: 1 });
+  });
+});
+
+describe('no silent loss: names the release reads that are not readable regular files', () => {
+  const notAFile = (dir: string, name: string, found: string) =>
+    expect(onlyIssue(issuesOf(dir), 'not-a-file')).toMatchObject({ file: join(dir, name), expected: 'a regular file', found });
+
+  test('a table that is a folder is an error naming it (not a release without that table)', () => {
+    const dir = writeRelease(validRelease());
+    unlinkSync(join(dir, 'main_sequence.ecsv'));
+    mkdirSync(join(dir, 'main_sequence.ecsv'));
+    notAFile(dir, 'main_sequence.ecsv', 'a folder');
+    expect(onlyIssue(issuesOf(dir), 'not-a-file').message).toBe('the file of the table "main_sequence" is not a regular file, so it cannot be read');
+  });
+
+  test('a table that is a symbolic link to nothing', () => {
+    const dir = writeRelease(validRelease());
+    unlinkSync(join(dir, 'parallax.ecsv'));
+    symlinkSync(join(dir, 'no-such-file.ecsv'), join(dir, 'parallax.ecsv'));
+    notAFile(dir, 'parallax.ecsv', 'a symbolic link to nothing');
+  });
+
+  test('a table that is a symbolic link to a file is read as that file', () => {
+    const dir = writeRelease(validRelease());
+    renameSync(join(dir, 'parallax.ecsv'), join(dir, 'stars.data'));
+    symlinkSync(join(dir, 'stars.data'), join(dir, 'parallax.ecsv'));
+    expect(loadValid(dir).parallax).toHaveLength(3);
+  });
+
+  test('a table that is a named pipe (reading it would hang) is an error, not read', () => {
+    const dir = writeRelease(validRelease());
+    unlinkSync(join(dir, 'cepheids.ecsv'));
+    expect(spawnSync('mkfifo', [join(dir, 'cepheids.ecsv')]).status).toBe(0);
+    notAFile(dir, 'cepheids.ecsv', 'a special file (device, pipe or socket)');
+  });
+
+  test('systems, release.yaml and notes.md that are folders: one problem each, no "missing" besides', () => {
+    const dir = writeRelease(edited((d) => (d.extraFiles = { 'notes.md': 'n\n' })));
+    for (const name of ['systems.ecsv', 'release.yaml', 'notes.md']) {
+      unlinkSync(join(dir, name));
+      mkdirSync(join(dir, name));
+    }
+    const issues = issuesOf(dir);
+    expect(issues.map((i) => [relative(dir, i.file), i.code])).toEqual([
+      ['release.yaml', 'not-a-file'],
+      ['systems.ecsv', 'not-a-file'],
+      ['notes.md', 'not-a-file'],
+    ]);
+  });
+
+  test('other folders and links keep their treatment: ignored', () => {
+    const dir = writeRelease(validRelease());
+    mkdirSync(join(dir, 'plots'));
+    symlinkSync(join(dir, 'nowhere'), join(dir, 'README'));
+    expect(loadValid(dir).inputs).toHaveLength(7);
+  });
+
+  test('a file that cannot be read is an error naming it (run as an unprivileged user when the tests run as root, who may read anything)', () => {
+    const parent = tempDir();
+    chmodSync(parent, 0o755);
+    const dir = writeRelease(validRelease(), { folder: '2026.1' });
+    // writeRelease made its own parent; move the release where the unprivileged user can reach it.
+    const reachable = join(parent, '2026.1');
+    renameSync(dir, reachable);
+    chmodSync(reachable, 0o755);
+    for (const f of readdirSync(reachable)) chmodSync(join(reachable, f), 0o644);
+    chmodSync(join(reachable, 'cepheids.ecsv'), 0o000);
+    const cli = fileURLToPath(new URL('../../scripts/rungbook.mjs', import.meta.url));
+    const asUser = process.getuid?.() === 0 ? ['setpriv', '--reuid=65534', '--regid=65534', '--clear-groups', process.execPath] : [process.execPath];
+    const r = spawnSync(asUser[0]!, [...asUser.slice(1), cli, 'check', reachable], { encoding: 'utf8', env: { ...process.env, HOME: parent } });
+    expect(r.status, r.stderr).toBe(1);
+    expect(r.stderr).toContain(`${join(reachable, 'cepheids.ecsv')}: the file cannot be read; expected a file that the user running rungbook may read, found EACCES (permission denied) (give read permission (chmod a+r))`);
+    expect(r.stderr).not.toMatch(/internal error/);
+  });
+});
+
+describe('hidden files and editor backups are ignored and listed', () => {
+  test.each(['parallax.ecsv~', 'parallax.ecsv.bak', 'cepheids.ecsv.orig', '.cepheids.ecsv.swp', 'release.yaml~', '.DS_Store', 'notes.md.bak'])('%s', (name) => {
+    expect(isIgnoredName(name)).toBe(true);
+    const dir = writeRelease(validRelease());
+    writeFileSync(join(dir, name), 'garbage that is not a table\n');
+    // Never read: the release is as valid as without it, and nothing advises converting it.
+    expect(loadValid(dir).inputs).toHaveLength(7);
+    expect(classifyFolder(releaseFolderEntries(dir)).ignored).toEqual([name]);
+  });
+
+  test('look-alikes are not ignored: a misspelt table stays an error', () => {
+    for (const name of ['parallax.ecsv', 'bak.ecsv', 'origin.csv', 'notes.md']) expect(isIgnoredName(name), name).toBe(false);
+    const dir = writeRelease(validRelease());
+    copyFileSync(join(dir, 'parallax.ecsv'), join(dir, 'parralax.ecsv'));
+    expect(onlyIssue(issuesOf(dir), 'misspelt-file-name').file).toBe(join(dir, 'parralax.ecsv'));
+  });
+
+  test('check lists them as ignored, and no longer advises converting parallax.ecsv~ into a table', async () => {
+    const dir = writeRelease(edited((d) => setCell(d, 'systems', 0, 'kind', '')));
+    copyFileSync(join(dir, 'parallax.ecsv'), join(dir, 'parallax.ecsv~'));
+    writeFileSync(join(dir, '.hidden'), 'x');
+    const out: string[] = [];
+    const err: string[] = [];
+    expect(await runCheck([dir], { stdout: (s) => out.push(s), stderr: (s) => err.push(s) })).toBe(1);
+    expect(out).toEqual([`${dir}: ignored ".hidden", "parallax.ecsv~" (hidden files and editor backups are never read)`]);
+    expect(err.join('\n')).not.toContain('parallax.ecsv~');
+    expect(err.join('\n')).not.toContain('convert it');
   });
 });
 

@@ -39,13 +39,14 @@ const NUMERIC = TABLE_NAMES.flatMap((t) => fixtureColumns(t).filter((c) => specO
 const POSITIVE = TABLE_NAMES.flatMap((t) => fixtureColumns(t).filter((c) => specOf(t, c)?.positive).map((c) => [t, c] as [TableName, string]));
 
 describe('the contract itself, as the schema encodes it', () => {
-  test('every *_err column and the period must be > 0, and nothing else', () => {
+  test('every *_err column, the period and the Hubble-flow redshift must be > 0, and nothing else', () => {
     const positive = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => c.positive).map((c) => `${t}.${c.name}`));
-    const expected = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => c.name.endsWith('_err') || c.name === 'period').map((c) => `${t}.${c.name}`));
+    // The redshift: the model's Hubble-flow modulus is 5 log10(c z f(z)), defined for z > 0 only (release-format.md, the model).
+    const expected = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => c.name.endsWith('_err') || c.name === 'period' || (t === 'sn_hubble_flow' && c.name === 'z')).map((c) => `${t}.${c.name}`));
     expect(positive).toEqual(expected);
     // Counted by hand in release-format.md: systems 2, parallax 1, main_sequence 2,
-    // cepheids 4 (period and three *_err), sn_calibrators 3, sn_hubble_flow 4.
-    expect(positive.length).toBe(16);
+    // cepheids 4 (period and three *_err), sn_calibrators 3, sn_hubble_flow 5 (z and four *_err).
+    expect(positive.length).toBe(17);
   });
 
   test('optional columns are exactly those marked opt. in release-format.md', () => {

@@ -15,16 +15,26 @@
  *   markup was made from it.
  * A release whose folder name (and so its id) is hostile is refused before
  * anything is written, with a message naming it.
+ *
+ * A second build carries the corpus of code payloads (tests/trust/hostile.ts:
+ * notesPayloads, one release per payload, and namePayloads in the ids, title and
+ * variant names of a calibrated release), each of which writes its own canary
+ * file if it ever runs: the build exits 0, no canary exists, each payload reads
+ * back as text, and no page holds an element or attribute that the same page of
+ * a control release (benign notes with every Markdown construct, the original
+ * names) does not hold.
  */
-import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { appendFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { JSDOM } from 'jsdom';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { main } from '../../src/cli/main.ts';
 import { readEcsv } from '../../src/io/ecsv.ts';
 import { listFilesSync } from '../report/linkCheck.ts';
-import { HOSTILE, HOSTILE_TITLE, LONG_ID, type HostileRelease, writeHostileRelease } from './hostile.ts';
-import { copyDemo, setManifestId, tempDir } from './releaseCopy.ts';
+import { calibrateReleaseDir } from '../../src/cli/calibrate.ts';
+import { calibrateFixture } from '../fixtures/report/syntheticResults.ts';
+import { CONTROL_NOTES, HOSTILE, HOSTILE_TITLE, LONG_ID, namePayloads, notesPayloads, type HostileRelease, writeHostileRelease } from './hostile.ts';
+import { copyDemo, editTable, setManifestId, setManifestValue, tempDir } from './releaseCopy.ts';
 
 const BUILD_TIMEOUT_MS = 600_000;
 const BASE = '/h0/';
@@ -48,7 +58,7 @@ function page(rel: string): Document {
   }
   return d;
 }
-const htmlPages = () => listFilesSync(dist).filter((f) => f.endsWith('.html'));
+const htmlPages = (site = dist) => listFilesSync(site).filter((f) => f.endsWith('.html'));
 const rowHeaders = (d: Document, tableId: string) =>
   // The cell's own text node (a mark tag may follow it); the blanks around it come from the page template.
   Array.from(d.querySelectorAll(`section[aria-labelledby="table-${tableId}"] tbody th[scope="row"]`)).map((th) => th.firstChild?.textContent?.trim() ?? '');
@@ -74,60 +84,71 @@ describe('hostile text: the build', () => {
   });
 });
 
+/** What makes a page unsafe: a script, a frame, object, form or base, an event handler, a javascript: or data: target, a refresh elsewhere. */
+function executableProblems(d: Document, p: string, latest: string): string[] {
+  const problems: string[] = [];
+  if (d.querySelectorAll('script').length > 0) problems.push(`${p}: script element`);
+  if (d.querySelectorAll('iframe, frame, object, embed, form, base, applet').length > 0) problems.push(`${p}: frame, object, form or base`);
+  const all = Array.from(d.querySelectorAll('*'));
+  for (const a of all.flatMap((e) => e.getAttributeNames().filter((n) => n.toLowerCase().startsWith('on')))) problems.push(`${p}: event handler ${a}`);
+  const targets = all.flatMap((e) =>
+    ['href', 'src', 'action', 'formaction', 'xlink:href', 'srcset', 'poster', 'data'].flatMap((a) => (e.hasAttribute(a) ? [{ tag: e.tagName, value: e.getAttribute(a)! }] : [])),
+  );
+  for (const t of targets) {
+    // Browsers ignore blanks and control characters inside a scheme ("java\tscript:").
+    const v = t.value.replace(/[\u0000-\u0020\u007f-\u009f]/g, '').toLowerCase();
+    if (v.startsWith('javascript:') || v.startsWith('vbscript:')) problems.push(`${p}: ${t.tag} ${t.value}`);
+    if (v.startsWith('data:') && `${t.tag} ${t.value}` !== 'LINK data:,') problems.push(`${p}: ${t.tag} ${t.value.slice(0, 80)}`);
+  }
+  // The only meta refresh is the /latest/ redirect, to a page of ours.
+  for (const m of Array.from(d.querySelectorAll('meta[http-equiv]'))) if (m.getAttribute('content') !== `0; url=/h0/releases/${latest}/`) problems.push(`${p}: refresh ${m.getAttribute('content')}`);
+  return problems;
+}
+
+/** Ids that are not ours (unsafe characters, or repeated in the page), and internal links with unsafe paths. */
+function idProblems(d: Document, p: string): string[] {
+  const problems: string[] = [];
+  const ids = Array.from(d.querySelectorAll('[id]')).map((e) => e.id);
+  for (const id of ids) if (!SAFE_ID.test(id)) problems.push(`${p}: id ${JSON.stringify(id.slice(0, 80))}`);
+  const dup = ids.filter((x, i) => ids.indexOf(x) !== i);
+  if (dup.length > 0) problems.push(`${p}: duplicate ids ${dup.join(', ')}`);
+  for (const a of Array.from(d.querySelectorAll('[href], [src]'))) {
+    const v = a.getAttribute('href') ?? a.getAttribute('src')!;
+    if (/^https?:|^mailto:|^data:,$/.test(v)) continue;
+    const path = v.split('#')[0]!;
+    if (path !== '' && !SAFE_PATH.test(path)) problems.push(`${p}: ${v.slice(0, 120)}`);
+  }
+  return problems;
+}
+
+/** Standalone SVG figures with a script, foreignObject or event handler, and file names that are not ours. */
+function fileProblems(site: string): string[] {
+  const problems: string[] = [];
+  const svgs = listFilesSync(site).filter((f) => f.endsWith('.svg'));
+  if (svgs.length <= 10) problems.push(`only ${svgs.length} SVG figures`);
+  const parser = new JSDOM('').window;
+  for (const f of svgs) {
+    const xml = new parser.DOMParser().parseFromString(readFileSync(join(site, f), 'utf8'), 'image/svg+xml');
+    if (xml.querySelectorAll('script, foreignObject').length > 0) problems.push(`${f}: script or foreignObject`);
+    for (const a of Array.from(xml.querySelectorAll('*')).flatMap((e) => e.getAttributeNames().filter((n) => n.startsWith('on')))) problems.push(`${f}: ${a}`);
+  }
+  parser.close();
+  for (const f of listFilesSync(site)) if (!SAFE_PATH.test(f)) problems.push(`file name ${f}`);
+  return problems;
+}
+
 describe('hostile text: nothing executable in any page', () => {
-  it('has no script, no event handler, no unsafe link target, no frame, object, form or base', () => {
+  it('has no script, no event handler, no unsafe link target, no frame, object, form or base, in any page or standalone SVG figure', () => {
     const pages = htmlPages();
     expect(pages.length).toBeGreaterThan(20);
-    for (const p of pages) {
-      const d = page(p);
-      expect(d.querySelectorAll('script').length, p).toBe(0);
-      expect(d.querySelectorAll('iframe, frame, object, embed, form, base, applet').length, p).toBe(0);
-      const all = Array.from(d.querySelectorAll('*'));
-      expect(all.flatMap((e) => e.getAttributeNames().filter((a) => a.toLowerCase().startsWith('on'))), p).toEqual([]);
-      const targets = all.flatMap((e) =>
-        ['href', 'src', 'action', 'formaction', 'xlink:href', 'srcset', 'poster', 'data'].flatMap((a) => (e.hasAttribute(a) ? [{ tag: e.tagName, value: e.getAttribute(a)! }] : [])),
-      );
-      for (const t of targets) {
-        // Browsers ignore blanks and control characters inside a scheme ("java\tscript:").
-        const v = t.value.replace(/[\u0000-\u0020\u007f-\u009f]/g, '').toLowerCase();
-        expect(v.startsWith('javascript:') || v.startsWith('vbscript:'), `${p}: ${t.tag} ${t.value}`).toBe(false);
-        if (v.startsWith('data:')) expect(`${t.tag} ${t.value}`, p).toBe('LINK data:,');
-      }
-      // The only meta refresh is the /latest/ redirect, to a page of ours.
-      for (const m of Array.from(d.querySelectorAll('meta[http-equiv]'))) expect(m.getAttribute('content'), p).toMatch(/^0; url=\/h0\/releases\/2026\.1\/$/);
-    }
-  });
-
-  it('has no script and no event handler in any standalone SVG figure either', () => {
-    const svgs = listFilesSync(dist).filter((f) => f.endsWith('.svg'));
-    expect(svgs.length).toBeGreaterThan(10);
-    for (const f of svgs) {
-      const xml = new JSDOM(readFileSync(join(dist, f), 'utf8'), { contentType: 'image/svg+xml' }).window.document;
-      expect(xml.querySelectorAll('script, foreignObject').length, f).toBe(0);
-      expect(Array.from(xml.querySelectorAll('*')).flatMap((e) => e.getAttributeNames().filter((a) => a.startsWith('on'))), f).toEqual([]);
-    }
+    expect(pages.flatMap((p) => executableProblems(page(p), p, '2026.1'))).toEqual([]);
+    expect(fileProblems(dist)).toEqual([]);
   });
 });
 
 describe('hostile text: ids and file names are ours', () => {
-  it('gives every element id safe characters, unique within its page, and never a hostile string', () => {
-    for (const p of htmlPages()) {
-      const ids = Array.from(page(p).querySelectorAll('[id]')).map((e) => e.id);
-      for (const id of ids) expect(SAFE_ID.test(id), `${p}: id ${JSON.stringify(id.slice(0, 80))}`).toBe(true);
-      expect(ids.length - new Set(ids).size, `${p}: duplicate ids ${ids.filter((x, i) => ids.indexOf(x) !== i).join(', ')}`).toBe(0);
-    }
-  });
-
-  it('keeps every file name and every internal link path to safe characters', () => {
-    for (const f of listFilesSync(dist)) expect(SAFE_PATH.test(f), f).toBe(true);
-    for (const p of htmlPages()) {
-      for (const a of Array.from(page(p).querySelectorAll('[href], [src]'))) {
-        const v = a.getAttribute('href') ?? a.getAttribute('src')!;
-        if (/^https?:|^mailto:|^data:,$/.test(v)) continue;
-        const path = v.split('#')[0]!;
-        if (path !== '') expect(SAFE_PATH.test(path), `${p}: ${v.slice(0, 120)}`).toBe(true);
-      }
-    }
+  it('gives every element id safe characters, unique within its page, never a hostile string; keeps every file name and internal link path to safe characters', () => {
+    expect(htmlPages().flatMap((p) => idProblems(page(p), p))).toEqual([]);
   });
 });
 
@@ -246,4 +267,162 @@ describe('hostile text: a hostile release id', () => {
       rmSync(dir, { recursive: true, force: true });
     }
   }, BUILD_TIMEOUT_MS);
+});
+
+describe('hostile corpus: text of a release never runs as code', () => {
+  const corpus = join(tmp, 'corpus');
+  const corpusDist = join(tmp, 'corpus-dist');
+  const canaries = join(tmp, 'canaries');
+  const payloads = notesPayloads(canaries);
+  const names = namePayloads(canaries);
+  /** Folder (and id) of the release that carries payload i. */
+  const folderOf = (i: number) => `notes-${String(i + 1).padStart(2, '0')}`;
+  let code = -1;
+  let err = '';
+  /** Hostile id -> the id it replaced, in the release "names". */
+  const renamed = new Map<string, string>();
+
+  const writeRelease = (id: string, notes: string) => {
+    mkdirSync(join(corpus, id), { recursive: true });
+    writeFileSync(join(corpus, id, 'release.yaml'), `id: ${JSON.stringify(id)}\ntitle: "Corpus release ${id}"\ndate: "2026-01-01"\nprevious: null\nblinded: false\n`);
+    writeFileSync(join(corpus, id, 'notes.md'), notes);
+  };
+
+  beforeAll(async () => {
+    mkdirSync(canaries, { recursive: true });
+    // Notes: one release per payload and a control, with synthetic results (the notes' path through the build does not depend on them).
+    payloads.forEach((p, i) => writeRelease(folderOf(i), p.notes));
+    writeRelease('notes-control', CONTROL_NOTES);
+    // Names: demo release 2026.1 with code in ids, the title and variant names, calibrated for real; and its control.
+    for (const id of ['names', 'names-control']) {
+      const dir = copyDemo('2026.1', corpus, id);
+      writeFileSync(join(dir, 'notes.md'), CONTROL_NOTES);
+      appendFileSync(join(dir, 'release.yaml'), `    - { name: "plain variant one", clip_sigma: 3.4 }\n    - { name: "plain variant two", clip_sigma: 3.6 }\n`);
+      if (id === 'names-control') continue;
+      const hosts = ['Ivyreach', 'Juniperfold', 'Kettlemoor', 'Lindenmarsh'];
+      names.ids.slice(0, hosts.length).forEach((to, i) => renamed.set(to, hosts[i]!));
+      const calibrators = new Map<string, string>();
+      editTable(dir, 'sn_calibrators', (t, col) => {
+        const sns = t.rows.map((r) => r[col('sn')]!);
+        names.ids.slice(hosts.length).forEach((to, i) => {
+          calibrators.set(sns[i]!, to);
+          renamed.set(to, sns[i]!);
+        });
+      });
+      const systems = new Map([...renamed].filter(([, from]) => hosts.includes(from)).map(([to, from]) => [from, to]));
+      for (const table of ['systems', 'cepheids', 'sn_calibrators']) {
+        editTable(dir, table, (t, col) => {
+          for (const r of t.rows) r[col('system')] = systems.get(r[col('system')]!) ?? r[col('system')]!;
+          if (table === 'sn_calibrators') for (const r of t.rows) r[col('sn')] = calibrators.get(r[col('sn')]!) ?? r[col('sn')]!;
+        });
+      }
+      setManifestValue(dir, 'title', JSON.stringify(names.title));
+      const yaml = readFileSync(join(dir, 'release.yaml'), 'utf8').replace('"plain variant one"', JSON.stringify(names.variants[0])).replace('"plain variant two"', JSON.stringify(names.variants[1]));
+      writeFileSync(join(dir, 'release.yaml'), yaml);
+    }
+    const io = {
+      stdout: () => undefined,
+      stderr: (s: string) => void (err += s),
+      workDir: join(tmp, 'corpus-work'),
+      cacheDir: join(tmp, 'corpus-cache'),
+      calibrate: (dir: string) => (existsSync(join(dir, 'systems.ecsv')) ? calibrateReleaseDir(dir) : calibrateFixture(dir)),
+      compare: null,
+    };
+    code = await main(['build', '--releases', corpus, '--out', corpusDist, '--base', BASE], io as Parameters<typeof main>[1]);
+    if (code !== 0) return;
+    // One pass over the pages (about eight hundred: each is parsed once and let go, by one parser,
+    // since a window per page would keep its script context alive).
+    const latest = /url=\/h0\/releases\/([^/]+)\//.exec(readFileSync(join(corpusDist, 'latest', 'index.html'), 'utf8'))![1]!;
+    const parser = new JSDOM('').window;
+    for (const p of htmlPages(corpusDist)) {
+      const d = new parser.DOMParser().parseFromString(readFileSync(join(corpusDist, p), 'utf8'), 'text/html');
+      pageProblems.push(...executableProblems(d, p, latest), ...idProblems(d, p));
+      const release = /^releases\/([^/]+)\//.exec(p)?.[1];
+      if (release !== undefined) {
+        const sig = signatures.get(release) ?? new Set<string>();
+        for (const e of Array.from(d.querySelectorAll('*'))) {
+          const tag = e.tagName.toLowerCase();
+          sig.add(tag);
+          for (const a of e.getAttributeNames()) sig.add(`${tag}[${a}]`);
+        }
+        signatures.set(release, sig);
+      }
+      const match = /^releases\/(notes-\d+)\/index\.html$/.exec(p);
+      if (match) {
+        const notes = d.querySelector('[aria-labelledby="notes"] .prose');
+        notesText.set(match[1]!, notes?.textContent ?? null);
+        notesMarkup.set(match[1]!, notes ? notes.querySelectorAll('script, style, img, iframe, object, embed, form, input, base, svg, math, .katex').length : -1);
+      }
+      if (/^releases\/names\/(cepheids|supernovae|variants)?\/?index\.html$/.test(p)) {
+        namesShown.set(p, {
+          cepheidSystems: rowHeaders(d, 'cepheid-systems'),
+          calibrators: rowHeaders(d, 'calibrators'),
+          h1: d.querySelector('main h1')?.textContent ?? null,
+          text: d.body.textContent ?? '',
+        });
+      }
+    }
+    parser.close();
+  }, BUILD_TIMEOUT_MS);
+
+  /** Tags and tag[attribute] pairs of every element of each release's pages. */
+  const signatures = new Map<string, Set<string>>();
+  const pageProblems: string[] = [];
+  const notesText = new Map<string, string | null>();
+  const notesMarkup = new Map<string, number>();
+  const namesShown = new Map<string, { cepheidSystems: string[]; calibrators: string[]; h1: string | null; text: string }>();
+  const signature = (release: string): Set<string> => signatures.get(release) ?? new Set();
+
+  it(`builds ${payloads.length} releases of hostile notes, a release of hostile names and their controls: exit 0, nothing on stderr`, () => {
+    expect(payloads.length + names.ids.length + 1 + names.variants.length).toBeGreaterThanOrEqual(30);
+    expect(err).toBe('');
+    expect(code).toBe(0);
+    for (const id of [...payloads.map((_, i) => folderOf(i)), 'notes-control', 'names', 'names-control']) expect(existsSync(join(corpusDist, 'releases', id, 'index.html')), id).toBe(true);
+  });
+
+  it('leaves no canary: no payload ran during the build', () => {
+    const expected = [...payloads.flatMap((p) => (p.canary ? [p.canary] : [])), ...names.canaries];
+    expect(expected.length).toBeGreaterThanOrEqual(30);
+    expect(readdirSync(canaries)).toEqual([]);
+    for (const c of expected) expect(existsSync(c), c).toBe(false);
+  });
+
+  it.each(payloads.map((p, i) => [p.name, p.kind, i] as const))('notes payload %s (%s) reads back as text', (_name, _kind, i) => {
+    const p = payloads[i]!;
+    const text = notesText.get(folderOf(i));
+    expect(typeof text).toBe('string');
+    for (const s of p.shows) expect(text!.includes(s), `${p.name}: ${JSON.stringify(s.slice(0, 120))}`).toBe(true);
+    expect(notesMarkup.get(folderOf(i))).toBe(0);
+  });
+
+  it('gives no page of a notes release an element or attribute that the control release does not have', () => {
+    const control = signature('notes-control');
+    // The control holds every construct of the notes (so the comparison is not vacuous).
+    for (const x of ['h3[id]', 'h6[id]', 'blockquote', 'table', 'th[align]', 'pre', 'del', 'br', 'sup', 'section[data-footnotes]', 'a[data-footnote-ref]', 'ol[start]']) expect(control.has(x), x).toBe(true);
+    payloads.forEach((p, i) => expect([...signature(folderOf(i))].filter((x) => !control.has(x)), p.name).toEqual([]));
+  });
+
+  it('gives no page of the names release an element or attribute that its control does not have', () => {
+    expect(signature('names').size).toBeGreaterThan(50);
+    const extra = [...signature('names')].filter((x) => !signature('names-control').has(x));
+    expect(extra).toEqual([]);
+  });
+
+  it('shows every hostile name as text: ids in the tables, the title in the heading, the variant names on the variants page', () => {
+    const cep = namesShown.get('releases/names/cepheids/index.html')!.cepheidSystems;
+    const hosts = [...renamed].filter(([, from]) => ['Ivyreach', 'Juniperfold', 'Kettlemoor', 'Lindenmarsh'].includes(from)).map(([to]) => to);
+    expect(hosts).toHaveLength(4);
+    for (const h of hosts) expect(cep, h).toContain(h);
+    const sns = namesShown.get('releases/names/supernovae/index.html')!.calibrators;
+    for (const sn of names.ids.slice(4)) expect(sns, sn).toContain(sn);
+    expect(namesShown.get('releases/names/index.html')!.h1).toBe(names.title);
+    const variants = namesShown.get('releases/names/variants/index.html')!.text;
+    for (const v of names.variants) expect(variants, v).toContain(v);
+  });
+
+  it('keeps every page of the corpus build free of anything executable, with ids and paths of ours', () => {
+    expect(signatures.size).toBe(payloads.length + 3);
+    expect(pageProblems).toEqual([]);
+    expect(fileProblems(corpusDist)).toEqual([]);
+  });
 });

@@ -163,6 +163,18 @@ describe('a published folder whose files changed is refused by check, calibrate 
     expect((await run(['check', dir])).code).toBe(0);
   });
 
+  it('ignores an editor backup and a hidden file that appear later, as every reader does', async () => {
+    const backup = join(dir, 'cepheids.ecsv~');
+    writeFileSync(backup, readFileSync(join(dir, 'cepheids.ecsv')));
+    writeFileSync(join(dir, '.editor-state'), 'x');
+    const check = await run(['check', dir]);
+    expect(check.err).toBe('');
+    expect(check.code).toBe(0);
+    expect(check.out).toContain(`${dir}: ignored ".editor-state", "cepheids.ecsv~" (hidden files and editor backups are never read)`);
+    unlinkSync(backup);
+    unlinkSync(join(dir, '.editor-state'));
+  });
+
   it('names an unreadable publication record', async () => {
     const rec = join(dir, PUBLISHED_FILE);
     const text = readFileSync(rec);
