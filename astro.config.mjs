@@ -1,8 +1,9 @@
 // Astro configuration of the static report.
 //
 // The pages under site/ lay out what src/report generated (JSON data, prose as
-// sanitised HTML inside JSON, figure files). There is no MDX: no text of a data
-// release can reach a compiler (DEVELOPERS.md, "Data never becomes code"). Where those generated files live, and where the site is
+// sanitised HTML inside JSON, figure files). Nothing generated is MDX: no text of a
+// data release can reach a compiler (DEVELOPERS.md, "Data never becomes code"). The MDX
+// integration is for authored, trusted prose only. Where those generated files live, and where the site is
 // hosted, come from the environment so that `rungbook build` (src/cli/build.ts)
 // and a plain `npx astro build` agree:
 //
@@ -15,6 +16,7 @@
 //
 // trailingSlash 'always' keeps `${BASE_URL}x` joins correct under a base path.
 import { defineConfig } from 'astro/config';
+import mdx from '@astrojs/mdx';
 import remarkMath from 'remark-math';
 import rehypeKatex from 'rehype-katex';
 import { fileURLToPath } from 'node:url';
@@ -66,6 +68,8 @@ export default defineConfig({
   build: { format: 'directory', inlineStylesheets: 'never' },
   devToolbar: { enabled: false },
   prefetch: false,
+  // Authored pages only (nothing generated from a release is ever .mdx; tests/trust/noGeneratedMdx.test.ts).
+  integrations: [mdx()],
   markdown: {
     remarkPlugins: [remarkMath],
     // strict 'ignore': a method note may use \lt and friends; errors still fail the build below.
