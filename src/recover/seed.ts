@@ -9,7 +9,7 @@ import type { Release } from '../types/release.ts';
 import type { Results } from '../types/results.ts';
 import { publishedQuantities, type QuantityMap } from './quantities.ts';
 import { simulateRelease, type SimulateOptions } from './simulate.ts';
-import { truthFromResults, type RecoveryTruth } from './truth.ts';
+import { truthFromResults, truthQuantities, type RecoveryTruth } from './truth.ts';
 
 /** One quantity of one seed: the simulated fit's estimate and error, the truth, and the pull. */
 export interface SeedQuantity {
@@ -36,11 +36,12 @@ export interface SeedContext {
 }
 
 export function seedContext(release: Release, truthResults: Results, codeVersion: string, options: SimulateOptions = {}): SeedContext {
+  const truth = truthFromResults(release, truthResults);
   return {
     release,
     truthResults,
-    truth: truthFromResults(release, truthResults),
-    truthQuantities: publishedQuantities(truthResults),
+    truth,
+    truthQuantities: truthQuantities(truth, publishedQuantities(truthResults)),
     codeVersion,
     options,
   };

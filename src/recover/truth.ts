@@ -1,6 +1,6 @@
 /**
  * The truth of a recovery run: the release's own baseline fit, read from its results (the
- * structure of results.json). Simulated releases are drawn from the model with these values,
+ * structure of results.json); `truthQuantities` gives the true value of each followed quantity. Simulated releases are drawn from the model with these values,
  * so a recovery tests the pipeline where the collaboration's data actually are.
  *
  * For a blinded release this is the blinded fit: a_B (hence H0 and the Hubble-flow magnitudes)
@@ -8,6 +8,7 @@
  */
 import type { Release } from '../types/release.ts';
 import type { LocusResult, Results } from '../types/results.ts';
+import type { QuantityMap } from './quantities.ts';
 
 export interface RecoveryTruth {
   mW: number;
@@ -22,7 +23,7 @@ export interface RecoveryTruth {
   sigmaIntSn: number;
   /** True parallax zero point, mas (the fitted one; the stated one when the fit has none). */
   parallaxZeroPointMas: number;
-  /** Final distance modulus of each system that has one. */
+  /** True distance modulus of each system that has one (see truthFromResults). */
   systemMu: Record<string, number>;
   /** True E(B-V) of each system: the fitted value of a main-sequence target, else the stated one. */
   systemEbv: Record<string, number>;
@@ -42,8 +43,14 @@ function param(r: Results, name: string, fallback: number): number {
 /** The truth for simulations shaped like `release`, from its own fit `results`. */
 export function truthFromResults(release: Release, r: Results): RecoveryTruth {
   const a = release.analysis;
+  // One true distance per system, consistent across its rungs: its own rung's distance where it
+  // has one (anchors, main-sequence targets: the stars of that rung are drawn with it, together
+  // with the E(B-V) fitted on the same rung), else the final one (Cepheid hosts).
   const systemMu: Record<string, number> = {};
-  for (const s of r.systems) if (s.mu !== null && Number.isFinite(s.mu)) systemMu[s.id] = s.mu;
+  for (const s of r.systems) {
+    const mu = s.mu_prior ?? s.mu;
+    if (mu !== null && Number.isFinite(mu)) systemMu[s.id] = mu;
+  }
   const systemEbv: Record<string, number> = {};
   const systemFeh: Record<string, number> = {};
   for (const s of release.systems) {
@@ -76,4 +83,20 @@ export function truthFromResults(release: Release, r: Results): RecoveryTruth {
     fieldStarParallaxMas,
     locus: r.rungs.main_sequence.locus,
   };
+}
+
+/**
+ * The true value of each followed quantity: the release's own fit, except the distances and
+ * E(B-V) of systems, which are the values the simulation draws with (a system's final and
+ * own-rung distance moduli estimate the same true distance).
+ */
+export function truthQuantities(truth: RecoveryTruth, fit: QuantityMap): QuantityMap {
+  const out: QuantityMap = new Map();
+  for (const [key, q] of fit) {
+    const sys = /^systems\.(.+)\.(mu|mu_prior|ebv)$/.exec(key);
+    let value = q.value;
+    if (sys) value = (sys[2] === 'ebv' ? truth.systemEbv[sys[1]!] : truth.systemMu[sys[1]!]) ?? q.value;
+    out.set(key, { value, err: q.err });
+  }
+  return out;
 }
