@@ -71,10 +71,39 @@ export interface Statistic {
   verdict: Verdict;
 }
 
+/** Histogram of the pulls for the report's figure: HISTOGRAM_BINS bins of HISTOGRAM_WIDTH from -HISTOGRAM_EDGE. */
+export const HISTOGRAM_EDGE = 5;
+export const HISTOGRAM_WIDTH = 0.5;
+export const HISTOGRAM_BINS = (2 * HISTOGRAM_EDGE) / HISTOGRAM_WIDTH;
+
+export interface PullHistogram {
+  /** Left edge of the first bin and the bin width. */
+  from: number;
+  width: number;
+  counts: number[];
+  /** Pulls below the first bin and above the last. */
+  below: number;
+  above: number;
+}
+
+export function pullHistogram(z: readonly number[]): PullHistogram {
+  const counts = new Array<number>(HISTOGRAM_BINS).fill(0);
+  let below = 0;
+  let above = 0;
+  for (const x of z) {
+    const i = Math.floor((x + HISTOGRAM_EDGE) / HISTOGRAM_WIDTH);
+    if (i < 0) below++;
+    else if (i >= HISTOGRAM_BINS) above++;
+    else counts[i]!++;
+  }
+  return { from: -HISTOGRAM_EDGE, width: HISTOGRAM_WIDTH, counts, below, above };
+}
+
 export interface QuantitySummary {
   key: string;
   /** Seeds that gave this quantity. */
   n: number;
+  histogram: PullHistogram;
   mean: Statistic;
   sd: Statistic;
   coverage1: Statistic;
@@ -142,6 +171,7 @@ export function summarisePulls(key: string, z: readonly number[], bounds: Bounds
   const s: Omit<QuantitySummary, 'verdict'> = {
     key,
     n,
+    histogram: pullHistogram(z),
     mean: stat(mean, sd / Math.sqrt(n), 0, bounds.mean),
     sd: stat(sd, sd / Math.sqrt(2 * (n - 1)), 1, bounds.sd),
     // A coverage of exactly 0 or 1 has a binomial standard error of 0; the verdict then uses the
