@@ -16,7 +16,7 @@ import { describeQuantity } from '../recover/quantities.ts';
 import { defaultWorkers } from '../recover/pool.ts';
 import { recoverRelease } from '../recover/run.ts';
 import { headerLine, mergeSeedFiles, parseShard, seedLineText, type SeedsHeader } from '../recover/shard.ts';
-import { serializeSummary, summarise, type RecoverySummary, type Statistic } from '../recover/summary.ts';
+import { RECOVERY_FILE, serializeSummary, summarise, type RecoverySummary, type Statistic } from '../recover/summary.ts';
 import type { SeedLine } from '../recover/seed.ts';
 import { codeVersion } from '../version.ts';
 import { parseArgs, processIO, UsageError, type CliIO } from './output.ts';
@@ -25,8 +25,6 @@ export const RECOVER_USAGE =
   'usage: rungbook recover <release-dir> --seeds N [--first S] [--shard K/M] [--workers W] [--out FILE] [--summary FILE]\n' +
   '       rungbook recover --merge FILES... [--summary FILE]';
 
-/** The summary file the report reads beside a release. */
-export const RECOVERY_FILE = 'recovery.json';
 
 function integer(name: string, text: string | undefined, fallback: number, min: number): number {
   if (text === undefined) return fallback;

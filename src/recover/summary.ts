@@ -18,6 +18,9 @@ import type { SeedLine } from './seed.ts';
 
 export const RECOVERY_SCHEMA = 'rungbook.recovery/1';
 
+/** The summary's file name beside a release, where the report finds it. */
+export const RECOVERY_FILE = 'recovery.json';
+
 /** Standard normal CDF, from erf(x) = P(1/2, x^2) (Abramowitz & Stegun 7.1.1 with 6.5.1). */
 export function normalCdf(x: number): number {
   const erf = 1 - upperRegularizedGamma(0.5, (x * x) / 2);
@@ -40,6 +43,11 @@ export const MAX_ABS_MEAN_PULL = 0.2;
 export const PULL_SD_BAND: readonly [number, number] = [0.85, 1.15];
 
 /** A statistic fails when its whole +-2 standard-error interval lies outside its band (seed noise cannot explain it). */
+/**
+ * Below this many seeds a quantity's verdict is inconclusive whatever its statistics: the
+ * standard errors above are large-sample approximations (common practice, no source).
+ */
+export const MIN_SEEDS_FOR_VERDICT = 20;
 export const VERDICT_SE_MULTIPLE = 2;
 
 export interface Bounds {
@@ -179,7 +187,7 @@ export function summarisePulls(key: string, z: readonly number[], bounds: Bounds
     coverage1: { ...stat(c1, coverSe(c1), e1, bounds.coverage1), verdict: statisticVerdict(c1, Math.max(coverSe(c1), coverSe(e1)), bounds.coverage1) },
     coverage2: { ...stat(c2, coverSe(c2), e2, bounds.coverage2), verdict: statisticVerdict(c2, Math.max(coverSe(c2), coverSe(e2)), bounds.coverage2) },
   };
-  const verdict = n < 2 ? 'inconclusive' : combine([s.mean.verdict, s.sd.verdict, s.coverage1.verdict, s.coverage2.verdict]);
+  const verdict = n < MIN_SEEDS_FOR_VERDICT ? 'inconclusive' : combine([s.mean.verdict, s.sd.verdict, s.coverage1.verdict, s.coverage2.verdict]);
   return { ...s, verdict };
 }
 
@@ -243,4 +251,37 @@ export function summarise(header: SummaryHeader, lines: readonly SeedLine[]): Re
 /** recovery.json text: two-space JSON with a final newline (byte-stable). */
 export function serializeSummary(s: RecoverySummary): string {
   return `${JSON.stringify(s, null, 2)}\n`;
+}
+
+/**
+ * Read a recovery.json (the report reads the one beside a release). Throws an Error naming the
+ * file and the first field that is not as this code writes it.
+ */
+export function parseRecoverySummary(file: string, text: string): RecoverySummary {
+  let v: unknown;
+  try {
+    v = JSON.parse(text);
+  } catch (e) {
+    throw new Error(`${file}: not JSON (${(e as Error).message}); write it with rungbook recover`);
+  }
+  const bad = (what: string) => new Error(`${file}: ${what}; write it again with rungbook recover`);
+  const s = v as RecoverySummary;
+  if (!s || typeof s !== 'object' || s.schema !== RECOVERY_SCHEMA) throw bad(`"schema" is not "${RECOVERY_SCHEMA}"`);
+  if (!s.release || typeof s.release.id !== 'string' || typeof s.release.blinded !== 'boolean' || typeof s.release.inputs_hash !== 'string') throw bad('"release" is not { id, blinded, inputs_hash }');
+  if (!['pass', 'fail', 'inconclusive'].includes(s.verdict) || typeof s.verdict_reason !== 'string') throw bad('"verdict" is not pass, fail or inconclusive with its reason');
+  if (!s.seeds || !['first', 'count', 'calibrated', 'failed'].every((k) => Number.isInteger((s.seeds as unknown as Record<string, unknown>)[k]))) throw bad('"seeds" is not { first, count, calibrated, failed }');
+  if (!Array.isArray(s.quantities)) throw bad('"quantities" is not a list');
+  const num = (x: unknown) => x === null || typeof x === 'number';
+  for (const [i, q] of s.quantities.entries()) {
+    const ok =
+      q &&
+      typeof q.key === 'string' &&
+      Number.isInteger(q.n) &&
+      (['mean', 'sd', 'coverage1', 'coverage2'] as const).every((k) => q[k] && num(q[k].value) && num(q[k].se) && ['pass', 'fail', 'inconclusive'].includes(q[k].verdict)) &&
+      q.histogram &&
+      Array.isArray(q.histogram.counts) &&
+      q.histogram.counts.every((c) => Number.isInteger(c));
+    if (!ok) throw bad(`quantities[${i}] is not a quantity summary`);
+  }
+  return s;
 }

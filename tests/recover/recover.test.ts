@@ -103,7 +103,8 @@ describe('recover on demo release 2026.3, 200 seeds', () => {
       expect(q.coverage1.verdict).toBe(verdict(c1, Math.max(nominalSe(c1), nominalSe(0.682689492)), b.coverage1));
       expect(q.coverage2.verdict).toBe(verdict(c2, Math.max(nominalSe(c2), nominalSe(0.954499736)), b.coverage2));
       const all = [q.mean.verdict, q.sd.verdict, q.coverage1.verdict, q.coverage2.verdict];
-      expect(q.verdict).toBe(all.includes('fail') ? 'fail' : all.includes('inconclusive') ? 'inconclusive' : 'pass');
+      // below 20 seeds every quantity is inconclusive (large-sample standard errors)
+      expect(q.verdict).toBe(n < 20 ? 'inconclusive' : all.includes('fail') ? 'fail' : all.includes('inconclusive') ? 'inconclusive' : 'pass');
     }
     const anyFail = summary.quantities.some((q) => q.verdict === 'fail') || summary.seeds.failed > 0;
     const anyUnclear = summary.quantities.some((q) => q.verdict === 'inconclusive');
