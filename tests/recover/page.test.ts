@@ -71,7 +71,7 @@ describe('the recovery page', () => {
     expect(text).toContain('Recovery tests the model against itself: it cannot find an effect the simulation leaves out.');
     expect(text).toContain('Internal results for collaboration review');
     expect(text).toContain(`Verdict: ${s.verdict}`);
-    const rows = [...doc.querySelectorAll('#recovery-pulls-table tbody tr, table tbody tr')].filter((tr) => tr.closest('table')?.querySelector('caption')?.textContent?.includes('Pull ='));
+    const rows = [...doc.querySelectorAll('section[aria-labelledby="table-recovery-pulls-table"] tbody tr')];
     expect(rows).toHaveLength(s.quantities.length);
     rows.forEach((tr, i) => {
       const q = s.quantities[i]!;
