@@ -19,6 +19,7 @@ import { capture, hasNumberToken, tempDir, writeKeyFile } from '../blinding/help
 import { expectClean, openInChromium, type SiteInBrowser } from '../browser/visit.ts';
 import { buildInTemp, type FixtureBuild } from '../report/fixtureBuild.ts';
 import { checkLinks } from '../report/linkCheck.ts';
+import { HALF_UNIT_1ST_DECIMAL, HALF_UNIT_3RD_DECIMAL } from '../tolerances.ts';
 
 const RELEASES = join(import.meta.dirname, '../../content/releases');
 const DEMO_KEY = 'lantern-demo-key-NOT-SECRET-7c1f0e9a2b5d4863';
@@ -79,14 +80,14 @@ describe('the recovery page', () => {
       expect(cells[0]).toContain(describeQuantity(q.key));
       expect(number(cells[1]!)).toBe(q.n);
       const [mean, meanSe] = cells[2]!.split(' ± ').map(number);
-      expect(Math.abs(mean! - q.mean.value)).toBeLessThanOrEqual(0.0005);
-      expect(Math.abs(meanSe! - q.mean.se)).toBeLessThanOrEqual(0.0005);
+      expect(Math.abs(mean! - q.mean.value)).toBeLessThanOrEqual(HALF_UNIT_3RD_DECIMAL);
+      expect(Math.abs(meanSe! - q.mean.se)).toBeLessThanOrEqual(HALF_UNIT_3RD_DECIMAL);
       const [sd] = cells[3]!.split(' ± ').map(number);
-      expect(Math.abs(sd! - q.sd.value)).toBeLessThanOrEqual(0.0005);
+      expect(Math.abs(sd! - q.sd.value)).toBeLessThanOrEqual(HALF_UNIT_3RD_DECIMAL);
       const [c1] = cells[4]!.replace(' %', '').split(' ± ').map(number);
-      expect(Math.abs(c1! - 100 * q.coverage1.value)).toBeLessThanOrEqual(0.05);
+      expect(Math.abs(c1! - 100 * q.coverage1.value)).toBeLessThanOrEqual(HALF_UNIT_1ST_DECIMAL);
       const [c2] = cells[5]!.replace(' %', '').split(' ± ').map(number);
-      expect(Math.abs(c2! - 100 * q.coverage2.value)).toBeLessThanOrEqual(0.05);
+      expect(Math.abs(c2! - 100 * q.coverage2.value)).toBeLessThanOrEqual(HALF_UNIT_1ST_DECIMAL);
       expect(cells[6]).toBe(q.verdict);
     });
   });

@@ -7,12 +7,17 @@
  *   Grav. 21, 2603, eq. for d_L to second order; from memory).
  * Kind: recovery machinery (DEVELOPERS.md, kind 2). Normalised residuals must have mean 0 and SD 1
  * within 4 standard errors for their number n (1/sqrt(n) and 1/sqrt(2n)).
+ * Also: shards and seeds files (hand-written, no calibration) and the command's refusals.
  */
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { releaseAndTruth } from '../../src/recover/run.ts';
 import { ERROR_NEIGHBOURS, simulateRelease } from '../../src/recover/simulate.ts';
-import { shardSeeds } from '../../src/recover/shard.ts';
+import { headerLine, mergeSeedFiles, SEEDS_SCHEMA, seedLineText, shardSeeds, type SeedsHeader } from '../../src/recover/shard.ts';
+import type { SeedLine } from '../../src/recover/seed.ts';
+import { main } from '../../src/cli/main.ts';
+import { InputError } from '../../src/types/issues.ts';
+import { capture } from '../blinding/helpers.ts';
 import { truthFromResults } from '../../src/recover/truth.ts';
 
 const DEMO = join(import.meta.dirname, '../../content/releases/2026.3');
@@ -128,5 +133,57 @@ describe('shards', () => {
         expect(all).toEqual(Array.from({ length: count }, (_, i) => 11 + i));
       }
     }
+  });
+});
+
+describe('seeds files', () => {
+  // Hand-written files (no calibration): a header and seed lines as `rungbook recover --shard` writes them.
+  const header = (k: number, m: number, over: Partial<SeedsHeader> = {}): SeedsHeader => ({
+    schema: SEEDS_SCHEMA,
+    release: { id: 'r', blinded: false, inputs_hash: 'h' },
+    code_version: 'v',
+    first: 1,
+    count: 4,
+    shard: { k, m },
+    keys: ['H0'],
+    ...over,
+  });
+  const line = (seed: number): SeedLine => ({ seed, quantities: { H0: { estimate: 70 + seed / 10, error: 1, truth: 70, pull: seed / 10 } } });
+  const file = (h: SeedsHeader, seeds: number[]) => headerLine(h) + seeds.map((s) => seedLineText(line(s))).join('');
+
+  it('merge in any order to the lines of the whole run', () => {
+    const merged = mergeSeedFiles([
+      { file: 'b', text: file(header(2, 2), [3, 4]) },
+      { file: 'a', text: file(header(1, 2), [1, 2]) },
+    ]);
+    expect(merged.lines.map((l) => l.seed)).toEqual([1, 2, 3, 4]);
+  });
+
+  it('refuse a shard cut short, a wrong seed, or a shard of another run, naming file and line', () => {
+    const cut = () => mergeSeedFiles([{ file: 'a', text: file(header(1, 2), [1]) }, { file: 'b', text: file(header(2, 2), [3, 4]) }]);
+    expect(cut).toThrow(InputError);
+    expect(cut).toThrow(/a:2: shard 1\/2 is incomplete/);
+    const wrong = () => mergeSeedFiles([{ file: 'a', text: file(header(1, 2), [1, 3]) }, { file: 'b', text: file(header(2, 2), [3, 4]) }]);
+    expect(wrong).toThrow(/a:3: unexpected seed/);
+    const other = () => mergeSeedFiles([{ file: 'a', text: file(header(1, 2), [1, 2]) }, { file: 'b', text: file(header(2, 2, { code_version: 'w' }), [3, 4]) }]);
+    expect(other).toThrow(/b:1: the file belongs to another run than a \(its "code_version" differs\)/);
+    const notJson = () => mergeSeedFiles([{ file: 'a', text: `${headerLine(header(1, 1))}{"seed": 1, "quan` }]);
+    expect(notJson).toThrow(/a:2: the line is not JSON/);
+  });
+});
+
+describe('the command line', () => {
+  it('refuses bad options with a usage error (exit 2)', async () => {
+    for (const args of [[DEMO], [DEMO, '--seeds', '0'], [DEMO, '--seeds', '5', '--shard', '4/3'], [DEMO, '--seeds', '5', '--shard', '1/3', '--summary', 'x.json'], ['--merge']]) {
+      const c = capture();
+      expect(await main(['recover', ...args], c.io), args.join(' ')).toBe(2);
+      expect(c.err()).toMatch(/rungbook recover: /);
+    }
+  });
+
+  it('refuses a release folder it cannot read, naming it (exit 1)', async () => {
+    const c = capture();
+    expect(await main(['recover', join(DEMO, 'no-such-release'), '--seeds', '2', '--out', '/nonexistent-dir/x.jsonl'], c.io)).toBe(1);
+    expect(c.err()).toContain('no-such-release');
   });
 });
