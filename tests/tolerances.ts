@@ -28,6 +28,9 @@ export const MAG_1E9 = 1e-9;
 /** Half a unit in the 4th decimal: a value tabulated to 4 decimals matches to within its rounding. */
 export const HALF_UNIT_4TH_DECIMAL = 5e-5;
 
+/** Half a unit in the 1st decimal: a value a page writes with 1 decimal (a percentage) matches to within its rounding. */
+export const HALF_UNIT_1ST_DECIMAL = 0.05;
+
 /** Relative error |a - b| / |b| (b is the reference); exact zero only when both are zero. */
 export function relErr(a: number, b: number): number {
   if (a === b) return 0;

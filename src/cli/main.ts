@@ -21,6 +21,10 @@ usage:
                      and the blinding id (default id: main); in place only before the first commit
   rungbook unblind   <release-dir> --by NAME [--key-file FILE] [--date YYYY-MM-DD]
                      check the key against the release's commitment and record the unblinding
+  rungbook recover   <release-dir> --seeds N [--first S] [--shard K/M] [--workers W] [--out FILE] [--summary FILE]
+  rungbook recover   --merge FILES... [--summary FILE]
+                     simulate releases shaped like this one (its own fit as the truth), calibrate each and
+                     check the pulls: recovery.json beside the release, one JSON line per seed
   The blinding key comes from --key-file or the environment variable RUNGBOOK_BLINDING_KEY,
   never from the repository.
 `;
@@ -43,6 +47,7 @@ const COMMANDS: Record<string, () => Promise<Command>> = {
   blind: async () => (await import('./blind.ts')).runBlind,
   unblind: async () => (await import('./blind.ts')).runUnblind,
   publish: async () => (await import('./publish.ts')).runPublish,
+  recover: async () => (await import('./recover.ts')).runRecover,
 };
 
 export async function main(argv: string[], io: CliIO = processIO): Promise<number> {

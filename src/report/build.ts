@@ -31,6 +31,7 @@ import { calibrationCodeHash, comparisonCodeHash, hashTree, listFiles, reportCod
 import { releasePath, REQUIRED_NOTES } from './pageData.ts';
 import { createProgress } from './progress.ts';
 import { publishedView } from './published.ts';
+import { parseRecoverySummary, RECOVERY_FILE, type RecoverySummary } from '../recover/summary.ts';
 import type { PageLink, PublishedView, ReleaseSummary } from './types.ts';
 import { acquireLock } from './lock.ts';
 import { beginWork, type WorkState } from './workState.ts';
@@ -219,6 +220,7 @@ async function generateReleaseCached(
   figures: readonly ReleaseFigure[],
   comparison: DiffReport | null,
   next: PageLink[],
+  recovery: RecoverySummary | null = null,
 ): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
   const id = results.release.id;
   const stampFile = join(layout.root, 'stamps', `${id}.json`);
@@ -231,6 +233,7 @@ async function generateReleaseCached(
     figures.map((f) => f.id).join(','),
     JSON.stringify(comparison),
     JSON.stringify(next),
+    JSON.stringify(recovery),
   );
   const old = await readIfExists(stampFile);
   if (old !== null) {
@@ -243,7 +246,7 @@ async function generateReleaseCached(
     }
   }
   await rm(stampFile, { force: true });
-  const summary = await generateRelease(layout, { results, notes, previousBuilt, published, comparison, next }, figures);
+  const summary = await generateRelease(layout, { results, notes, previousBuilt, published, comparison, next, recovery }, figures);
   await mkdir(join(layout.root, 'stamps'), { recursive: true });
   await writeFile(stampFile, generatedJson({ stamp, summary }));
   return { summary, regenerated: true };
@@ -449,7 +452,11 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
         progress.step(`figures and pages of release ${r.release.id}`);
         const notes = await readIfExists(join(c.dir, 'notes.md'));
         const previousBuilt = r.release.previous !== null && idSet.has(r.release.previous);
-        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures, comparisons.get(r.release.id) ?? null, nextOf(r.release.id));
+        // A recovery summary beside the release (rungbook recover) gives it a recovery page.
+        const recoveryFile = join(c.dir, RECOVERY_FILE);
+        const recoveryText = await readIfExists(recoveryFile);
+        const recovery = recoveryText === null ? null : parseRecoverySummary(recoveryFile, recoveryText);
+        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures, comparisons.get(r.release.id) ?? null, nextOf(r.release.id), recovery);
         if (!g.regenerated) progress.step('  unchanged, kept');
         summaries.push(g.summary);
         releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });

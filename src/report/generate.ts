@@ -23,6 +23,9 @@ import { headline, releaseData, releasePath } from './pageData.ts';
 import { svgToPng } from './png.ts';
 import { notesHtml, summaryHtml } from './prose.ts';
 import { resultTables } from './resultTables.ts';
+import { recoveryPage, recoveryView } from './recovery.ts';
+import { recoveryPulls } from './figures/recoveryPulls.ts';
+import type { RecoverySummary } from '../recover/summary.ts';
 import { type ComparisonView, type DownloadLink, type FigureRef, GENERATED_MARK, type PageLink, type PublishedView, type ReleaseSummary, type SiteData } from './types.ts';
 
 /** One figure of a release: its stable id and the function that draws it (null: its rung has no data). */
@@ -88,6 +91,8 @@ export interface ReleaseGenInput {
   comparison?: DiffReport | null;
   /** Comparison pages of later releases that compare themselves with this one. */
   next?: PageLink[];
+  /** recovery.json beside the release (rungbook recover), or null: then the release has a recovery page. */
+  recovery?: RecoverySummary | null;
 }
 
 /** Generate every file of one release; returns its entry for the home page. */
@@ -159,6 +164,18 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     comparison,
     next: input.next ?? [],
   });
+  // The recovery page, when the release has a recovery summary beside it.
+  if (input.recovery) {
+    const spec = recoveryPulls(input.recovery);
+    const ids: string[] = [];
+    if (spec) {
+      figures[spec.id] = await writeFigure(layout, releasePath(id, 'figures/'), spec);
+      ids.push(spec.id);
+    }
+    data.recovery = recoveryView(input.recovery, r, ids);
+    const figuresPage = data.pages.findIndex((p) => p.path === releasePath(id, 'figures/'));
+    data.pages.splice(figuresPage < 0 ? data.pages.length : figuresPage, 0, recoveryPage(id));
+  }
   const { generated: _mark, ...rest } = data;
   await put(join(layout.dataDir, 'releases', `${id}.json`), generatedJson(rest));
   return { id, title: r.release.title, date: r.release.date, blinded: r.blinded, reached: r.reached, headline: headline(r), path: releasePath(id) };

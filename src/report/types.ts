@@ -164,6 +164,25 @@ export interface ReleaseData {
   pages: PageLink[];
   /** Set when the release is published: the pages show the published results, and this notice. */
   published: PublishedView | null;
+  /** The recovery page's content, when a recovery.json sits beside the release (absent or null: no page). */
+  recovery?: RecoveryView | null;
+}
+
+/** The recovery page (src/report/recovery.ts): a summary written by `rungbook recover`. */
+export interface RecoveryView {
+  verdict: 'pass' | 'fail' | 'inconclusive';
+  verdictReason: string;
+  keyValues: KeyValue[];
+  table: TableView;
+  figures: string[];
+  /** The summary was made from a blinded release: its truth is the blinded fit. */
+  blinded: boolean;
+  /** false when recovery.json was made from other data than the release holds now. */
+  matchesData: boolean;
+  /** Seeds whose simulated release the ladder refused. */
+  failures: string[];
+  /** The verdict's bounds, formatted. */
+  bounds: { mean: string; sd: string; coverage1: string; coverage2: string };
 }
 
 /** One published value that a recomputation with the current code moves. */

@@ -51,6 +51,9 @@ export interface RenderOptions {
   marks: Plot.Markish[];
   x?: Plot.ScaleOptions;
   y?: Plot.ScaleOptions;
+  /** Facet scales (small multiples), when the marks have fx / fy channels. */
+  fx?: Plot.ScaleOptions;
+  fy?: Plot.ScaleOptions;
   marginLeft?: number;
   marginRight?: number;
   marginTop?: number;
@@ -71,6 +74,8 @@ export function renderSvg(o: RenderOptions): { svg: string; width: number; heigh
     ariaLabel: o.label,
     x: { labelAnchor: 'center', labelArrow: 'none', ...o.x },
     y: { labelAnchor: 'center', labelArrow: 'none', ...o.y },
+    ...(o.fx ? { fx: o.fx } : {}),
+    ...(o.fy ? { fy: o.fy } : {}),
     marks: o.marks,
   }) as unknown as Element;
   if (el.tagName.toLowerCase() !== 'svg') {
