@@ -18,8 +18,23 @@
 import { EQUAL_MASS_BINARY_OFFSET_MAG } from '../constants/index.ts';
 import { cholesky, choleskySolve, zeros, type Matrix } from '../math/matrix.ts';
 import { polyDerivative, polyValue, powerBasis } from '../math/polynomial.ts';
-import { binaryProbability, mixtureCurvature, mixtureSensitivity } from './mainSequenceMixture.ts';
+import { binaryProbability, mixtureCurvature, mixtureLogLikelihood, mixtureSensitivity } from './mainSequenceMixture.ts';
 import { MAX_EM_ITERATIONS } from './mainSequenceLocus.ts';
+
+/**
+ * The interval searched for a free E(B-V) (mag). Slightly negative values are allowed so that a
+ * target with almost no reddening is not pushed up by the bound (an estimate scatters about its
+ * true value); above 1.5 mag main-sequence fitting in B-V is not used in practice (common
+ * practice, no source).
+ */
+export const FREE_EBV_INTERVAL: readonly [number, number] = [-0.1, 1.5];
+/** Starts of a free E every 0.2 mag (8 starts): on simulated targets with three times the demo's errors every start within 0.2 mag of the truth ends at the same solution. */
+const FREE_EBV_START_STEP = 0.2;
+/** The search from each start stops at this step (mag); the chosen solution is then polished to STEP_TOL. */
+const SEARCH_STEP_TOL = 1e-6;
+/** Solutions of a free E closer than this (mag, in E and mu) are the same. */
+const SAME_SOLUTION_MAG = 1e-3;
+
 
 /** (mu, E) steps below this (mag) and fraction changes below it end the EM loop. */
 const STEP_TOL = 1e-11;
@@ -85,6 +100,17 @@ function median(values: readonly number[]): number {
  * the cycle). Cost O(iterations n).
  */
 export function fitTarget(stars: readonly TargetStarInput[], locus: LocusForTargets, opts: TargetFitOptions): TargetFit {
+  if (opts.prior.kind === 'free') return fitTargetFreeReddening(stars, locus, opts);
+  return fitTargetFrom(stars, locus, opts, { ebv: opts.prior.ebv, bounds: [-Infinity, Infinity] });
+}
+
+/** The fit from a given start of E, with E kept within bounds (used for a free E only). */
+function fitTargetFrom(
+  stars: readonly TargetStarInput[],
+  locus: LocusForTargets,
+  opts: TargetFitOptions,
+  start: { ebv: number; bounds: readonly [number, number]; tolerance?: number },
+): TargetFit {
   const delta = EQUAL_MASS_BINARY_OFFSET_MAG;
   const { rV, fehSlope, feh, prior } = opts;
   const freeE = prior.kind !== 'fixed';
@@ -96,7 +122,8 @@ export function fitTarget(stars: readonly TargetStarInput[], locus: LocusForTarg
   const priorInfo = prior.kind === 'gaussian' ? 1 / prior.ebvErr ** 2 : 0;
   const priorPull = (ebv: number) => (prior.kind === 'gaussian' ? (ebv - prior.ebv) / prior.ebvErr ** 2 : 0);
 
-  let ebv = prior.kind === 'free' ? 0 : prior.ebv;
+  const clamp = (e: number) => Math.min(start.bounds[1], Math.max(start.bounds[0], e));
+  let ebv = start.ebv;
   let used = inRange(ebv);
   const resid = (s: TargetStarInput, m: number, e: number) => s.mag - (P(s.color - e) - fehSlope * feh + m + rV * e);
   let mu = median(stars.filter((_, i) => used[i]).map((s) => resid(s, 0, ebv)).concat(used.some(Boolean) ? [] : [0]));
@@ -142,12 +169,13 @@ export function fitTarget(stars: readonly TargetStarInput[], locus: LocusForTarg
       const step = choleskySolve(l, g.map((x) => -x));
       const before = objective(mu, ebv, q, v);
       let t = 1;
-      while (t > 1e-6 && objective(mu + t * step[0], freeE ? ebv + t * step[1] : ebv, q, v) > before) t /= 2;
+      while (t > 1e-6 && objective(mu + t * step[0], freeE ? clamp(ebv + t * step[1]) : ebv, q, v) > before) t /= 2;
+      const ebvBefore = ebv;
       mu += t * step[0];
-      if (freeE) ebv += t * step[1];
-      const moved = Math.max(Math.abs(t * step[0]), freeE ? Math.abs(t * step[1]) : 0, Math.abs(newFraction - fraction));
+      if (freeE) ebv = clamp(ebv + t * step[1]);
+      const moved = Math.max(Math.abs(t * step[0]), Math.abs(ebv - ebvBefore), Math.abs(newFraction - fraction));
       fraction = newFraction;
-      if (moved < STEP_TOL) return true;
+      if (moved < (start.tolerance ?? STEP_TOL)) return true;
     }
     return false;
   };
@@ -176,6 +204,60 @@ export function fitTarget(stars: readonly TargetStarInput[], locus: LocusForTarg
   }
 
   return finish(stars, locus, opts, { mu, ebv, fraction, used, iterations, converged });
+}
+
+/**
+ * A target without a reddening prior. The fit above redoes its star sample after each fit, and
+ * on sparse or noisy photometry E can walk from a start at 0: dropping stars loosens the fit,
+ * which allows a further step (seen in simulated releases: E(B-V) = 0.63 for a true value below
+ * 0.1, until too few stars were left). So the fit is started every FREE_EBV_START_STEP across
+ * FREE_EBV_INTERVAL and kept inside it; distinct solutions are compared on the stars that both
+ * use (the same data for both, mixture likelihood of mainSequenceMixture.ts), and the one that
+ * beats every other is kept. E is refused, saying why, when that solution lies at an end of the
+ * interval or its error is wider than the interval: the photometry cannot fix it.
+ */
+function fitTargetFreeReddening(stars: readonly TargetStarInput[], locus: LocusForTargets, opts: TargetFitOptions): TargetFit {
+  const [a, b] = FREE_EBV_INTERVAL;
+  const found: TargetFit[] = [];
+  let lastError: Error | null = null;
+  for (let e = a + FREE_EBV_START_STEP / 2; e < b; e += FREE_EBV_START_STEP) {
+    try {
+      const fit = fitTargetFrom(stars, locus, opts, { ebv: e, bounds: FREE_EBV_INTERVAL, tolerance: SEARCH_STEP_TOL });
+      if (!found.some((f) => Math.abs(f.ebv - fit.ebv) < SAME_SOLUTION_MAG && Math.abs(f.mu - fit.mu) < SAME_SOLUTION_MAG)) found.push(fit);
+    } catch (err) {
+      if (!(err instanceof RangeError)) throw err;
+      lastError = err; // this start leaves too few stars in range; others may not
+    }
+  }
+  if (found.length === 0) throw lastError ?? new RangeError('no start of E(B-V) gives a fit');
+  const deviance = (fit: TargetFit, common: boolean[]) => {
+    const r: number[] = [];
+    const v: number[] = [];
+    stars.forEach((s, i) => {
+      if (!common[i]) return;
+      const c0 = s.color - fit.ebv - locus.pivot;
+      r.push(s.mag - (polyValue(locus.coeffs, c0) - opts.fehSlope * opts.feh + fit.mu + opts.rV * fit.ebv));
+      v.push(s.magErr ** 2 + (polyDerivative(locus.coeffs, c0) * s.colorErr) ** 2 + locus.scatter ** 2);
+    });
+    return -2 * mixtureLogLikelihood(r, v, fit.binaryFraction, EQUAL_MASS_BINARY_OFFSET_MAG);
+  };
+  const beats = (x: TargetFit, y: TargetFit) => {
+    const common = x.used.map((u, i) => u && y.used[i]);
+    return deviance(x, common) <= deviance(y, common);
+  };
+  const wins = found.map((x) => found.filter((y) => y !== x && beats(x, y)).length);
+  const searched = found[found.map((_, i) => i).sort((i, j) => wins[j] - wins[i] || found[i].ebv - found[j].ebv)[0]];
+  // Polish the chosen solution to the full tolerance.
+  const best = fitTargetFrom(stars, locus, opts, { ebv: searched.ebv, bounds: FREE_EBV_INTERVAL });
+  const ebvErr = Math.sqrt(best.covFit[1][1]);
+  if (best.ebv <= a + 1e-9 || best.ebv >= b - 1e-9 || !(ebvErr < b - a)) {
+    throw new RangeError(
+      `E(B-V) is not constrained by the photometry: the best fit lies at ${best.ebv.toFixed(3)}` +
+        (Number.isFinite(ebvErr) ? ` +- ${ebvErr.toFixed(3)}` : '') +
+        ` (searched ${a} to ${b}); the photometric errors are too large for the curvature of the locus to fix E`,
+    );
+  }
+  return best;
 }
 
 /** Curvature and sensitivities at the solution. */
