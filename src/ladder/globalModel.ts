@@ -125,6 +125,18 @@ export class ParameterIndex {
     return this.index.get(name);
   }
 
+  /**
+   * The global parameters (zeta and the relations' coefficients): every parameter that is not
+   * one object's distance. The GLS eliminates the distances object by object around them.
+   */
+  get globals(): number[] {
+    const out: number[] = [];
+    this.names.forEach((name, i) => {
+      if (!name.startsWith('mu:')) out.push(i);
+    });
+    return out;
+  }
+
   has(name: string): boolean {
     return this.index.has(name);
   }
@@ -149,6 +161,8 @@ export interface PreparedModel {
   zeta: number | undefined;
   priorRows: SparseRow[];
   fieldParam: number[];
+  /** params.globals, computed once. */
+  globals: number[];
   cepheid: { index: number; key: string; row: SparseRow; w: number; wErr2: number }[];
   calibrator: { index: number; key: string; row: SparseRow }[];
   hubble: { index: number; key: string; row: SparseRow }[];
@@ -193,7 +207,7 @@ export function prepareModel(input: GlobalFitInput, params: ParameterIndex): Pre
     key: rowKey('sn_hubble_flow', h.row.sn),
     row: { idx: [aB!], coef: [-5] },
   }));
-  return { input, params, zeta, priorRows, fieldParam, cepheid, calibrator, hubble };
+  return { input, params, zeta, priorRows, fieldParam, globals: params.globals, cepheid, calibrator, hubble };
 }
 
 /** Which rows to build: all, only the supernova rows (they depend on alpha, beta), or the rest. */
@@ -317,5 +331,5 @@ export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart
     );
   }
 
-  return { problem: { nParams: params.size, paramNames: params.names, blocks }, refs };
+  return { problem: { nParams: params.size, paramNames: params.names, blocks, globals: prep.globals }, refs };
 }
