@@ -22,6 +22,7 @@ import {
   blockResiduals,
   blockVariance,
   chiSquare,
+  chiSquareAround,
   SingularFitError,
   solveGls,
   varianceBySource,
@@ -139,10 +140,12 @@ function describeParam(name: string): string {
 /**
  * Profile chi-square in (alpha, beta), everything else held. Only the supernova rows depend
  * on alpha and beta, so the normal equations of the other rows are accumulated once and each
- * evaluation adds the supernova rows and solves by block elimination. The chi-square is summed
- * from the whitened residuals, not taken as c - b^T q: that difference cancels about five
- * digits (c ~ sum m^2/v), and the Newton step in (alpha, beta) takes second differences of this
- * function, which would carry that rounding into alpha, beta and their errors.
+ * evaluation adds the supernova rows and solves by block elimination. The chi-square is not
+ * taken as c - b^T q: that difference cancels about five digits (c ~ sum m^2/v), and the Newton
+ * step in (alpha, beta) takes second differences of this function, which would carry that
+ * rounding into alpha, beta and their errors. The supernova rows' part is summed from their
+ * residuals; the other rows' part, exactly quadratic in q, is expanded about the solution at
+ * the current (alpha, beta) with its value and gradient summed from residuals (chiSquareAround).
  */
 function profileChi2Function(
   prep: PreparedModel,
@@ -151,11 +154,17 @@ function profileChi2Function(
 ): (alpha: number, beta: number) => number {
   const staticProblem = buildModel(prep, state, 'static').problem;
   const fixedPart = accumulateNormal(emptyNormal(st), staticProblem.blocks);
-  return (alpha, beta) => {
+  const solveAt = (alpha: number, beta: number) => {
     const snProblem = buildModel(prep, { ...state, alpha, beta }, 'supernovae').problem;
+    const { q } = solveNormal(accumulateNormal(copyNormal(fixedPart), snProblem.blocks), prep.params.names);
+    return { q, snProblem };
+  };
+  let staticChi2: ((q: ArrayLike<number>) => number) | null = null;
+  return (alpha, beta) => {
     try {
-      const { q } = solveNormal(accumulateNormal(copyNormal(fixedPart), snProblem.blocks), prep.params.names);
-      return chiSquare(staticProblem, q) + chiSquare(snProblem, q);
+      const { q, snProblem } = solveAt(alpha, beta);
+      staticChi2 ??= chiSquareAround(staticProblem, fixedPart, solveAt(state.alpha, state.beta).q);
+      return staticChi2(q) + chiSquare(snProblem, q);
     } catch (e) {
       if (e instanceof SingularFitError) return solveOrExplain(buildModel(prep, state), st).chi2;
       throw e;
@@ -267,9 +276,18 @@ function residualsOf(model: BuiltModel, sol: GlsSolution, rejected: ReadonlySet<
   return out;
 }
 
-export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
+export interface GlobalFitOptions {
+  /**
+   * false: treat every parameter as global, i.e. factor the whole p x p normal matrix (cost p^3
+   * per solve). Only for tests that check the block elimination against it; default true.
+   */
+  eliminate?: boolean;
+}
+
+export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {}): GlobalFitResult {
   const params = new ParameterIndex(input);
-  const prep = prepareModel(input, params);
+  const prepared = prepareModel(input, params);
+  const prep = options.eliminate === false ? { ...prepared, globals: params.names.map((_, i) => i) } : prepared;
   const p = params.size;
   const { analysis } = input;
   const hasSn = input.calibrators.length + input.hubbleFlow.length > 0;
