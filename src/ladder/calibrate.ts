@@ -62,6 +62,15 @@ function cached<T>(map: Map<string, T>, key: string, compute: () => T): T {
   return v;
 }
 
+/** The parallax and main-sequence rungs for these choices, from the cache or computed into it. */
+export function earlyRungs(release: Release, analysis: AnalysisChoices, cache: RungCache) {
+  const parallax = cached(cache.parallax, keyOf(analysis, PARALLAX_KEYS), () => fitParallaxRung(release, analysis));
+  const mainSequence = cached(cache.mainSequence, keyOf(analysis, MAIN_SEQUENCE_KEYS), () =>
+    fitMainSequenceRung(release, analysis, parallax),
+  );
+  return { parallax, mainSequence };
+}
+
 /**
  * One pass of the ladder with the given analysis choices. Refuses first, before any fit, a
  * release whose structure the ladder cannot use (src/ladder/requirements.ts); what remains to
@@ -70,11 +79,8 @@ function cached<T>(map: Map<string, T>, key: string, compute: () => T): T {
 export function runLadder(release: Release, analysis: AnalysisChoices, cache: RungCache = newRungCache()): LadderRun {
   requireLadder(release, analysis);
   const checks: CheckResult[] = [];
-  const parallax = cached(cache.parallax, keyOf(analysis, PARALLAX_KEYS), () => fitParallaxRung(release, analysis));
+  const { parallax, mainSequence } = earlyRungs(release, analysis, cache);
   checks.push(...parallax.checks);
-  const mainSequence = cached(cache.mainSequence, keyOf(analysis, MAIN_SEQUENCE_KEYS), () =>
-    fitMainSequenceRung(release, analysis, parallax),
-  );
   checks.push(...mainSequence.checks);
   const priors = buildDistancePriors(parallax, mainSequence);
   const hubbleFlow = selectHubbleFlow(release.snHubbleFlow, analysis);
