@@ -9,7 +9,8 @@
  *   (scripts/bench/dense_gls.py: the N x N covariance of the same rows at the same fixed
  *   scatters, alpha and beta, solved with numpy.linalg) with the ratio and the H0 agreement.
  *   Options: --scales 1,4,8,16 (default), --dense-max-scale S (skip the dense solve above S;
- *   at 16x it needs about 2 GB and, with Debian's reference BLAS, tens of minutes).
+ *   at 16x it needs about 2 GB and, with Debian's reference BLAS, tens of minutes),
+ *   --sections engine,recovery,build,diff (default: all).
  *   Recovery seeds: 8 injection-recovery seeds on 1 and 2 worker threads.
  *   Report build: the demo from a cold cache, again with nothing changed, and 20 releases.
  *   Comparison: a full comparison with attribution of the demo pair, in one thread and with two
@@ -28,6 +29,7 @@ const option = (name: string, fallback: string) => {
 };
 const scales = option('scales', '1,4,8,16').split(',').map(Number);
 const denseMaxScale = Number(option('dense-max-scale', '16'));
+const sections = new Set(option('sections', 'engine,recovery,build,diff').split(','));
 const PYTHON = process.env.RUNGBOOK_PYTHON ?? '/usr/bin/python3';
 
 interface EngineRun {
@@ -74,6 +76,7 @@ function calibrateProcess(dir: string, workers: number, out: string): ProcessRun
   return { wallMs, peakMb: kb / 1024 };
 }
 
+if (sections.has('engine')) {
 console.log('rungbook benchmark — engine (release 2026.3 of the demo generated at each scale; one process per measurement)');
 console.log(`machine load at start (1-min average): ${(await import('node:os')).loadavg()[0].toFixed(2)}\n`);
 const rowsOut: { e: EngineRun; nv: ProcessRun; w1: ProcessRun; w2: ProcessRun; dense: DenseRun | null }[] = [];
@@ -134,7 +137,10 @@ for (const r of rowsOut) {
   );
 }
 
+}
+
 // ---- injection-recovery seeds on worker threads ---------------------------------------------
+if (sections.has('recovery')) {
 const recovery = (workers: number) =>
   JSON.parse(lastLine(execFileSync(process.execPath, ['--import', 'tsx', here('./bench/recovery.ts'), '--seeds', '8', '--workers', String(workers)], { encoding: 'utf8' }))) as {
     seeds: number;
@@ -146,7 +152,10 @@ const rec2 = recovery(2);
 console.log('\ninjection-recovery seeds (tests/recovery, src/parallel/pool.ts)');
 console.log(`  ${rec1.seeds} seeds: 1 worker ${fmt(rec1.ms / 1000, 2)} s, 2 workers ${fmt(rec2.ms / 1000, 2)} s -> ${fmt(rec2.ms / rec1.ms, 2)} of the 1-worker time`);
 
+}
+
 // ---- report build (issue: versioned report) --------------------------------------------------
+if (sections.has('build')) {
 interface BuildRun {
   wallMs: number;
   timingsMs: { calibrate: number; compare: number; generate: number; site: number; total: number };
@@ -170,7 +179,10 @@ for (const [name, r] of [
 }
 console.log(`  rebuild with nothing changed: ${fmt((100 * b.warm.timingsMs.site) / b.warm.wallMs, 0)} % of its time in Astro`);
 
+}
+
 // ---- release comparison (issue: comparing data releases) --------------------------------------
+if (sections.has('diff')) {
 interface DiffRun {
   scale: number;
   rows: { a: number; b: number };
@@ -209,3 +221,4 @@ const d16 = diffRuns[2]![1];
 const rowRatio = (d16.rows.a + d16.rows.b) / (d1.rows.a + d1.rows.b);
 console.log(`  scaling 1x -> 16x: rows x${fmt(rowRatio, 1)}, time x${fmt(d16.ms / d1.ms, 1)} -> ${fmt(d16.ms / d1.ms / rowRatio, 2)} per row (1.0 = linear)`);
 console.log(`  worker threads at 1x: ${fmt(diffRuns[1]![1].ms / d1.ms, 2)} of the one-thread time (thread start-up included)`);
+}
