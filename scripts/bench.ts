@@ -96,7 +96,7 @@ for (const scale of scales) {
       dense = { ...(JSON.parse(lastLine(out)) as DenseRun), wallMs: performance.now() - t };
     }
     rowsOut.push({ e, nv, w1, w2, dense });
-    console.error(`  (${scale}x measured)`);
+    console.error(`  (${scale}x measured) ${JSON.stringify({ e, nv, w1, w2, dense })}`);
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }

@@ -20,7 +20,7 @@ import {
   solveNormal,
   blockLeverages,
   blockResiduals,
-  blockVariance,
+  cachedVariance,
   chiSquare,
   chiSquareAround,
   SingularFitError,
@@ -261,7 +261,7 @@ function residualsOf(model: BuiltModel, sol: GlsSolution, rejected: ReadonlySet<
   const out: RowResidual[] = [];
   model.problem.blocks.forEach((block, b) => {
     const r = blockResiduals(block, sol.q);
-    const v = blockVariance(block);
+    const v = cachedVariance(block);
     const diag = block.diagonal ? (v as number[]) : (v as number[][]).map((row, i) => row[i]);
     model.refs[b].forEach((ref, i) => {
       out.push({
@@ -339,7 +339,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
         const group = groupOf(model.refs[b][0]?.table ?? '');
         if (!group) return;
         const r = blockResiduals(block, sol.q);
-        const v = blockVariance(block) as number[];
+        const v = cachedVariance(block) as number[];
         const h = blockLeverages(block, cov);
         const gs = stats[group];
         for (let i = 0; i < r.length; i++) {
@@ -510,7 +510,7 @@ function sandwichCovariance(
   model.problem.blocks.forEach((block, b) => {
     if (!block.diagonal) return; // prior rows carry no alpha/beta; their q-scores are small and omitted
     const r = blockResiduals(block, sol.q);
-    const v = blockVariance(block) as number[];
+    const v = cachedVariance(block) as number[];
     const h = blockLeverages(block, fInv);
     model.refs[b].forEach((ref, i) => {
       let dr = [0, 0];

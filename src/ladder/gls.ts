@@ -84,6 +84,21 @@ export function blockVariance(block: RowBlock): number[] | number[][] {
   return m;
 }
 
+/**
+ * blockVariance and a dense block's Cholesky factor, computed once per block object: a fit
+ * iteration reads them several times (normal equations, chi-square, leverages, residuals), and a
+ * block is never changed after it is built (buildModel makes new blocks for new values).
+ */
+const varianceCache = new WeakMap<RowBlock, number[] | number[][]>();
+const factorCache = new WeakMap<RowBlock, Float64Array>();
+
+/** blockVariance, computed once per block; the array is shared: read it, never change it. */
+export function cachedVariance(block: RowBlock): number[] | number[][] {
+  let v = varianceCache.get(block);
+  if (!v) varianceCache.set(block, (v = blockVariance(block)));
+  return v;
+}
+
 /** Whitened form of a dense block: rows (dense over the block's parameter set) and y. */
 interface WhitenedBlock {
   params: number[];
@@ -97,7 +112,9 @@ interface WhitenedBlock {
 
 /** Cholesky factor of a dense block's covariance (the core's policy: a typed error if not SPD). */
 function denseBlockFactor(block: RowBlock): Float64Array {
-  return choleskyOfRows(blockVariance(block) as number[][]);
+  let l = factorCache.get(block);
+  if (!l) factorCache.set(block, (l = choleskyOfRows(cachedVariance(block) as number[][])));
+  return l;
 }
 
 function whitenDense(block: RowBlock): WhitenedBlock {
@@ -277,7 +294,7 @@ export function accumulateNormal(ne: NormalEquations, blocks: readonly RowBlock[
   for (const block of blocks) {
     ne.nRows += block.rows.length;
     if (block.diagonal) {
-      const v = blockVariance(block) as number[];
+      const v = cachedVariance(block) as number[];
       for (let i = 0; i < block.rows.length; i++) {
         const r = block.rows[i];
         addRow(ne, r.idx, r.coef, r.idx.length, 1 / v[i], block.y[i]);
@@ -541,7 +558,7 @@ export function chiSquare(problem: GlsProblem, q: ArrayLike<number>): number {
   for (const block of problem.blocks) {
     const r = blockResiduals(block, q);
     if (block.diagonal) {
-      const v = blockVariance(block) as number[];
+      const v = cachedVariance(block) as number[];
       for (let i = 0; i < r.length; i++) chi2 += (r[i] * r[i]) / v[i];
     } else {
       const z = forwardSubstitute(denseBlockFactor(block), r.length, r);
@@ -557,7 +574,7 @@ export function chiSquare(problem: GlsProblem, q: ArrayLike<number>): number {
  */
 export function blockLeverages(block: RowBlock, cov: CovarianceAccess): number[] {
   if (!block.diagonal) throw new Error('leverages are defined here for diagonal blocks only');
-  const v = blockVariance(block) as number[];
+  const v = cachedVariance(block) as number[];
   return block.rows.map((r, i) => {
     let h = 0;
     for (let s = 0; s < r.idx.length; s++) {
@@ -588,7 +605,7 @@ export function varianceBySource(
     });
     let w: number[];
     if (block.diagonal) {
-      const v = blockVariance(block) as number[];
+      const v = cachedVariance(block) as number[];
       w = xu.map((x, i) => x / v[i]);
     } else {
       // w = C^-1 (X u) via the block's Cholesky factor
@@ -623,7 +640,7 @@ export function chiSquareAround(problem: GlsProblem, ne: NormalEquations, q0: Fl
   for (const block of problem.blocks) {
     const r = blockResiduals(block, q0);
     if (block.diagonal) {
-      const v = blockVariance(block) as number[];
+      const v = cachedVariance(block) as number[];
       block.rows.forEach((row, i) => {
         const w = r[i] / v[i];
         for (let t = 0; t < row.idx.length; t++) grad[row.idx[t]] += row.coef[t] * w;
