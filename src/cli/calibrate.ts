@@ -1,14 +1,14 @@
 /**
  * `rungbook calibrate <release-dir> [--json FILE] [--workers N]`: run the ladder on one release,
  * print a readable summary to stdout and write results.json (default ./results.json). The
- * systematic variants run on N worker threads (default: the available cores; 1: this thread).
+ * systematic variants run on N worker threads (1: this thread; default: the available cores for
+ * a release of at least 10,000 input rows, this thread for a smaller one, see autoWorkers).
  */
 import { resolve } from 'node:path';
 import type { Results } from '../types/results.ts';
 import { loadReleaseWithBlinding, withBlindingRecord } from '../blinding/apply.ts';
 import { calibrateRelease } from '../ladder/calibrate.ts';
 import { calibrateOnWorkers } from '../ladder/calibrateParallel.ts';
-import { defaultWorkers } from '../parallel/pool.ts';
 import { serializeResults } from '../io/results.ts';
 import { writeFileAtomic } from '../io/atomicWrite.ts';
 import { codeVersion } from '../version.ts';
@@ -19,10 +19,10 @@ import { parseArgs, UsageError, type CliIO } from './output.ts';
  * A release unblinded by `rungbook unblind` is calibrated on its true magnitudes (the offset
  * recorded in blinding.json added back exactly); one still blinded stays blinded.
  */
-export async function calibrateReleaseDir(dir: string, workers = 1): Promise<Results> {
+export async function calibrateReleaseDir(dir: string, workers: number | 'auto' = 1): Promise<Results> {
   const { release, record } = loadReleaseWithBlinding(dir);
   const options = { codeVersion: codeVersion() };
-  const results = workers > 1 ? await calibrateOnWorkers(release, options, workers) : calibrateRelease(release, options);
+  const results = workers === 1 ? calibrateRelease(release, options) : await calibrateOnWorkers(release, options, workers);
   return withBlindingRecord(results, record);
 }
 
@@ -92,7 +92,7 @@ export function summaryText(r: Results): string {
 export async function runCalibrate(args: string[], io: CliIO): Promise<number> {
   const { positional, values } = parseArgs(args, { values: ['json', 'workers'] });
   if (positional.length !== 1) throw new UsageError('usage: rungbook calibrate <release-dir> [--json FILE] [--workers N]');
-  let workers = defaultWorkers();
+  let workers: number | 'auto' = 'auto';
   if (values.workers !== undefined) {
     workers = Number(values.workers);
     if (!Number.isInteger(workers) || workers < 1) {

@@ -23,8 +23,23 @@ import {
 
 const VARIANT_TASK = new URL('./variantTask.ts', import.meta.url);
 
-/** calibrateRelease with the variants on `workers` threads (default: the available cores). */
-export async function calibrateOnWorkers(release: Release, options: CalibrateOptions, workers: number = defaultWorkers()): Promise<Results> {
+/**
+ * Below this many input rows the variants run in this thread when the number of workers is
+ * left to us: a worker thread first loads the ladder's modules (about 1 s of CPU, measured with
+ * `npm run bench`), more than the variants of a demo-sized release take. The comparison uses the
+ * same threshold for its worker threads (src/diff/compare.ts).
+ */
+export const AUTO_WORKERS_MIN_ROWS = 10_000;
+
+/** Workers for 'auto': the available cores for a large release, 1 (this thread) for a small one. */
+export function autoWorkers(release: Release): number {
+  const rows = release.inputs.reduce((n, t) => n + t.rows, 0);
+  return rows >= AUTO_WORKERS_MIN_ROWS ? defaultWorkers() : 1;
+}
+
+/** calibrateRelease with the variants on `workers` threads ('auto': see autoWorkers). */
+export async function calibrateOnWorkers(release: Release, options: CalibrateOptions, workersOption: number | 'auto' = 'auto'): Promise<Results> {
+  const workers = workersOption === 'auto' ? autoWorkers(release) : workersOption;
   if (workers <= 1 || release.variants.length === 0) return calibrateRelease(release, options);
   const cache = newRungCache();
   try {
