@@ -22,10 +22,11 @@ describe('worker-thread pool', () => {
     expect(here.map((r) => r.value)).toEqual(expected);
     expect(two.map((r) => r.value)).toEqual(expected);
     expect(five.map((r) => r.value)).toEqual(expected);
-    // in this thread: the main thread's id (0); on workers: other threads, at least two of them
+    // in this thread: the main thread's id (0); on workers: other threads (how the tasks spread
+    // over the workers depends on timing and is not asserted)
     expect(new Set(here.map((r) => r.thread))).toEqual(new Set([0]));
     expect(two.every((r) => r.thread !== 0)).toBe(true);
-    expect(new Set(five.map((r) => r.thread)).size).toBeGreaterThanOrEqual(2);
+    expect(five.every((r) => r.thread !== 0)).toBe(true);
   }, 60_000);
 
   it("passes a task's error to the caller, on workers and in this thread", async () => {
