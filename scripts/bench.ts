@@ -46,6 +46,8 @@ interface EngineRun {
 }
 interface ProcessRun {
   wallMs: number;
+  /** CPU time of the process, all threads (user + system). */
+  cpuMs: number;
   peakMb: number;
 }
 interface DenseRun {
@@ -73,7 +75,8 @@ function calibrateProcess(dir: string, workers: number, out: string): ProcessRun
   const wallMs = performance.now() - t;
   if (r.status !== 0) throw new Error(`rungbook calibrate failed: ${r.stderr}`);
   const kb = Number(/peak-rss-kb (\d+)/.exec(r.stderr)?.[1] ?? NaN);
-  return { wallMs, peakMb: kb / 1024 };
+  const cpuMs = Number(/cpu-ms ([\d.]+)/.exec(r.stderr)?.[1] ?? NaN);
+  return { wallMs, cpuMs, peakMb: kb / 1024 };
 }
 
 if (sections.has('engine')) {
@@ -111,29 +114,38 @@ for (const { e } of rowsOut) {
 }
 
 console.log('\nwhole `rungbook calibrate` processes (start to results.json) against the numpy dense GLS of the same release');
-console.log('scale | calibrate, no variants s | peak MB | dense build+solve s | dense peak MB | dense / calibrate | H0 engine | H0 dense | |dH0| / sigma');
+console.log('scale | calibrate, no variants s (CPU s) | peak MB | dense build+solve s | dense peak MB | dense / calibrate | H0 engine | H0 dense | |dH0| / sigma');
 for (const { e, nv, dense } of rowsOut) {
   const dt = dense ? (dense.build_ms + dense.solve_ms) / 1000 : null;
   const agree = dense ? Math.abs(dense.h0 - e.h0) / e.h0StatGls : null;
   console.log(
-    [`${e.scale}x`, fmt(nv.wallMs / 1000, 2), fmt(nv.peakMb, 0), fmt(dt, 2), fmt(dense?.peak_mb, 0), dt !== null ? `${fmt(dt / (nv.wallMs / 1000), 1)}x` : 'not run', fmt(e.h0, 6), fmt(dense?.h0, 6), agree !== null ? agree.toExponential(1) : '-'].join(' | '),
+    [`${e.scale}x`, `${fmt(nv.wallMs / 1000, 2)} (${fmt(nv.cpuMs / 1000, 2)})`, fmt(nv.peakMb, 0), fmt(dt, 2), fmt(dense?.peak_mb, 0), dt !== null ? `${fmt(dt / (nv.wallMs / 1000), 1)}x` : 'not run', fmt(e.h0, 6), fmt(dense?.h0, 6), agree !== null ? agree.toExponential(1) : '-'].join(' | '),
   );
 }
 
 console.log('\nwith the five variants: whole processes on 1 and 2 worker threads');
-console.log('scale | 1 thread s | peak MB | 2 workers s | peak MB | 2 workers / 1 thread');
+console.log('scale | 1 thread s (CPU s) | peak MB | 2 workers s (CPU s) | peak MB | 2 workers / 1 thread (wall)');
 for (const { e, w1, w2 } of rowsOut) {
-  console.log([`${e.scale}x`, fmt(w1.wallMs / 1000, 2), fmt(w1.peakMb, 0), fmt(w2.wallMs / 1000, 2), fmt(w2.peakMb, 0), fmt(w2.wallMs / w1.wallMs, 2)].join(' | '));
+  console.log(
+    [`${e.scale}x`, `${fmt(w1.wallMs / 1000, 2)} (${fmt(w1.cpuMs / 1000, 2)})`, fmt(w1.peakMb, 0), `${fmt(w2.wallMs / 1000, 2)} (${fmt(w2.cpuMs / 1000, 2)})`, fmt(w2.peakMb, 0), fmt(w2.wallMs / w1.wallMs, 2)].join(' | '),
+  );
 }
 
 const base = rowsOut[0];
 console.log('\nlinear time: time per input row against 1x (1.0 = linear)');
-console.log('scale | rows x | global fit | calibrate, no variants | calibrate with variants (1 thread) | with variants (2 workers)');
+console.log('scale | rows x | global fit | calibrate, no variants (wall; CPU) | calibrate with variants, 1 thread (wall; CPU) | with variants, 2 workers (wall)');
 for (const r of rowsOut) {
   const k = r.e.rows / base.e.rows;
   const per = (a: number, b: number) => fmt(a / b / k, 2);
   console.log(
-    [`${r.e.scale}x`, fmt(k, 2), per(r.e.ms.globalFit, base.e.ms.globalFit), per(r.nv.wallMs, base.nv.wallMs), per(r.w1.wallMs, base.w1.wallMs), per(r.w2.wallMs, base.w2.wallMs)].join(' | '),
+    [
+      `${r.e.scale}x`,
+      fmt(k, 2),
+      per(r.e.ms.globalFit, base.e.ms.globalFit),
+      `${per(r.nv.wallMs, base.nv.wallMs)}; ${per(r.nv.cpuMs, base.nv.cpuMs)}`,
+      `${per(r.w1.wallMs, base.w1.wallMs)}; ${per(r.w1.cpuMs, base.w1.cpuMs)}`,
+      per(r.w2.wallMs, base.w2.wallMs),
+    ].join(' | '),
   );
 }
 
