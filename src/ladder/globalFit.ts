@@ -12,6 +12,7 @@
  * propagated to every parameter through the fit's Jacobian.
  */
 import { AnalysisError } from '../types/issues.ts';
+import { choleskyOfRows, inverseFromCholesky, NotPositiveDefiniteError } from '../math/cholesky.ts';
 import {
   accumulateNormal,
   copyNormal,
@@ -555,13 +556,25 @@ function sandwichCovariance(
   return tmp.map((row) => aInv[0].map((_, j) => row.reduce((s, x, k) => s + x * aInv[k][j], 0)));
 }
 
+/**
+ * A^-1 for the half Hessian of the profile chi-square in the free ones of (alpha, beta),
+ * through the numerical core. A is positive definite at a minimum; when it is not, the data
+ * do not determine alpha and beta (the chi-square is flat or curved downwards there).
+ */
 function invertSmall(a: number[][]): number[][] {
-  if (a.length === 1) return [[1 / a[0][0]]];
-  const det = a[0][0] * a[1][1] - a[0][1] * a[1][0];
-  return [
-    [a[1][1] / det, -a[0][1] / det],
-    [-a[1][0] / det, a[0][0] / det],
-  ];
+  const m = a.length;
+  let l: Float64Array;
+  try {
+    l = choleskyOfRows(a);
+  } catch (e) {
+    if (!(e instanceof NotPositiveDefiniteError)) throw e;
+    throw new AnalysisError(
+      'The global fit cannot determine the supernova standardisation (alpha, beta): the chi-square has no minimum in them.',
+      'Check that the supernovae span a range of x1 and c, or fix sn_alpha and sn_beta in the analysis choices.',
+    );
+  }
+  const inv = inverseFromCholesky(l, m);
+  return Array.from({ length: m }, (_, i) => Array.from(inv.subarray(i * m, (i + 1) * m)));
 }
 
 function rejectedResiduals(
