@@ -6,8 +6,9 @@
  * and the pool returns the results in the order of the tasks, so the outcome is the same with
  * one worker, several, or none (workers <= 1 runs everything in this thread, importing the
  * same module). Workers load TypeScript through tsx, registered by the worker's first
- * statement. A task that throws rejects the whole map with its message; a worker that cannot
- * start or dies leaves its tasks to the others, or to this thread when none is left.
+ * statement. Tasks are handed out round-robin when the workers start (the calling thread may be
+ * busy meanwhile). A task that throws rejects the whole map with its message; a worker that
+ * cannot start or dies leaves its tasks to the others, or to this thread when none is left.
  */
 import { readFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
@@ -61,16 +62,13 @@ export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: read
   const n = Math.max(0, Math.min(Math.floor(workers), tasks.length));
   const results = new Array<R>(tasks.length);
   if (n <= 1) return runHere(moduleUrl, data, tasks);
-  let next = 0;
   let done = 0;
   let settled = false;
   let failure: Error | null = null;
-  const pending: number[] = [];
   interface Slot {
     w: Worker;
-    ready: boolean;
-    /** Task index being run, -1 when idle. */
-    busy: number;
+    /** Task indices posted to this worker and not yet answered. */
+    assigned: Set<number>;
   }
   const slots = new Set<Slot>();
   return new Promise<R[]>((resolve, reject) => {
@@ -82,21 +80,16 @@ export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: read
       if (failure) reject(failure);
       else resolve(results);
     };
-    const takeTask = () => (pending.length ? pending.shift()! : next < tasks.length ? next++ : -1);
-    const pump = () => {
-      for (const s of slots) {
-        if (!s.ready || s.busy >= 0) continue;
-        const i = takeTask();
-        if (i < 0) return;
-        s.busy = i;
-        s.w.postMessage({ i, task: tasks[i] });
-      }
+    // Every task is posted at once, round-robin: a worker queues its messages until it has
+    // loaded, and the caller's thread may be busy (the baseline fit) while the workers run,
+    // so nothing may wait for the caller's event loop to hand out the next task.
+    const post = (slot: Slot, i: number) => {
+      slot.assigned.add(i);
+      slot.w.postMessage({ i, task: tasks[i] });
     };
-    const leftToThisThread = async () => {
+    const leftToThisThread = async (rest: number[]) => {
       // no worker left: the remaining tasks run here, in order
       try {
-        const rest: number[] = [];
-        for (let i = takeTask(); i >= 0; i = takeTask()) rest.push(i);
         const mod = (await import(moduleUrl.href)) as TaskModule<D, unknown, T, R>;
         const ctx = mod.setup(data);
         for (const i of rest.sort((x, y) => x - y)) results[i] = mod.handle(ctx, tasks[i]);
@@ -105,6 +98,7 @@ export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: read
       }
       finish();
     };
+    const all: Slot[] = [];
     for (let k = 0; k < n; k++) {
       let w: Worker;
       try {
@@ -112,30 +106,36 @@ export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: read
       } catch {
         continue;
       }
-      const slot: Slot = { w, ready: false, busy: -1 };
+      const slot: Slot = { w, assigned: new Set() };
       slots.add(slot);
+      all.push(slot);
       w.on('message', (m: { ready?: boolean; i?: number; ok?: boolean; result?: R; message?: string }) => {
-        if (m.ready) slot.ready = true;
-        else if (m.ok) {
-          slot.busy = -1;
+        if (m.ready || settled) return;
+        if (m.ok) {
+          slot.assigned.delete(m.i!);
           results[m.i!] = m.result!;
-          if (++done === tasks.length) return finish();
+          if (++done === tasks.length) finish();
         } else {
           failure ??= new Error(m.message);
-          return finish();
+          finish();
         }
-        pump();
       });
       const lost = () => {
         if (settled || !slots.delete(slot)) return;
-        if (slot.busy >= 0) pending.push(slot.busy);
-        if (slots.size === 0) void leftToThisThread();
-        else pump();
+        // its unanswered tasks go to another worker, or to this thread when none is left
+        const orphans = [...slot.assigned];
+        const other = [...slots][0];
+        if (other) for (const i of orphans) post(other, i);
+        else void leftToThisThread(orphans);
       };
       w.on('error', lost);
       w.on('exit', lost);
     }
-    if (slots.size === 0) void leftToThisThread();
+    if (all.length === 0) {
+      void leftToThisThread(tasks.map((_, i) => i));
+      return;
+    }
+    tasks.forEach((_, i) => post(all[i % all.length], i));
   });
 }
 
