@@ -1,78 +1,173 @@
 /**
  * `npm run bench`: speed and memory of rungbook, printed as tables with ratios and scaling.
- * Each measurement runs in its own process (peak memory is per run). Benchmarks are never
+ * Each measurement runs in its own process (peak memory is per process). Benchmarks are never
  * assertions: they print what they measure.
- *   Engine: generated releases at 1x, 4x, 16x the demo size; time per stage, peak memory, and the
- *   ratio of one dense N x N GLS solve to one structured solve of the same problem (dense solves
- *   are run at 1x and 4x; at 16x the dense time is extrapolated as N^3 from the 4x run unless
- *   --dense-all is given, because it would take tens of minutes and over 1.5 GB).
+ *   Engine: the demo's release 2026.3 generated at 1x, 4x, 8x, 16x its size (with its five
+ *   systematic variants, and a copy without them): time per stage in one thread; whole
+ *   `rungbook calibrate` processes (start to results.json) without variants, and with the
+ *   variants on 1 and 2 worker threads; and an independent dense GLS in Python + numpy
+ *   (scripts/bench/dense_gls.py: the N x N covariance of the same rows at the same fixed
+ *   scatters, alpha and beta, solved with numpy.linalg) with the ratio and the H0 agreement.
+ *   Options: --scales 1,4,8,16 (default), --dense-max-scale S (skip the dense solve above S;
+ *   at 16x it needs about 2 GB and, with Debian's reference BLAS, tens of minutes),
+ *   --sections engine,recovery,build,diff (default: all).
+ *   Recovery seeds: 8 injection-recovery seeds on 1 and 2 worker threads.
  *   Report build: the demo from a cold cache, again with nothing changed, and 20 releases.
  *   Comparison: a full comparison with attribution of the demo pair, in one thread and with two
  *   worker threads, and at 16x the demo size, against the 10 s target for the demo pair.
  */
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const here = (p: string) => fileURLToPath(new URL(p, import.meta.url));
-const denseAll = process.argv.includes('--dense-all');
+const option = (name: string, fallback: string) => {
+  const i = process.argv.indexOf(`--${name}`);
+  return i >= 0 ? process.argv[i + 1]! : fallback;
+};
+const scales = option('scales', '1,4,8,16').split(',').map(Number);
+const denseMaxScale = Number(option('dense-max-scale', '16'));
+const sections = new Set(option('sections', 'engine,recovery,build,diff').split(','));
+const PYTHON = process.env.RUNGBOOK_PYTHON ?? '/usr/bin/python3';
 
 interface EngineRun {
   scale: number;
   rows: number;
   fitRows: number;
   params: number;
-  ms: Record<string, number | null>;
-  maxDiff: number | null;
+  variants: number;
+  ms: { read: number; rungs: number; globalFit: number; baseline: number; variants: number; writing: number };
   iterations: number;
+  h0: number;
+  h0StatGls: number;
   peakRssMb: number;
 }
-
-function runEngine(scale: number, dense: boolean): EngineRun {
-  const out = execFileSync(process.execPath, ['--import', 'tsx', here('./bench/engine.ts'), '--scale', String(scale), ...(dense ? ['--dense'] : [])], {
-    encoding: 'utf8',
-    maxBuffer: 1 << 24,
-  });
-  return JSON.parse(out.trim().split('\n').pop()!) as EngineRun;
+interface ProcessRun {
+  wallMs: number;
+  /** CPU time of the process, all threads (user + system). */
+  cpuMs: number;
+  peakMb: number;
+}
+interface DenseRun {
+  rows: number;
+  params: number;
+  h0: number;
+  h0_stat: number;
+  build_ms: number;
+  solve_ms: number;
+  peak_mb: number;
+  wallMs: number;
 }
 
-const fmt = (x: number | null | undefined, d = 1) => (x === null || x === undefined ? '-' : x.toFixed(d));
+const fmt = (x: number | null | undefined, d = 1) => (x === null || x === undefined || !Number.isFinite(x) ? '-' : x.toFixed(d));
+const lastLine = (out: string) => out.trim().split('\n').pop()!;
 
-console.log('rungbook benchmark — engine (one process per scale)\n');
-const runs: EngineRun[] = [];
-for (const scale of [1, 4, 16]) {
-  runs.push(runEngine(scale, scale <= 4 || denseAll));
-}
-const base = runs[0];
-const header = ['scale', 'input rows', 'fit rows', 'params', 'read ms', 'parallax ms', 'main seq ms', 'global fit ms', 'calibrate+variants ms', 'peak MB'];
-console.log(header.join(' | '));
-for (const r of runs) {
-  console.log(
-    [r.scale, r.rows, r.fitRows, r.params, fmt(r.ms.read), fmt(r.ms.parallax), fmt(r.ms.mainSequence), fmt(r.ms.globalFit), fmt(r.ms.calibrateWithVariants), fmt(r.peakRssMb, 0)].join(' | '),
+/** A whole `rungbook calibrate` process: wall time from spawn to exit, peak memory. */
+function calibrateProcess(dir: string, workers: number, out: string): ProcessRun {
+  const t = performance.now();
+  const r = spawnSync(
+    process.execPath,
+    ['--import', here('./bench/peak-rss.mjs'), here('./rungbook.mjs'), 'calibrate', dir, '--workers', String(workers), '--json', out],
+    { encoding: 'utf8', maxBuffer: 1 << 26 },
   );
+  const wallMs = performance.now() - t;
+  if (r.status !== 0) throw new Error(`rungbook calibrate failed: ${r.stderr}`);
+  const kb = Number(/peak-rss-kb (\d+)/.exec(r.stderr)?.[1] ?? NaN);
+  const cpuMs = Number(/cpu-ms ([\d.]+)/.exec(r.stderr)?.[1] ?? NaN);
+  return { wallMs, cpuMs, peakMb: kb / 1024 };
 }
-console.log('\nscaling against 1x (time ratio / row ratio; 1.0 = linear)');
-for (const r of runs.slice(1)) {
-  const rowRatio = r.rows / base.rows;
-  const tRatio = (r.ms.calibrateWithVariants ?? 0) / (base.ms.calibrateWithVariants ?? 1);
-  console.log(`  ${r.scale}x: rows x${fmt(rowRatio, 2)}, calibrate time x${fmt(tRatio, 2)} -> ${fmt(tRatio / rowRatio, 2)} per row`);
-}
-console.log('\nstructured GLS vs dense N x N GLS (one solve of the final problem)');
-const r4 = runs.find((r) => r.scale === 4)!;
-for (const r of runs) {
-  let dense = r.ms.denseSolve;
-  let note = '';
-  if (dense === null && r4.ms.denseSolve !== null) {
-    dense = r4.ms.denseSolve! * (r.fitRows / r4.fitRows) ** 3;
-    note = ' (dense extrapolated as N^3 from 4x)';
+
+if (sections.has('engine')) {
+console.log('rungbook benchmark — engine (release 2026.3 of the demo generated at each scale; one process per measurement)');
+console.log(`machine load at start (1-min average): ${(await import('node:os')).loadavg()[0].toFixed(2)}\n`);
+const rowsOut: { e: EngineRun; nv: ProcessRun; w1: ProcessRun; w2: ProcessRun; dense: DenseRun | null }[] = [];
+for (const scale of scales) {
+  const dir = mkdtempSync(join(tmpdir(), 'rungbook-bench-'));
+  try {
+    const e = JSON.parse(
+      lastLine(execFileSync(process.execPath, ['--import', 'tsx', here('./bench/engine.ts'), '--scale', String(scale), '--dir', dir], { encoding: 'utf8', maxBuffer: 1 << 26 })),
+    ) as EngineRun;
+    const nv = calibrateProcess(join(dir, 'bench-nv'), 1, join(dir, 'nv.json'));
+    const w1 = calibrateProcess(join(dir, 'bench'), 1, join(dir, 'w1.json'));
+    const w2 = calibrateProcess(join(dir, 'bench'), 2, join(dir, 'w2.json'));
+    let dense: DenseRun | null = null;
+    if (scale <= denseMaxScale) {
+      const t = performance.now();
+      const out = execFileSync(PYTHON, [here('./bench/dense_gls.py'), join(dir, 'problem.json')], { encoding: 'utf8', maxBuffer: 1 << 24 });
+      dense = { ...(JSON.parse(lastLine(out)) as DenseRun), wallMs: performance.now() - t };
+    }
+    rowsOut.push({ e, nv, w1, w2, dense });
+    console.error(`  (${scale}x measured) ${JSON.stringify({ e, nv, w1, w2, dense })}`);
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
   }
-  const ratio = dense !== null ? dense / (r.ms.solve ?? 1) : null;
+}
+
+console.log('stages of one calibration in one thread (ms): read | rungs | global fit | variants | writing');
+console.log('scale | input rows | fit rows | params | read | rungs | global fit | variants (5) | writing | iterations | peak MB');
+for (const { e } of rowsOut) {
   console.log(
-    `  ${r.scale}x: N = ${r.fitRows}, p = ${r.params}: structured ${fmt(r.ms.solve, 2)} ms, dense ${fmt(dense, 0)} ms, ratio ${fmt(ratio, 0)}x${note}` +
-      (r.maxDiff !== null ? `, max |q_structured - q_dense| = ${r.maxDiff.toExponential(1)}` : ''),
+    [`${e.scale}x`, e.rows, e.fitRows, e.params, fmt(e.ms.read, 0), fmt(e.ms.rungs, 0), fmt(e.ms.globalFit, 0), fmt(e.ms.variants, 0), fmt(e.ms.writing, 0), e.iterations, fmt(e.peakRssMb, 0)].join(' | '),
   );
+}
+
+console.log('\nwhole `rungbook calibrate` processes (start to results.json) against the numpy dense GLS of the same release');
+console.log('scale | calibrate, no variants s (CPU s) | peak MB | dense build+solve s | dense peak MB | dense / calibrate | H0 engine | H0 dense | |dH0| / sigma');
+for (const { e, nv, dense } of rowsOut) {
+  const dt = dense ? (dense.build_ms + dense.solve_ms) / 1000 : null;
+  const agree = dense ? Math.abs(dense.h0 - e.h0) / e.h0StatGls : null;
+  console.log(
+    [`${e.scale}x`, `${fmt(nv.wallMs / 1000, 2)} (${fmt(nv.cpuMs / 1000, 2)})`, fmt(nv.peakMb, 0), fmt(dt, 2), fmt(dense?.peak_mb, 0), dt !== null ? `${fmt(dt / (nv.wallMs / 1000), 1)}x` : 'not run', fmt(e.h0, 6), fmt(dense?.h0, 6), agree !== null ? agree.toExponential(1) : '-'].join(' | '),
+  );
+}
+
+console.log('\nwith the five variants: whole processes on 1 and 2 worker threads');
+console.log('scale | 1 thread s (CPU s) | peak MB | 2 workers s (CPU s) | peak MB | 2 workers / 1 thread (wall)');
+for (const { e, w1, w2 } of rowsOut) {
+  console.log(
+    [`${e.scale}x`, `${fmt(w1.wallMs / 1000, 2)} (${fmt(w1.cpuMs / 1000, 2)})`, fmt(w1.peakMb, 0), `${fmt(w2.wallMs / 1000, 2)} (${fmt(w2.cpuMs / 1000, 2)})`, fmt(w2.peakMb, 0), fmt(w2.wallMs / w1.wallMs, 2)].join(' | '),
+  );
+}
+
+const base = rowsOut[0];
+console.log('\nlinear time: time per input row against 1x (1.0 = linear)');
+console.log('scale | rows x | global fit | calibrate, no variants (wall; CPU) | calibrate with variants, 1 thread (wall; CPU) | with variants, 2 workers (wall)');
+for (const r of rowsOut) {
+  const k = r.e.rows / base.e.rows;
+  const per = (a: number, b: number) => fmt(a / b / k, 2);
+  console.log(
+    [
+      `${r.e.scale}x`,
+      fmt(k, 2),
+      per(r.e.ms.globalFit, base.e.ms.globalFit),
+      `${per(r.nv.wallMs, base.nv.wallMs)}; ${per(r.nv.cpuMs, base.nv.cpuMs)}`,
+      `${per(r.w1.wallMs, base.w1.wallMs)}; ${per(r.w1.cpuMs, base.w1.cpuMs)}`,
+      per(r.w2.wallMs, base.w2.wallMs),
+    ].join(' | '),
+  );
+}
+
+}
+
+// ---- injection-recovery seeds on worker threads ---------------------------------------------
+if (sections.has('recovery')) {
+const recovery = (workers: number) =>
+  JSON.parse(lastLine(execFileSync(process.execPath, ['--import', 'tsx', here('./bench/recovery.ts'), '--seeds', '8', '--workers', String(workers)], { encoding: 'utf8' }))) as {
+    seeds: number;
+    workers: number;
+    ms: number;
+  };
+const rec1 = recovery(1);
+const rec2 = recovery(2);
+console.log('\ninjection-recovery seeds (tests/recovery, src/parallel/pool.ts)');
+console.log(`  ${rec1.seeds} seeds: 1 worker ${fmt(rec1.ms / 1000, 2)} s, 2 workers ${fmt(rec2.ms / 1000, 2)} s -> ${fmt(rec2.ms / rec1.ms, 2)} of the 1-worker time`);
+
 }
 
 // ---- report build (issue: versioned report) --------------------------------------------------
+if (sections.has('build')) {
 interface BuildRun {
   wallMs: number;
   timingsMs: { calibrate: number; compare: number; generate: number; site: number; total: number };
@@ -96,7 +191,10 @@ for (const [name, r] of [
 }
 console.log(`  rebuild with nothing changed: ${fmt((100 * b.warm.timingsMs.site) / b.warm.wallMs, 0)} % of its time in Astro`);
 
+}
+
 // ---- release comparison (issue: comparing data releases) --------------------------------------
+if (sections.has('diff')) {
 interface DiffRun {
   scale: number;
   rows: { a: number; b: number };
@@ -135,3 +233,4 @@ const d16 = diffRuns[2]![1];
 const rowRatio = (d16.rows.a + d16.rows.b) / (d1.rows.a + d1.rows.b);
 console.log(`  scaling 1x -> 16x: rows x${fmt(rowRatio, 1)}, time x${fmt(d16.ms / d1.ms, 1)} -> ${fmt(d16.ms / d1.ms / rowRatio, 2)} per row (1.0 = linear)`);
 console.log(`  worker threads at 1x: ${fmt(diffRuns[1]![1].ms / d1.ms, 2)} of the one-thread time (thread start-up included)`);
+}

@@ -6,7 +6,8 @@
  *   - node_modules (from package-lock.json, via `npm ci`);
  *   - a Python that can `import astropy` and compute with its cosmology module
  *     (Debian packages python3-astropy and python3-scipy), used by the reference
- *     tests as an independent calculator;
+ *     tests as an independent calculator; python3-numpy (a dependency of astropy,
+ *     named here because `npm run bench` uses it for its dense reference solve);
  *   - /usr/bin/chromium (Debian package chromium), used by the browser tests of
  *     the report.
  *
@@ -89,7 +90,7 @@ if (!existsSync(join(ROOT, 'node_modules', '.bin', 'vitest'))) {
 // 2. A Python with astropy.
 let python = findAstropyPython();
 if (python === null) {
-  aptInstall(['python3-astropy', 'python3-scipy'], 'A Python interpreter with astropy (and scipy) for its cosmology');
+  aptInstall(['python3-astropy', 'python3-scipy', 'python3-numpy'], 'A Python interpreter with astropy (and scipy) for its cosmology');
   python = findAstropyPython();
   if (python === null) {
     fail(`python3-astropy and python3-scipy were installed but none of ${PYTHON_CANDIDATES.join(', ')} can import astropy.`);

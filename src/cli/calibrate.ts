@@ -1,11 +1,14 @@
 /**
- * `rungbook calibrate <release-dir> [--json FILE]`: run the ladder on one release, print a
- * readable summary to stdout and write results.json (default ./results.json).
+ * `rungbook calibrate <release-dir> [--json FILE] [--workers N]`: run the ladder on one release,
+ * print a readable summary to stdout and write results.json (default ./results.json). The
+ * systematic variants run on N worker threads (1: this thread; default: the available cores for
+ * a release of at least 10,000 input rows, this thread for a smaller one, see autoWorkers).
  */
 import { resolve } from 'node:path';
 import type { Results } from '../types/results.ts';
 import { loadReleaseWithBlinding, withBlindingRecord } from '../blinding/apply.ts';
 import { calibrateRelease } from '../ladder/calibrate.ts';
+import { calibrateOnWorkers } from '../ladder/calibrateParallel.ts';
 import { serializeResults } from '../io/results.ts';
 import { writeFileAtomic } from '../io/atomicWrite.ts';
 import { codeVersion } from '../version.ts';
@@ -16,9 +19,11 @@ import { parseArgs, UsageError, type CliIO } from './output.ts';
  * A release unblinded by `rungbook unblind` is calibrated on its true magnitudes (the offset
  * recorded in blinding.json added back exactly); one still blinded stays blinded.
  */
-export async function calibrateReleaseDir(dir: string): Promise<Results> {
+export async function calibrateReleaseDir(dir: string, workers: number | 'auto' = 1): Promise<Results> {
   const { release, record } = loadReleaseWithBlinding(dir);
-  return withBlindingRecord(calibrateRelease(release, { codeVersion: codeVersion() }), record);
+  const options = { codeVersion: codeVersion() };
+  const results = workers === 1 ? calibrateRelease(release, options) : await calibrateOnWorkers(release, options, workers);
+  return withBlindingRecord(results, record);
 }
 
 function fmt(x: number, digits: number): string {
@@ -85,9 +90,16 @@ export function summaryText(r: Results): string {
 }
 
 export async function runCalibrate(args: string[], io: CliIO): Promise<number> {
-  const { positional, values } = parseArgs(args, { values: ['json'] });
-  if (positional.length !== 1) throw new UsageError('usage: rungbook calibrate <release-dir> [--json FILE]');
-  const results = await calibrateReleaseDir(positional[0]);
+  const { positional, values } = parseArgs(args, { values: ['json', 'workers'] });
+  if (positional.length !== 1) throw new UsageError('usage: rungbook calibrate <release-dir> [--json FILE] [--workers N]');
+  let workers: number | 'auto' = 'auto';
+  if (values.workers !== undefined) {
+    workers = Number(values.workers);
+    if (!Number.isInteger(workers) || workers < 1) {
+      throw new UsageError(`--workers: expected a whole number of at least 1, found "${values.workers}"`);
+    }
+  }
+  const results = await calibrateReleaseDir(positional[0], workers);
   const out = resolve(values.json ?? 'results.json');
   writeFileAtomic(out, serializeResults(results));
   io.stdout(summaryText(results));

@@ -11,7 +11,8 @@ const USAGE = `rungbook: calibrate the distance ladder from data releases and bu
 
 usage:
   rungbook check     <release-dir>...                  validate releases (exit 1 on any problem)
-  rungbook calibrate <release-dir> [--json FILE]       run the ladder, print a summary, write results.json
+  rungbook calibrate <release-dir> [--json FILE] [--workers N]
+                                                       run the ladder (variants on N threads), print a summary, write results.json
   rungbook diff      <release-a> <release-b> [--format text|markdown|json]
   rungbook build     [--releases DIR] [--out DIR]      calibrate every release and build the static report
   rungbook publish   <release-dir> [--by NAME] [--date YYYY-MM-DD]

@@ -78,7 +78,9 @@ export function assembleResults(
   const blinded = release.manifest.blinded;
   const parameters: Record<string, ParameterResult> = {};
   const p = fit?.paramNames.length ?? 0;
-  const idx = (name: string) => (fit ? fit.paramNames.indexOf(name) : -1);
+  // a map, not indexOf: looked up once per Cepheid, which would make this quadratic
+  const paramIndex = new Map(fit?.paramNames.map((name, i) => [name, i]) ?? []);
+  const idx = (name: string) => paramIndex.get(name) ?? -1;
   const value = (name: string) => fit!.q[idx(name)];
   const err = (name: string) => Math.sqrt(fit!.cov[idx(name) * p + idx(name)]);
   const put = (name: string, v: number, e: number, extra: Partial<ParameterResult> = {}) => {
@@ -119,7 +121,19 @@ export function assembleResults(
     for (const part of priors.parts) v += part.cov[i][i];
     return Math.sqrt(v);
   };
-  const count = (rows: { system: string }[], s: string) => rows.filter((r) => r.system === s).length;
+  // rows per system, counted once per table (linear in the rows, not systems x rows)
+  const countsOf = (rows: readonly { system: string }[]) => {
+    const m = new Map<string, number>();
+    for (const r of rows) m.set(r.system, (m.get(r.system) ?? 0) + 1);
+    return m;
+  };
+  const rowCounts = new Map<readonly { system: string }[], Map<string, number>>();
+  const count = (rows: readonly { system: string }[], s: string) => {
+    let m = rowCounts.get(rows);
+    if (!m) rowCounts.set(rows, (m = countsOf(rows)));
+    return m.get(s) ?? 0;
+  };
+  const targetBySystem = new Map(run.mainSequence.targets.map((t) => [t.system, t]));
   const systems: SystemResult[] = release.systems.map((s) => {
     const rows = {
       parallax: count(release.parallax, s.system),
@@ -143,7 +157,7 @@ export function assembleResults(
       mu = priors.mu[pi];
       muErr = priorErr(pi);
     }
-    const target = run.mainSequence.targets.find((t) => t.system === s.system);
+    const target = targetBySystem.get(s.system);
     const method: SystemResult['method'] =
       rows.parallax > 0 ? 'parallax' : rows.main_sequence > 0 ? 'main_sequence' : mu !== null ? 'cepheid' : 'none';
     return {

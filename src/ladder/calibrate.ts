@@ -62,6 +62,15 @@ function cached<T>(map: Map<string, T>, key: string, compute: () => T): T {
   return v;
 }
 
+/** The parallax and main-sequence rungs for these choices, from the cache or computed into it. */
+export function earlyRungs(release: Release, analysis: AnalysisChoices, cache: RungCache) {
+  const parallax = cached(cache.parallax, keyOf(analysis, PARALLAX_KEYS), () => fitParallaxRung(release, analysis));
+  const mainSequence = cached(cache.mainSequence, keyOf(analysis, MAIN_SEQUENCE_KEYS), () =>
+    fitMainSequenceRung(release, analysis, parallax),
+  );
+  return { parallax, mainSequence };
+}
+
 /**
  * One pass of the ladder with the given analysis choices. Refuses first, before any fit, a
  * release whose structure the ladder cannot use (src/ladder/requirements.ts); what remains to
@@ -70,11 +79,8 @@ function cached<T>(map: Map<string, T>, key: string, compute: () => T): T {
 export function runLadder(release: Release, analysis: AnalysisChoices, cache: RungCache = newRungCache()): LadderRun {
   requireLadder(release, analysis);
   const checks: CheckResult[] = [];
-  const parallax = cached(cache.parallax, keyOf(analysis, PARALLAX_KEYS), () => fitParallaxRung(release, analysis));
+  const { parallax, mainSequence } = earlyRungs(release, analysis, cache);
   checks.push(...parallax.checks);
-  const mainSequence = cached(cache.mainSequence, keyOf(analysis, MAIN_SEQUENCE_KEYS), () =>
-    fitMainSequenceRung(release, analysis, parallax),
-  );
   checks.push(...mainSequence.checks);
   const priors = buildDistancePriors(parallax, mainSequence);
   const hubbleFlow = selectHubbleFlow(release.snHubbleFlow, analysis);
@@ -167,33 +173,56 @@ export interface CalibrateOptions {
   codeVersion: string;
 }
 
-/** The full calibration of a release: baseline, variants, budget, results.json content. */
-export function calibrateRelease(release: Release, options: CalibrateOptions): Results {
-  const cache = newRungCache();
-  const baseline = runLadder(release, release.analysis, cache);
-  const variants: VariantResult[] = release.variants.map((variant) => {
-    try {
-      const run = runLadder(release, withOverrides(release.analysis, variant.overrides), cache);
-      const h0 = run.log10H0 ? 10 ** run.log10H0.value : null;
-      const base = baseline.log10H0 ? 10 ** baseline.log10H0.value : null;
-      return {
-        name: variant.name,
-        overrides: variant.overrides,
-        h0,
-        h0_stat: run.log10H0 && h0 !== null ? h0 * Math.LN10 * Math.sqrt(run.log10H0.variance) : null,
-        delta_h0: h0 !== null && base !== null ? h0 - base : null,
-        error: null,
-      };
-    } catch (e) {
-      if (e instanceof AnalysisError) {
-        return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: e.message };
-      }
-      throw e;
-    }
-  });
+/** What a variant's run gives: its H0 (log10 and variance), or the reason it failed. */
+export type VariantOutcome = { log10H0: { value: number; variance: number } | null; error: string | null };
+
+/** Run one systematic variant (a failed variant is reported, never refuses the release). */
+export function runVariant(release: Release, variant: Release['variants'][number], cache: RungCache = newRungCache()): VariantOutcome {
+  try {
+    const run = runLadder(release, withOverrides(release.analysis, variant.overrides), cache);
+    return { log10H0: run.log10H0 ? { value: run.log10H0.value, variance: run.log10H0.variance } : null, error: null };
+  } catch (e) {
+    if (e instanceof AnalysisError) return { log10H0: null, error: e.message };
+    throw e;
+  }
+}
+
+/** A variant's entry of results.json from its outcome and the baseline. */
+export function variantResult(variant: Release['variants'][number], outcome: VariantOutcome, baseline: LadderRun): VariantResult {
+  if (outcome.error !== null) {
+    return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: outcome.error };
+  }
+  const run = outcome.log10H0;
+  const h0 = run ? 10 ** run.value : null;
+  const base = baseline.log10H0 ? 10 ** baseline.log10H0.value : null;
+  return {
+    name: variant.name,
+    overrides: variant.overrides,
+    h0,
+    h0_stat: run && h0 !== null ? h0 * Math.LN10 * Math.sqrt(run.variance) : null,
+    delta_h0: h0 !== null && base !== null ? h0 - base : null,
+    error: null,
+  };
+}
+
+/** results.json content from the baseline run and the variants' outcomes (in the release's order). */
+export function finishCalibration(release: Release, baseline: LadderRun, outcomes: VariantOutcome[], options: CalibrateOptions): Results {
+  const variants = release.variants.map((v, i) => variantResult(v, outcomes[i], baseline));
   const sys = systematicError(variants);
   const budget = errorBudget(baseline, variants);
   return assembleResults(release, baseline, variants, sys, budget, options);
+}
+
+/**
+ * The full calibration of a release: baseline, variants, budget, results.json content, in this
+ * thread (calibrateOnWorkers in calibrateParallel.ts runs the variants on worker threads, with
+ * the same result).
+ */
+export function calibrateRelease(release: Release, options: CalibrateOptions): Results {
+  const cache = newRungCache();
+  const baseline = runLadder(release, release.analysis, cache);
+  const outcomes = release.variants.map((variant) => runVariant(release, variant, cache));
+  return finishCalibration(release, baseline, outcomes, options);
 }
 
 export const RESULTS_SCHEMA_ID = RESULTS_SCHEMA;

@@ -12,20 +12,24 @@
  * propagated to every parameter through the fit's Jacobian.
  */
 import { AnalysisError } from '../types/issues.ts';
+import { choleskyOfRows, inverseFromCholesky, NotPositiveDefiniteError } from '../math/cholesky.ts';
 import {
   accumulateNormal,
-  accumulateNormalSubset,
-  reduceNormal,
-  addNormal,
+  copyNormal,
+  emptyNormal,
+  glsStructure,
   solveNormal,
   blockLeverages,
   blockResiduals,
-  blockVariance,
-  inverseFromFactor,
+  cachedVariance,
+  chiSquare,
+  chiSquareAround,
   SingularFitError,
   solveGls,
   varianceBySource,
+  type CovarianceAccess,
   type GlsSolution,
+  type GlsStructure,
 } from './gls.ts';
 import {
   buildModel,
@@ -106,9 +110,9 @@ function initialFieldMu(input: GlobalFitInput): Float64Array {
   );
 }
 
-function solveOrExplain(model: BuiltModel): GlsSolution {
+function solveOrExplain(model: BuiltModel, st?: GlsStructure): GlsSolution {
   try {
-    return solveGls(model.problem);
+    return solveGls(model.problem, st ?? glsStructure(model.problem));
   } catch (e) {
     if (e instanceof SingularFitError) {
       throw new AnalysisError(
@@ -136,31 +140,34 @@ function describeParam(name: string): string {
 
 /**
  * Profile chi-square in (alpha, beta), everything else held. Only the supernova rows depend
- * on alpha and beta, so the normal equations of the other rows are accumulated once and
- * each evaluation adds the supernova rows and solves the p x p system (chi2 = c - b^T q).
+ * on alpha and beta, so the normal equations of the other rows are accumulated once and each
+ * evaluation adds the supernova rows and solves by block elimination. The chi-square is not
+ * taken as c - b^T q: that difference cancels about five digits (c ~ sum m^2/v), and the Newton
+ * step in (alpha, beta) takes second differences of this function, which would carry that
+ * rounding into alpha, beta and their errors. The supernova rows' part is summed from their
+ * residuals; the other rows' part, exactly quadratic in q, is expanded about the solution at
+ * the current (alpha, beta) with its value and gradient summed from residuals (chiSquareAround).
  */
-function profileChi2Function(prep: PreparedModel, state: FitState): (alpha: number, beta: number) => number {
-  const p = prep.params.size;
-  const fixedPart = accumulateNormal(p, buildModel(prep, state, 'static').problem.blocks);
-  // parameters touched by supernova rows; the rest is eliminated once (Schur complement)
-  const keep = [...new Set(buildModel(prep, state, 'supernovae').problem.blocks.flatMap((b) => b.rows.flatMap((r) => r.idx)))].sort(
-    (a, b) => a - b,
-  );
-  const local = new Map(keep.map((j, i) => [j, i]));
-  const keepNames = keep.map((j) => prep.params.names[j]);
-  let reduced: ReturnType<typeof reduceNormal> | null = null;
-  try {
-    reduced = reduceNormal(fixedPart, p, keep, prep.params.names);
-  } catch (e) {
-    if (!(e instanceof SingularFitError)) throw e;
-  }
+function profileChi2Function(
+  prep: PreparedModel,
+  state: FitState,
+  st: GlsStructure,
+): (alpha: number, beta: number) => number {
+  const staticProblem = buildModel(prep, state, 'static').problem;
+  const fixedPart = accumulateNormal(emptyNormal(st), staticProblem.blocks);
+  const solveAt = (alpha: number, beta: number) => {
+    const snProblem = buildModel(prep, { ...state, alpha, beta }, 'supernovae').problem;
+    const { q } = solveNormal(accumulateNormal(copyNormal(fixedPart), snProblem.blocks), prep.params.names);
+    return { q, snProblem };
+  };
+  let staticChi2: ((q: ArrayLike<number>) => number) | null = null;
   return (alpha, beta) => {
-    const snBlocks = buildModel(prep, { ...state, alpha, beta }, 'supernovae').problem.blocks;
     try {
-      if (reduced) return solveNormal(addNormal(reduced, accumulateNormalSubset(snBlocks, local)), keepNames).chi2;
-      return solveNormal(addNormal(fixedPart, accumulateNormal(p, snBlocks)), prep.params.names).chi2;
+      const { q, snProblem } = solveAt(alpha, beta);
+      staticChi2 ??= chiSquareAround(staticProblem, fixedPart, solveAt(state.alpha, state.beta).q);
+      return staticChi2(q) + chiSquare(snProblem, q);
     } catch (e) {
-      if (e instanceof SingularFitError) return solveOrExplain(buildModel(prep, state)).chi2;
+      if (e instanceof SingularFitError) return solveOrExplain(buildModel(prep, state), st).chi2;
       throw e;
     }
   };
@@ -204,8 +211,8 @@ function numericalDerivatives(
 }
 
 /** One damped Newton step on the profile chi-square in (alpha, beta). */
-function standardisationStep(prep: PreparedModel, state: FitState, free: [boolean, boolean]) {
-  const f = profileChi2Function(prep, state);
+function standardisationStep(prep: PreparedModel, state: FitState, free: [boolean, boolean], st: GlsStructure) {
+  const f = profileChi2Function(prep, state, st);
   const { g, h, f0 } = numericalDerivatives(f, state.alpha, state.beta, free);
   const det = h[0][0] * h[1][1] - h[0][1] * h[1][0];
   let da: number;
@@ -255,7 +262,7 @@ function residualsOf(model: BuiltModel, sol: GlsSolution, rejected: ReadonlySet<
   const out: RowResidual[] = [];
   model.problem.blocks.forEach((block, b) => {
     const r = blockResiduals(block, sol.q);
-    const v = blockVariance(block);
+    const v = cachedVariance(block);
     const diag = block.diagonal ? (v as number[]) : (v as number[][]).map((row, i) => row[i]);
     model.refs[b].forEach((ref, i) => {
       out.push({
@@ -270,9 +277,18 @@ function residualsOf(model: BuiltModel, sol: GlsSolution, rejected: ReadonlySet<
   return out;
 }
 
-export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
+export interface GlobalFitOptions {
+  /**
+   * false: treat every parameter as global, i.e. factor the whole p x p normal matrix (cost p^3
+   * per solve). Only for tests that check the block elimination against it; default true.
+   */
+  eliminate?: boolean;
+}
+
+export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {}): GlobalFitResult {
   const params = new ParameterIndex(input);
-  const prep = prepareModel(input, params);
+  const prepared = prepareModel(input, params);
+  const prep = options.eliminate === false ? { ...prepared, globals: params.names.map((_, i) => i) } : prepared;
   const p = params.size;
   const { analysis } = input;
   const hasSn = input.calibrators.length + input.hubbleFlow.length > 0;
@@ -304,7 +320,9 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
     for (let it = 0; it < LIMITS.maxInner; it++) {
       iterations++;
       const model = buildModel(prep, state);
-      const sol = solveOrExplain(model);
+      // the structure depends only on which rows are in the fit: once per clipping round
+      const st = glsStructure(model.problem);
+      const sol = solveOrExplain(model, st);
       // 1. re-linearise the field stars at the fitted distances
       const lin = Float64Array.from(input.fieldStars, (s, i) => {
         const mu = sol.q[params.get(fieldStarParam(s.system, s.star))!];
@@ -312,7 +330,7 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
         return mu0 + Math.max(-LIMITS.maxMuStep, Math.min(LIMITS.maxMuStep, mu - mu0));
       });
       // 2. intrinsic scatters from sum r^2/v = n - sum h, per group
-      const fInv = inverseFromFactor(sol.factor, p);
+      const cov = sol.factor.blocks();
       const stats: Record<'cep' | 'sn', GroupStats> = {
         cep: { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0 },
         sn: { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0 },
@@ -322,14 +340,14 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
         const group = groupOf(model.refs[b][0]?.table ?? '');
         if (!group) return;
         const r = blockResiduals(block, sol.q);
-        const v = blockVariance(block) as number[];
-        const h = blockLeverages(block, fInv, p);
-        const st = stats[group];
+        const v = cachedVariance(block) as number[];
+        const h = blockLeverages(block, cov);
+        const gs = stats[group];
         for (let i = 0; i < r.length; i++) {
-          st.sumChi2 += (r[i] * r[i]) / v[i];
-          st.sumOneMinusH += 1 - h[i];
-          st.sumOneMinusHOverV += (1 - h[i]) / v[i];
-          st.n++;
+          gs.sumChi2 += (r[i] * r[i]) / v[i];
+          gs.sumOneMinusH += 1 - h[i];
+          gs.sumOneMinusHOverV += (1 - h[i]) / v[i];
+          gs.n++;
         }
       });
       const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep);
@@ -337,7 +355,7 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
       let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova };
       // 3. alpha, beta
       if (free[0] || free[1]) {
-        const step = standardisationStep(prep, next, free);
+        const step = standardisationStep(prep, next, free, st);
         lastHessian = step.hessian;
         next = { ...next, alpha: step.alpha, beta: step.beta };
       }
@@ -383,13 +401,14 @@ export function fitGlobal(input: GlobalFitInput): GlobalFitResult {
   // final solution and covariances
   const model = buildModel(prep, state);
   const sol = solveOrExplain(model);
-  const covGls = inverseFromFactor(sol.factor, p);
+  // the published covariance of the parameters (the only inverse formed, at the end)
+  const covGls = sol.factor.covariance();
   const names: ('alpha' | 'beta')[] = [];
   if (free[0]) names.push('alpha');
   if (free[1]) names.push('beta');
   const jacobian = names.map((name) => standardisationJacobian(prep, state, name));
   const covTheta = names.length
-    ? sandwichCovariance(input, params, state, model, sol, covGls, free, lastHessian)
+    ? sandwichCovariance(input, params, state, model, sol, sol.factor.blocks(), free, lastHessian)
     : [];
   const cov = Float64Array.from(covGls);
   for (let i = 0; i < p; i++) {
@@ -472,7 +491,7 @@ function sandwichCovariance(
   state: FitState,
   model: BuiltModel,
   sol: GlsSolution,
-  fInv: Float64Array,
+  fInv: CovarianceAccess,
   free: [boolean, boolean],
   hessian: [[number, number], [number, number]],
 ): number[][] {
@@ -492,8 +511,8 @@ function sandwichCovariance(
   model.problem.blocks.forEach((block, b) => {
     if (!block.diagonal) return; // prior rows carry no alpha/beta; their q-scores are small and omitted
     const r = blockResiduals(block, sol.q);
-    const v = blockVariance(block) as number[];
-    const h = blockLeverages(block, fInv, p);
+    const v = cachedVariance(block) as number[];
+    const h = blockLeverages(block, fInv);
     model.refs[b].forEach((ref, i) => {
       let dr = [0, 0];
       let dv = [0, 0];
@@ -515,16 +534,8 @@ function sandwichCovariance(
       }
     }
   }
-  // G = A_theta,q F^-1 (m x p)
-  const gMat = aTq.map((row) => {
-    const out = new Float64Array(p);
-    for (let j = 0; j < p; j++) {
-      let s = 0;
-      for (let k = 0; k < p; k++) s += row[k] * fInv[k * p + j];
-      out[j] = s;
-    }
-    return out;
-  });
+  // G = A_theta,q F^-1 (m x p), by solves with the factor (F is symmetric)
+  const gMat = aTq.map((row) => sol.factor.solve(row));
   const bMat = Array.from({ length: m }, () => new Array<number>(m).fill(0));
   for (const t of rows) {
     const inflate = 1 / Math.sqrt(Math.max(1e-6, 1 - t.h));
@@ -545,13 +556,25 @@ function sandwichCovariance(
   return tmp.map((row) => aInv[0].map((_, j) => row.reduce((s, x, k) => s + x * aInv[k][j], 0)));
 }
 
+/**
+ * A^-1 for the half Hessian of the profile chi-square in the free ones of (alpha, beta),
+ * through the numerical core. A is positive definite at a minimum; when it is not, the data
+ * do not determine alpha and beta (the chi-square is flat or curved downwards there).
+ */
 function invertSmall(a: number[][]): number[][] {
-  if (a.length === 1) return [[1 / a[0][0]]];
-  const det = a[0][0] * a[1][1] - a[0][1] * a[1][0];
-  return [
-    [a[1][1] / det, -a[0][1] / det],
-    [-a[1][0] / det, a[0][0] / det],
-  ];
+  const m = a.length;
+  let l: Float64Array;
+  try {
+    l = choleskyOfRows(a);
+  } catch (e) {
+    if (!(e instanceof NotPositiveDefiniteError)) throw e;
+    throw new AnalysisError(
+      'The global fit cannot determine the supernova standardisation (alpha, beta): the chi-square has no minimum in them.',
+      'Check that the supernovae span a range of x1 and c, or fix sn_alpha and sn_beta in the analysis choices.',
+    );
+  }
+  const inv = inverseFromCholesky(l, m);
+  return Array.from({ length: m }, (_, i) => Array.from(inv.subarray(i * m, (i + 1) * m)));
 }
 
 function rejectedResiduals(

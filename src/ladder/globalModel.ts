@@ -125,6 +125,18 @@ export class ParameterIndex {
     return this.index.get(name);
   }
 
+  /**
+   * The global parameters (zeta and the relations' coefficients): every parameter that is not
+   * one object's distance. The GLS eliminates the distances object by object around them.
+   */
+  get globals(): number[] {
+    const out: number[] = [];
+    this.names.forEach((name, i) => {
+      if (!name.startsWith('mu:')) out.push(i);
+    });
+    return out;
+  }
+
   has(name: string): boolean {
     return this.index.has(name);
   }
@@ -149,6 +161,8 @@ export interface PreparedModel {
   zeta: number | undefined;
   priorRows: SparseRow[];
   fieldParam: number[];
+  /** params.globals, computed once. */
+  globals: number[];
   cepheid: { index: number; key: string; row: SparseRow; w: number; wErr2: number }[];
   calibrator: { index: number; key: string; row: SparseRow }[];
   hubble: { index: number; key: string; row: SparseRow }[];
@@ -193,7 +207,53 @@ export function prepareModel(input: GlobalFitInput, params: ParameterIndex): Pre
     key: rowKey('sn_hubble_flow', h.row.sn),
     row: { idx: [aB!], coef: [-5] },
   }));
-  return { input, params, zeta, priorRows, fieldParam, cepheid, calibrator, hubble };
+  return { input, params, zeta, priorRows, fieldParam, globals: params.globals, cepheid, calibrator, hubble };
+}
+
+/**
+ * The rows left after outlier rejection, their design rows and references: they change only when
+ * the rejected set does, while the model is rebuilt for every (alpha, beta) the fit tries, so
+ * they are kept per rejected set (by identity; the fit makes a new set when it rejects more).
+ */
+interface KeptRows {
+  cepheid: PreparedModel['cepheid'];
+  cepheidRows: SparseRow[];
+  cepheidW: number[];
+  cepheidRefs: RowRef[];
+  calibrator: PreparedModel['calibrator'];
+  hubble: PreparedModel['hubble'];
+  hubbleRows: SparseRow[];
+  hubbleRefs: RowRef[];
+}
+
+const keptCache = new WeakMap<PreparedModel, WeakMap<ReadonlySet<string>, KeptRows>>();
+
+function keptRows(prep: PreparedModel, rejected: ReadonlySet<string>): KeptRows {
+  let byPrep = keptCache.get(prep);
+  if (!byPrep) keptCache.set(prep, (byPrep = new WeakMap()));
+  let k = byPrep.get(rejected);
+  if (k) return k;
+  const { input } = prep;
+  const cepheid = prep.cepheid.filter((c) => !rejected.has(c.key));
+  const hubble = prep.hubble.filter((c) => !rejected.has(c.key));
+  k = {
+    cepheid,
+    cepheidRows: cepheid.map((c) => c.row),
+    cepheidW: cepheid.map((c) => c.w),
+    cepheidRefs: cepheid.map((c) => {
+      const row = input.cepheids[c.index];
+      return { table: 'cepheids', id: row.star, system: row.system, line: row.line, index: c.index };
+    }),
+    calibrator: prep.calibrator.filter((c) => !rejected.has(c.key)),
+    hubble,
+    hubbleRows: hubble.map((c) => c.row),
+    hubbleRefs: hubble.map((c) => {
+      const h = input.hubbleFlow[c.index].row;
+      return { table: 'sn_hubble_flow', id: h.sn, system: null, line: h.line, index: c.index };
+    }),
+  };
+  byPrep.set(rejected, k);
+  return k;
 }
 
 /** Which rows to build: all, only the supernova rows (they depend on alpha, beta), or the rest. */
@@ -251,25 +311,21 @@ export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart
     refs.push(r);
   }
 
+  const kept = keptRows(prep, state.rejected);
   const s2c = state.scatterCepheid ** 2;
-  const cep = prep.cepheid.filter((c) => !state.rejected.has(c.key));
+  const cep = kept.cepheid;
   if (withStatic && cep.length > 0) {
     blocks.push({
-      rows: cep.map((c) => c.row),
-      y: cep.map((c) => c.w),
+      rows: kept.cepheidRows,
+      y: kept.cepheidW,
       components: [{ source: 'cepheids', diagonal: cep.map((c) => c.wErr2 + s2c) }],
       diagonal: true,
     });
-    refs.push(
-      cep.map((c) => {
-        const row = input.cepheids[c.index];
-        return { table: 'cepheids', id: row.star, system: row.system, line: row.line, index: c.index };
-      }),
-    );
+    refs.push(kept.cepheidRefs);
   }
 
   const s2s = state.scatterSupernova ** 2;
-  const cal = prep.calibrator.filter((c) => !state.rejected.has(c.key));
+  const cal = kept.calibrator;
   if (withSupernovae && cal.length > 0) {
     blocks.push({
       rows: cal.map((c) => c.row),
@@ -290,10 +346,10 @@ export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart
     );
   }
 
-  const hub = prep.hubble.filter((c) => !state.rejected.has(c.key));
+  const hub = kept.hubble;
   if (withSupernovae && hub.length > 0) {
     blocks.push({
-      rows: hub.map((c) => c.row),
+      rows: kept.hubbleRows,
       y: hub.map((c) => {
         const h = input.hubbleFlow[c.index];
         return correctedMagnitude(h.row, state.alpha, state.beta) - 5 * h.logCzf;
@@ -309,13 +365,8 @@ export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart
       ],
       diagonal: true,
     });
-    refs.push(
-      hub.map((c) => {
-        const h = input.hubbleFlow[c.index].row;
-        return { table: 'sn_hubble_flow', id: h.sn, system: null, line: h.line, index: c.index };
-      }),
-    );
+    refs.push(kept.hubbleRefs);
   }
 
-  return { problem: { nParams: params.size, paramNames: params.names, blocks }, refs };
+  return { problem: { nParams: params.size, paramNames: params.names, blocks, globals: prep.globals }, refs };
 }

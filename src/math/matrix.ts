@@ -4,6 +4,8 @@
  * O(n^3) loops are the right tool. Every function returns a new array and
  * never mutates its inputs.
  */
+import { choleskyOfRows, NotPositiveDefiniteError } from './cholesky.ts';
+
 export type Matrix = number[][];
 
 export function zeros(rows: number, cols: number): Matrix {
@@ -74,24 +76,21 @@ export function sandwich(j: Matrix, c: Matrix): Matrix {
 }
 
 /**
- * Cholesky factor L (lower triangular, A = L L^T) of a symmetric matrix, or
- * null when A is not numerically positive definite. Cost n^3/3.
+ * Cholesky factor L (lower triangular, A = L L^T) of a symmetric matrix, or null when A is
+ * not positive definite by the numerical core's one policy (src/math/cholesky.ts: a pivot not
+ * above PIVOT_RELATIVE_FLOOR times its diagonal element, or not finite). The factorisation is
+ * the core's; this is its adapter for matrices stored as rows. Cost n^3/3.
  */
 export function cholesky(a: Matrix): Matrix | null {
-  const n = a.length;
-  const l = zeros(n, n);
-  for (let j = 0; j < n; j++) {
-    let d = a[j][j];
-    for (let k = 0; k < j; k++) d -= l[j][k] * l[j][k];
-    if (!(d > 0) || !Number.isFinite(d)) return null;
-    l[j][j] = Math.sqrt(d);
-    for (let i = j + 1; i < n; i++) {
-      let s = a[i][j];
-      for (let k = 0; k < j; k++) s -= l[i][k] * l[j][k];
-      l[i][j] = s / l[j][j];
-    }
+  let flat: Float64Array;
+  try {
+    flat = choleskyOfRows(a);
+  } catch (e) {
+    if (e instanceof NotPositiveDefiniteError) return null;
+    throw e;
   }
-  return l;
+  const n = a.length;
+  return Array.from({ length: n }, (_, i) => Array.from(flat.subarray(i * n, (i + 1) * n)));
 }
 
 /** Solve (L L^T) x = b by forward and back substitution. Cost n^2. */

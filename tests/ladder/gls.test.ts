@@ -2,7 +2,8 @@
 // of the error budget split. Kinds: comparison with an independent computation (the dense
 // textbook GLS formula q = (X^T C^-1 X)^-1 X^T C^-1 y, methods.md h); edge cases.
 import { describe, expect, it } from 'vitest';
-import { solveGls, solveGlsDense, inverseFromFactor, varianceBySource, SingularFitError, type GlsProblem, type RowBlock } from '../../src/ladder/gls.ts';
+import { solveGls, varianceBySource, SingularFitError, type GlsProblem, type RowBlock } from '../../src/ladder/gls.ts';
+import { solveGlsDense } from '../reference/denseGls.ts';
 import { createRng } from '../../src/demo/random.ts';
 import { relErr, REL_1E9 } from '../tolerances.ts';
 
@@ -54,13 +55,17 @@ function randomProblem(seed: number, nSystems: number, rowsPerSystem: number): G
 }
 
 describe('structured GLS (comparison with a dense solve)', () => {
-  for (const seed of [1, 2, 3]) {
-    it(`agrees with the dense N x N solve to 1e-9 (seed ${seed})`, () => {
-      const problem = randomProblem(seed, 6, 12);
+  // without declared globals: one dense p x p system; with them: the distances are eliminated
+  // block by block (the prior block's three systems form one component, the others one each)
+  for (const [seed, structured] of [[1, false], [2, false], [3, false], [1, true], [2, true], [3, true], [4, true]] as const) {
+    it(`agrees with the dense N x N solve to 1e-9 (seed ${seed}, ${structured ? 'block elimination' : 'dense normal matrix'})`, () => {
+      const plain = randomProblem(seed, 6 + seed, 12);
+      const p0 = plain.nParams;
+      const problem = structured ? { ...plain, globals: [p0 - 4, p0 - 3, p0 - 2, p0 - 1] } : plain;
       const s = solveGls(problem);
       const d = solveGlsDense(problem);
       const p = problem.nParams;
-      const cov = inverseFromFactor(s.factor, p);
+      const cov = s.factor.covariance();
       for (let i = 0; i < p; i++) {
         expect(relErr(s.q[i], d.q[i])).toBeLessThan(REL_1E9);
         for (let j = 0; j < p; j++) expect(Math.abs(cov[i * p + j] - d.cov[i * p + j])).toBeLessThan(REL_1E9 * Math.sqrt(d.cov[i * p + i] * d.cov[j * p + j]));
@@ -70,14 +75,15 @@ describe('structured GLS (comparison with a dense solve)', () => {
   }
 
   it('splits the variance of a linear combination exactly into its sources', () => {
-    const problem = randomProblem(7, 5, 10);
+    const plain = randomProblem(7, 5, 10);
+    const problem = { ...plain, globals: [5, 6, 7, 8] };
     const s = solveGls(problem);
     const p = problem.nParams;
     const g = new Float64Array(p);
     g[p - 4] = 0.2; // like 0.2 M_B + a_B
     g[p - 3] = 1;
     const parts = varianceBySource(problem, s.factor, g);
-    const cov = inverseFromFactor(s.factor, p);
+    const cov = s.factor.covariance();
     let total = 0;
     for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) total += g[i] * cov[i * p + j] * g[j];
     const sum = [...parts.values()].reduce((a, b) => a + b, 0);
@@ -95,5 +101,32 @@ describe('structured GLS (comparison with a dense solve)', () => {
     };
     expect(() => solveGls(problem)).toThrow(SingularFitError);
     expect(() => solveGls(problem)).toThrow(/M_W/);
+    // the same with M_W global: the elimination finds it in the Schur complement, as a dense
+    // factorisation in parameter order would
+    expect(() => solveGls({ ...problem, globals: [1] })).toThrow(/M_W/);
+  });
+
+  it('names an object distance the data leave undetermined, in parameter order (edge case)', () => {
+    // mu:b and mu:c appear only as a difference; mu:a is fine; M is global
+    const problem: GlsProblem = {
+      nParams: 4,
+      paramNames: ['mu:a', 'mu:b', 'mu:c', 'M'],
+      globals: [3],
+      blocks: [
+        {
+          rows: [
+            { idx: [0, 3], coef: [1, 1] },
+            { idx: [0], coef: [1] },
+            { idx: [1, 2], coef: [1, -1] },
+            { idx: [1, 2], coef: [1, -1] },
+          ],
+          y: [1, 2, 3, 4],
+          components: [{ source: 'c', diagonal: [1, 1, 1, 1] }],
+          diagonal: true,
+        },
+      ],
+    };
+    expect(() => solveGls(problem)).toThrow(/"mu:c"/);
+    expect(() => solveGls({ ...problem, globals: undefined })).toThrow(/"mu:c"/);
   });
 });
