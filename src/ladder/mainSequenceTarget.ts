@@ -219,17 +219,21 @@ function fitTargetFrom(
 function fitTargetFreeReddening(stars: readonly TargetStarInput[], locus: LocusForTargets, opts: TargetFitOptions): TargetFit {
   const [a, b] = FREE_EBV_INTERVAL;
   const found: TargetFit[] = [];
-  let lastError: Error | null = null;
+  const reasons = new Set<string>();
   for (let e = a + FREE_EBV_START_STEP / 2; e < b; e += FREE_EBV_START_STEP) {
     try {
       const fit = fitTargetFrom(stars, locus, opts, { ebv: e, bounds: FREE_EBV_INTERVAL, tolerance: SEARCH_STEP_TOL });
       if (!found.some((f) => Math.abs(f.ebv - fit.ebv) < SAME_SOLUTION_MAG && Math.abs(f.mu - fit.mu) < SAME_SOLUTION_MAG)) found.push(fit);
     } catch (err) {
       if (!(err instanceof RangeError)) throw err;
-      lastError = err; // this start leaves too few stars in range; others may not
+      reasons.add(err.message); // this start fails (e.g. too few stars in range there); others may not
     }
   }
-  if (found.length === 0) throw lastError ?? new RangeError('no start of E(B-V) gives a fit');
+  if (found.length === 0) {
+    throw new RangeError(
+      `E(B-V) is not constrained by the photometry: no start in [${a}, ${b}] gives a fit (${[...reasons].slice(0, 2).join('; ')})`,
+    );
+  }
   const deviance = (fit: TargetFit, common: boolean[]) => {
     const r: number[] = [];
     const v: number[] = [];
