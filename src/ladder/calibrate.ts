@@ -4,7 +4,6 @@
  * Pure given (release, code version): no clock, no randomness, stable ordering.
  */
 import type { AnalysisChoices } from '../types/analysis.ts';
-import { withOverrides } from '../types/analysis.ts';
 import type { Release } from '../types/release.ts';
 import type { CheckResult, Results, VariantResult } from '../types/results.ts';
 import { RESULTS_SCHEMA } from '../types/results.ts';
@@ -17,8 +16,8 @@ import { cepheidChecks } from './cepheids.ts';
 import { fitGlobal } from './globalFit.ts';
 import { PARAM } from './globalModel.ts';
 import { assembleResults } from './assemble.ts';
-import { errorBudget } from './budget.ts';
-import { systematicError } from './variants.ts';
+import { errorBudget, systematicError, systematicSources } from './budget.ts';
+import { changesData, netShift, sourceOfVariant, variantAnalysis, variantNoiseH0 } from './variants.ts';
 import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
 
 /** Everything one pass of the ladder produces (before variants). */
@@ -172,28 +171,39 @@ export function calibrateRelease(release: Release, options: CalibrateOptions): R
   const cache = newRungCache();
   const baseline = runLadder(release, release.analysis, cache);
   const variants: VariantResult[] = release.variants.map((variant) => {
+    // source, derived values and the noise of a change of data: src/ladder/variants.ts
+    const source = sourceOfVariant(variant.overrides).id;
+    const changes_data = changesData(release.analysis, variant.overrides);
+    const { analysis, derived } = variantAnalysis(release.analysis, variant.overrides);
+    const described = { source, ...(Object.keys(derived).length > 0 ? { derived } : {}), changes_data };
     try {
-      const run = runLadder(release, withOverrides(release.analysis, variant.overrides), cache);
+      const run = runLadder(release, analysis, cache);
       const h0 = run.log10H0 ? 10 ** run.log10H0.value : null;
       const base = baseline.log10H0 ? 10 ** baseline.log10H0.value : null;
+      const delta = h0 !== null && base !== null ? h0 - base : null;
+      const noise = changes_data ? variantNoiseH0(baseline, run) : 0;
       return {
         name: variant.name,
         overrides: variant.overrides,
         h0,
         h0_stat: run.log10H0 && h0 !== null ? h0 * Math.LN10 * Math.sqrt(run.log10H0.variance) : null,
-        delta_h0: h0 !== null && base !== null ? h0 - base : null,
+        delta_h0: delta,
         error: null,
+        ...described,
+        noise_h0: noise,
+        delta_h0_net: delta !== null && noise !== null ? netShift(delta, noise) : delta,
       };
     } catch (e) {
       if (e instanceof AnalysisError) {
-        return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: e.message };
+        return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: e.message, ...described, noise_h0: null, delta_h0_net: null };
       }
       throw e;
     }
   });
   const sys = systematicError(variants);
   const budget = errorBudget(baseline, variants);
-  return assembleResults(release, baseline, variants, sys, budget, options);
+  const results = assembleResults(release, baseline, variants, sys, budget, options);
+  return { ...results, systematics: systematicSources(variants) };
 }
 
 export const RESULTS_SCHEMA_ID = RESULTS_SCHEMA;
