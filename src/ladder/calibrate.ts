@@ -18,6 +18,7 @@ import { PARAM } from './globalModel.ts';
 import { assembleResults } from './assemble.ts';
 import { errorBudget, systematicError, systematicSources } from './budget.ts';
 import { changesData, netShift, sourceOfVariant, variantAnalysis, variantNoiseH0 } from './variants.ts';
+import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
 import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
 
 /** Everything one pass of the ladder produces (before variants). */
@@ -203,7 +204,9 @@ export function calibrateRelease(release: Release, options: CalibrateOptions): R
   const sys = systematicError(variants);
   const budget = errorBudget(baseline, variants);
   const results = assembleResults(release, baseline, variants, sys, budget, options);
-  return { ...results, systematics: systematicSources(variants) };
+  const quality = baseline.fit ? cepheidHostHomogeneity(baseline.fit) : null;
+  const checks = quality ? [...results.checks, homogeneityCheck(quality)] : results.checks;
+  return { ...results, fit: { ...results.fit, quality }, checks, systematics: systematicSources(variants) };
 }
 
 export const RESULTS_SCHEMA_ID = RESULTS_SCHEMA;

@@ -91,6 +91,32 @@ export interface SystematicSource {
   rule: string;
 }
 
+/** One host's residual scatter in the homogeneity test (src/ladder/fitQuality.ts). */
+export interface GroupScatter {
+  system: string;
+  n: number;
+  dof: number;
+  chi2: number;
+  /** s_h^2 / s_p^2: this host's residual variance relative to the pooled one. */
+  variance_ratio: number;
+  /** Two-sided p-value of chi2 against chi2(dof). */
+  p_value: number;
+}
+
+/** Bartlett's test that every Cepheid host's residual variance is the same (src/ladder/fitQuality.ts). */
+export interface HomogeneityTest {
+  table: 'cepheids';
+  test: 'bartlett';
+  statistic: number;
+  dof: number;
+  p_value: number;
+  alpha: number;
+  passed: boolean;
+  groups: GroupScatter[];
+  /** Hosts left out for too few rows. */
+  excluded: string[];
+}
+
 export interface CheckResult {
   id: string;
   title: string;
@@ -247,6 +273,8 @@ export interface Results {
     converged: boolean;
     iterations: number;
     scatter: { cepheids: number; supernovae: number };
+    /** Heterogeneity of the Cepheid hosts' residual scatter (absent in older results; null with fewer than two hosts). */
+    quality?: HomogeneityTest | null;
   };
   rejected: Rejection[];
   checks: CheckResult[];
