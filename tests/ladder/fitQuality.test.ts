@@ -4,7 +4,7 @@
 // python3-scipy, scipy.stats.bartlett), and a recovery check on generated releases with known
 // truth: clean releases pass at the stated false-alarm rate, releases in which one host's
 // stated errors are four times too small fail.
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -16,7 +16,17 @@ import { DEMO_PARAMETERS } from '../../src/demo/truth.ts';
 import { loadRelease } from '../../src/io/release.ts';
 import { runLadder } from '../../src/ladder/calibrate.ts';
 import type { Release } from '../../src/types/release.ts';
-import { astropyPython } from '../reference/astropy.ts';
+
+/** Debian's interpreter first (scripts/test-setup.mjs installs python3-scipy into it): the first that imports scipy.stats. */
+function scipyPython(): string {
+  const tried = [process.env.RUNGBOOK_PYTHON ?? '', '/usr/bin/python3', 'python3'].filter((p) => p.length > 0);
+  const ok = tried.find((p) => {
+    const r = spawnSync(p, ['-c', 'import scipy.stats'], { stdio: 'ignore' });
+    return !r.error && r.status === 0;
+  });
+  if (!ok) throw new Error(`no Python with scipy among ${tried.join(', ')}: run \`node scripts/test-setup.mjs\` (installs Debian python3-scipy when run as root)`);
+  return ok;
+}
 
 describe('reference: Bartlett statistic against scipy.stats.bartlett', () => {
   it('three invented samples give scipy\'s statistic and p-value', () => {
@@ -34,7 +44,7 @@ print(json.dumps([t, p]))
 `;
     let ref: [number, number];
     try {
-      ref = JSON.parse(execFileSync(astropyPython(), ['-c', py, JSON.stringify(samples)], { encoding: 'utf8' }));
+      ref = JSON.parse(execFileSync(scipyPython(), ['-c', py, JSON.stringify(samples)], { encoding: 'utf8' }));
     } catch (e) {
       throw new Error(`python3 with scipy is required for this reference check (Debian python3-scipy, installed by scripts/test-setup.mjs): ${(e as Error).message}`);
     }
