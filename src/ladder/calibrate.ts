@@ -167,6 +167,15 @@ export interface CalibrateOptions {
   codeVersion: string;
 }
 
+function safeNoise(compute: () => number | null): number | null {
+  try {
+    const n = compute();
+    return n !== null && Number.isFinite(n) ? n : null;
+  } catch {
+    return null;
+  }
+}
+
 /** The full calibration of a release: baseline, variants, budget, results.json content. */
 export function calibrateRelease(release: Release, options: CalibrateOptions): Results {
   const cache = newRungCache();
@@ -182,7 +191,8 @@ export function calibrateRelease(release: Release, options: CalibrateOptions): R
       const h0 = run.log10H0 ? 10 ** run.log10H0.value : null;
       const base = baseline.log10H0 ? 10 ** baseline.log10H0.value : null;
       const delta = h0 !== null && base !== null ? h0 - base : null;
-      const noise = changes_data ? variantNoiseH0(baseline, run) : 0;
+      // A noise that cannot be computed (a degenerate fit) is null: the whole shift then counts.
+      const noise = changes_data ? safeNoise(() => variantNoiseH0(baseline, run)) : 0;
       return {
         name: variant.name,
         overrides: variant.overrides,
