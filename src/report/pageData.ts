@@ -568,6 +568,7 @@ function variantsData(r: Results, p: PageInputs): ReleaseData['variants'] {
       'Systematic variants',
       [
         ['name', 'Variant', null, false],
+        ['source', 'Source (analysis choice)', null, false],
         ['overrides', 'Changes', null, false],
         ['h0', 'H0', 'km/s/Mpc', true],
         ['delta', 'Shift from the baseline', 'km/s/Mpc', true],
@@ -575,9 +576,11 @@ function variantsData(r: Results, p: PageInputs): ReleaseData['variants'] {
       ],
       r.variants.map((v) => [
         v.name,
-        Object.entries(v.overrides)
-          .map(([k, x]) => `${k} = ${analysisValueText(x)}`)
-          .join(', ') || '—',
+        (r.systematics ?? []).find((s) => s.alternatives.includes(v.name))?.label ?? '—',
+        [
+          ...Object.entries(v.overrides).map(([k, x]) => `${k} = ${analysisValueText(x)}`),
+          ...Object.entries(v.derived ?? {}).map(([k, x]) => `${k} = ${typeof x === 'number' ? fixed(x, 4) : analysisValueText(x)} (derived)`),
+        ].join(', ') || '—',
         v.h0 === null ? '—' : pm(v.h0, v.h0_stat),
         v.delta_h0 === null ? '—' : fixed(v.delta_h0, 2),
         v.error === null ? 'ok' : `failed: ${v.error}`,
