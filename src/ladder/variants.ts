@@ -42,6 +42,7 @@ export const SOURCE_OF_KEY: Readonly<Record<AnalysisKey, SourceDefinition>> = Ob
   fit_pl_metallicity: { id: 'pl_metallicity', label: 'Period-luminosity metallicity term' },
   sn_alpha: { id: 'sn_standardisation', label: 'Supernova standardisation (alpha, beta fitted or fixed)' },
   sn_beta: { id: 'sn_standardisation', label: 'Supernova standardisation (alpha, beta fitted or fixed)' },
+  sn_mass_step_logmass: { id: 'sn_host_mass', label: 'Supernova host-mass step' },
   z_min: { id: 'hubble_flow_range', label: 'Hubble-flow redshift range' },
   z_max: { id: 'hubble_flow_range', label: 'Hubble-flow redshift range' },
   sigma_pec: { id: 'peculiar_velocity', label: 'Peculiar-velocity scatter' },
