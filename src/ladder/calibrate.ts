@@ -19,6 +19,7 @@ import { assembleResults } from './assemble.ts';
 import { errorBudget, systematicError, systematicSources } from './budget.ts';
 import { changesData, netShift, sourceOfVariant, variantAnalysis, variantNoiseH0 } from './variants.ts';
 import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
+import { massStepProblem } from './massStep.ts';
 import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
 
 /** Everything one pass of the ladder produces (before variants). */
@@ -120,6 +121,15 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
     hubbleFlow: flowInFit,
   });
   reached = 'cepheids';
+  const supernovae = [...release.snCalibrators, ...flowInFit.map((h) => h.row)];
+  const stepProblem = supernovae.length > 0 ? massStepProblem(analysis, supernovae) : null;
+  checks.push({
+    id: 'sn-host-mass-step',
+    title: 'Supernova host-mass step fitted',
+    passed: stepProblem === null || analysis.sn_mass_step_logmass === null,
+    severity: 'info',
+    detail: stepProblem === null ? `fitted at log10(M/M_sun) = ${analysis.sn_mass_step_logmass}` : `not fitted: ${stepProblem}`,
+  });
   let h0: LadderRun['log10H0'] = null;
   const iMB = fit.paramNames.indexOf(PARAM.MB);
   const iAB = fit.paramNames.indexOf(PARAM.aB);

@@ -120,7 +120,7 @@ describe('the demo release 2026.3', () => {
   it('results.json lists each source with its alternatives, shifts and expected noise; sys is their quadrature sum', async () => {
     const r = await calibrateReleaseDir(join(ROOT, 'content', 'releases', '2026.3'));
     const src = r.systematics!;
-    expect(src.map((s) => s.source)).toEqual(['pl_metallicity', 'hubble_flow_range', 'extinction_law', 'outlier_rejection', 'sn_standardisation']);
+    expect(src.map((s) => s.source)).toEqual(['pl_metallicity', 'hubble_flow_range', 'extinction_law', 'outlier_rejection', 'sn_host_mass', 'sn_standardisation']);
     expect(src.find((s) => s.source === 'extinction_law')!.alternatives).toEqual(['R_V 3.3', 'R_V 2.9']);
     const sumSq = src.reduce((s, x) => s + x.sigma_h0 ** 2, 0);
     expect(Math.abs(r.h0!.sys - Math.sqrt(sumSq))).toBeLessThan(1e-12);
