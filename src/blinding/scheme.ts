@@ -110,3 +110,27 @@ export function offsetInRange(units: number): boolean {
 export function h0Factor(units: number): number {
   return 10 ** (offsetMag(units) / 5);
 }
+
+/**
+ * The first scheme (before zero was a possible offset): k = n mod 4002, units = -2500 + k for
+ * k < 2001, else 500 + (k - 2001), so 0.05 <= |offset| <= 0.25 mag. Never used to blind any
+ * more; kept so that a release blinded with it can still be unblinded and read.
+ */
+export const LEGACY_V1 = Object.freeze({
+  description:
+    'offset = u * 0.0001 mag with u from HMAC-SHA256(key, "rungbook-blinding/offset/" + blinding_id) ' +
+    '(first 8 bytes, big-endian, mod 4002 mapped to -2500..-500 and 500..2500); ' +
+    'm_b of every Hubble-flow supernova is written as m_b - offset, so H0 is multiplied by 10^(offset/5); ' +
+    'salt = HMAC-SHA256(key, "rungbook-blinding/salt/" + blinding_id); ' +
+    'commitment = SHA-256(salt || "rungbook-blinding-offset:" + offset with 4 decimals); ' +
+    'key_check = HMAC-SHA256(key, "rungbook-blinding/key-check"); all hashes in lower-case hex.',
+  offsetMinAbsUnits: 500,
+});
+
+/** The hidden offset of the first scheme, in units of 0.0001 mag (LEGACY_V1). */
+export function deriveOffsetUnitsV1(key: Uint8Array, blindingId: string): number {
+  const h = hmac(key, OFFSET_LABEL + blindingId);
+  const side = OFFSET_MAX_ABS_UNITS - LEGACY_V1.offsetMinAbsUnits + 1;
+  const k = Number(h.readBigUInt64BE(0) % BigInt(2 * side));
+  return k < side ? -OFFSET_MAX_ABS_UNITS + k : LEGACY_V1.offsetMinAbsUnits + (k - side);
+}
