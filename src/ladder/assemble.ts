@@ -24,6 +24,8 @@ import { correctedMagnitude, correctedMagnitudeVariance } from './supernovae.ts'
 import { hubbleFlowLogFactor } from './kinematics.ts';
 import { distanceMpcFromModulus } from './distance.ts';
 import { massStepIndicator } from './massStep.ts';
+import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
+import { systematicSources } from './budget.ts';
 import { chiSquarePValue } from '../math/special.ts';
 import type { CalibrateOptions } from './calibrate.ts';
 
@@ -252,6 +254,8 @@ export function assembleResults(
   }));
 
   const checks: CheckResult[] = [...run.checks];
+  // fit quality that can fail (fitQuality.ts): its check comes after the checks of the rungs
+  const quality = fit ? cepheidHostHomogeneity(fit) : null;
   if (fit) {
     const ratio = fit.chi2 / fit.dof;
     checks.push({
@@ -307,6 +311,7 @@ export function assembleResults(
     systems,
     budget,
     variants,
+    systematics: systematicSources(variants),
     fit: fit
       ? {
           chi2: fit.chi2,
@@ -318,6 +323,7 @@ export function assembleResults(
           converged: fit.converged,
           iterations: fit.iterations,
           scatter: fit.scatter,
+          quality,
         }
       : {
           chi2: 0,
@@ -331,7 +337,7 @@ export function assembleResults(
           scatter: { cepheids: 0, supernovae: 0 },
         },
     rejected,
-    checks,
+    checks: quality ? [...checks, homogeneityCheck(quality)] : checks,
     correlation: { names: mainNames, matrix: corr },
     rungs: {
       parallax: {

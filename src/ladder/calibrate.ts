@@ -16,9 +16,8 @@ import { cepheidChecks } from './cepheids.ts';
 import { fitGlobal } from './globalFit.ts';
 import { PARAM } from './globalModel.ts';
 import { assembleResults } from './assemble.ts';
-import { errorBudget, systematicError, systematicSources } from './budget.ts';
+import { errorBudget, systematicError } from './budget.ts';
 import { changesData, netShift, sourceOfVariant, variantAnalysis, variantNoiseH0 } from './variants.ts';
-import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
 import { massStepProblem } from './massStep.ts';
 import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
 
@@ -223,10 +222,7 @@ export function calibrateRelease(release: Release, options: CalibrateOptions): R
   });
   const sys = systematicError(variants);
   const budget = errorBudget(baseline, variants);
-  const results = assembleResults(release, baseline, variants, sys, budget, options);
-  const quality = baseline.fit ? cepheidHostHomogeneity(baseline.fit) : null;
-  const checks = quality ? [...results.checks, homogeneityCheck(quality)] : results.checks;
-  return { ...results, fit: { ...results.fit, quality }, checks, systematics: systematicSources(variants) };
+  return assembleResults(release, baseline, variants, sys, budget, options);
 }
 
 export const RESULTS_SCHEMA_ID = RESULTS_SCHEMA;

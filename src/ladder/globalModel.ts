@@ -37,6 +37,8 @@ export interface GlobalFitInput {
   fieldSystems: ReadonlySet<string>;
   calibrators: SnCalibratorRow[];
   hubbleFlow: HubbleFlowSupernova[];
+  /** Whether the host-mass step is a parameter; when absent, decided from the supernovae (massStep.ts). */
+  massStep?: boolean;
 }
 
 export interface FitState {
@@ -121,7 +123,7 @@ export class ParameterIndex {
     }
     if (input.calibrators.length > 0) add(PARAM.MB);
     if (input.hubbleFlow.length > 0) add(PARAM.aB);
-    if (massStepProblem(input.analysis, [...input.calibrators, ...input.hubbleFlow.map((h) => h.row)]) === null) add(PARAM.dM);
+    if (input.massStep ?? massStepProblem(input.analysis, [...input.calibrators, ...input.hubbleFlow.map((h) => h.row)]) === null) add(PARAM.dM);
   }
 
   get(name: string): number | undefined {

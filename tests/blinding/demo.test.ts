@@ -50,7 +50,9 @@ function findH0(results: Results, h0: number, p: number): string[] {
     const isCount = Number.isInteger(value) && path.some((k) => COUNT_KEYS.has(k));
     if (!isCount && String(value) === form) found.push(path.join('.'));
   }
-  for (const s of stringLeaves(results)) if (hasNumberToken(s, form)) found.push(`text: ${s}`);
+  // SHA-256 digests (provenance hashes, blinding commitment) are left out: their hex digits
+  // may hold any short run of decimal digits ("...3f71e3..."), which is no number at all.
+  for (const s of stringLeaves(results)) if (!/^[0-9a-f]{64}$/.test(s) && hasNumberToken(s, form)) found.push(`text: ${s}`);
   // The raw text, for decimal forms (a whole number alone would also match line numbers).
   if (p > 0 && hasNumberToken(serializeResults(results), form)) found.push('results.json text');
   return found;
