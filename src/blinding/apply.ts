@@ -44,7 +44,7 @@ export function verifiedOffsetUnits(record: BlindingRecord, file: string): numbe
   if (!u) return null;
   const units = unitsOfOffsetMag(u.offset_mag);
   if (units === null || !offsetInRange(units)) {
-    throw recordIssue(file, 'blinding.json: the recorded offset is not one the scheme can produce', 'a multiple of 0.0001 mag with 0.05 <= |offset| <= 0.25', String(u.offset_mag));
+    throw recordIssue(file, 'blinding.json: the recorded offset is not one the scheme can produce', 'a multiple of 0.0001 mag with |offset| <= 0.25', String(u.offset_mag));
   }
   if (commitment(Buffer.from(u.salt, 'hex'), units) !== record.commitment) {
     throw recordIssue(

@@ -17,6 +17,9 @@ import {
   OFFSET_MIN_ABS_UNITS,
   OFFSET_STEP_MAG,
   SCHEME_DESCRIPTION,
+  LEGACY_V1,
+  deriveOffsetUnits,
+  deriveOffsetUnitsV1,
 } from './scheme.ts';
 
 export const BLINDING_SCHEMA = 'rungbook.blinding/1';
@@ -72,6 +75,21 @@ export function currentScheme(): BlindingScheme {
     offset_min_abs_mag: OFFSET_MIN_ABS_UNITS * OFFSET_STEP_MAG,
     offset_max_abs_mag: OFFSET_MAX_ABS_UNITS * OFFSET_STEP_MAG,
   };
+}
+
+/** The first scheme, still read and unblinded (src/blinding/scheme.ts LEGACY_V1). */
+export function legacySchemeV1(): BlindingScheme {
+  return {
+    description: LEGACY_V1.description,
+    offset_step_mag: OFFSET_STEP_MAG,
+    offset_min_abs_mag: LEGACY_V1.offsetMinAbsUnits * OFFSET_STEP_MAG,
+    offset_max_abs_mag: OFFSET_MAX_ABS_UNITS * OFFSET_STEP_MAG,
+  };
+}
+
+/** The offset in units of 0.0001 mag that the record's scheme derives from the key. */
+export function recordOffsetUnits(record: BlindingRecord, key: Uint8Array): number {
+  return record.scheme.description === LEGACY_V1.description ? deriveOffsetUnitsV1(key, record.blinding_id) : deriveOffsetUnits(key, record.blinding_id);
 }
 
 /** blinding.json text: fixed key order, two-space indentation, final newline. */
@@ -136,8 +154,11 @@ export function parseBlindingRecord(text: string, file: string): BlindingRecord 
   if (o.column !== 'm_b') bad('column', '"m_b"', o.column);
   if (typeof o.rows !== 'number' || !Number.isSafeInteger(o.rows) || o.rows < 1) bad('rows', 'a positive whole number', o.rows);
   const s = o.scheme as Record<string, unknown> | undefined;
-  const ours = currentScheme();
-  if (!s || typeof s !== 'object' || s.description !== ours.description || s.offset_step_mag !== ours.offset_step_mag || s.offset_min_abs_mag !== ours.offset_min_abs_mag || s.offset_max_abs_mag !== ours.offset_max_abs_mag) {
+  // the current scheme, or the first one (LEGACY_V1) of releases blinded before zero was a possible offset
+  const ours = [currentScheme(), legacySchemeV1()].find(
+    (x) => s && typeof s === 'object' && s.description === x.description && s.offset_step_mag === x.offset_step_mag && s.offset_min_abs_mag === x.offset_min_abs_mag && s.offset_max_abs_mag === x.offset_max_abs_mag,
+  );
+  if (!ours) {
     bad('scheme', 'the scheme this rungbook implements (see src/blinding/scheme.ts)', s);
   }
   const keyCheck = str('key_check', (x) => HEX64.test(x), '64 lower-case hex digits');
@@ -168,7 +189,7 @@ export function parseBlindingRecord(text: string, file: string): BlindingRecord 
     table,
     column: 'm_b',
     rows: o.rows as number,
-    scheme: ours,
+    scheme: ours!,
     key_check: keyCheck,
     commitment,
     blinded_on: blindedOn,

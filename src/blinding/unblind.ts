@@ -10,8 +10,8 @@ import { writeFileAtomic } from '../io/atomicWrite.ts';
 import { loadRelease } from '../io/release.ts';
 import { applyBlindingRecord } from './apply.ts';
 import { BlindingError } from './errors.ts';
-import { isIsoDate, readBlindingRecord, serializeBlindingRecord, type BlindingRecord } from './record.ts';
-import { commitment, deriveOffsetUnits, deriveSalt, keyCheck, offsetMag } from './scheme.ts';
+import { isIsoDate, readBlindingRecord, recordOffsetUnits, serializeBlindingRecord, type BlindingRecord } from './record.ts';
+import { commitment, deriveSalt, keyCheck, offsetMag } from './scheme.ts';
 
 export interface UnblindOptions {
   /** Who unblinds (a name, recorded as given). */
@@ -37,7 +37,7 @@ export function unblindRecord(record: BlindingRecord, key: Uint8Array, options: 
       'use the key file of the coordinator who blinded the release',
     );
   }
-  const units = deriveOffsetUnits(key, record.blinding_id);
+  const units = recordOffsetUnits(record, key);
   const salt = deriveSalt(key, record.blinding_id);
   if (commitment(salt, units) !== record.commitment) {
     throw new BlindingError(

@@ -8,7 +8,7 @@
 import { resolve } from 'node:path';
 import { blindReleaseFolder } from '../blinding/blindFolder.ts';
 import { readBlindingKey } from '../blinding/key.ts';
-import { OFFSET_MAX_ABS_UNITS, OFFSET_MIN_ABS_UNITS, h0Factor, offsetText } from '../blinding/scheme.ts';
+import { OFFSET_MAX_ABS_UNITS, h0Factor, offsetText } from '../blinding/scheme.ts';
 import { unitsOfOffsetMag } from '../blinding/scheme.ts';
 import { unblindReleaseDir } from '../blinding/unblind.ts';
 import { parseArgs, UsageError, type CliIO } from './output.ts';
@@ -42,7 +42,7 @@ export async function runBlind(args: string[], io: CliIO, env: NodeJS.ProcessEnv
       `  ${r.rows} Hubble-flow magnitudes (${r.table}, column m_b) now carry one hidden offset; release.yaml says "blinded: true".`,
       `  blinding id: ${r.blinding_id}   commitment: ${r.commitment}`,
       `  H0 from this release is multiplied by an unknown factor between ${f3(lo)} and ${f3(hi)}`,
-      `  (never between ${f3(h0Factor(-OFFSET_MIN_ABS_UNITS))} and ${f3(h0Factor(OFFSET_MIN_ABS_UNITS))}); every other result is unchanged.`,
+      `  (every value in that range equally likely, 1 included); every other result is unchanged.`,
       '  Neither the offset nor the key nor the salt was written anywhere. Keep the key outside the repository,',
       '  and the unblinded magnitudes out of the analysis area until the release is unblinded.',
       '',

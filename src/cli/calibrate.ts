@@ -71,14 +71,18 @@ export function summaryText(r: Results): string {
   if (r.rejected.length > 10) lines.push(`  ... and ${r.rejected.length - 10} more (see results.json)`);
   if (r.variants.length) {
     lines.push('');
-    lines.push(`Systematic variants (sys = RMS of the shifts about the baseline)${r.blinded ? ' [BLINDED: all carry the same hidden offset]' : ''}`);
+    lines.push(
+      `Systematic variants (per source: half the range of H0 over baseline and alternatives, shifts less the noise of a change of data; sources in quadrature)${r.blinded ? ' [BLINDED: all carry the same hidden offset]' : ''}`,
+    );
+    const noise = (v: (typeof r.variants)[number]) => (v.changes_data && v.noise_h0 ? `, noise ${fmt(v.noise_h0, 2)}` : '');
     for (const v of r.variants) {
       lines.push(
         v.h0 === null
           ? `  ${v.name.padEnd(28)} failed: ${v.error}`
-          : `  ${v.name.padEnd(28)} H0 = ${fmt(v.h0, 2)}  (${v.delta_h0! >= 0 ? '+' : ''}${fmt(v.delta_h0!, 2)})`,
+          : `  ${v.name.padEnd(28)} H0 = ${fmt(v.h0, 2)}  (${v.delta_h0! >= 0 ? '+' : ''}${fmt(v.delta_h0!, 2)}${noise(v)})`,
       );
     }
+    for (const s of r.systematics ?? []) lines.push(`  source ${s.label}: ${fmt(s.sigma_h0, 2)}`);
   }
   const failed = r.checks.filter((c) => !c.passed && c.severity === 'warning');
   if (failed.length) {

@@ -37,3 +37,12 @@ export const FIVE_OVER_LN10 = 5 / Math.LN10;
 
 /** Magnitude offset of an unresolved equal-mass binary: 2.5 log10 2 (follows from flux addition). */
 export const EQUAL_MASS_BINARY_OFFSET_MAG = 2.5 * Math.log10(2);
+
+/**
+ * Effective wavelengths of the Cepheid bands (V, I and H of W = m_H - R (m_V - m_I)), um,
+ * rounded: Johnson V 0.55, Cousins I 0.80, H 1.65 (Bessell 2005, ARA&A 43, 293, table 1;
+ * from memory). Used only to carry a change of R_V to the Wesenheit coefficient through the
+ * extinction law (src/ladder/extinction.ts): the ratio of two coefficients, so the rounding
+ * of a band's wavelength moves little.
+ */
+export const CEPHEID_BAND_WAVELENGTH_UM = Object.freeze({ V: 0.55, I: 0.8, H: 1.65 });

@@ -54,7 +54,11 @@ const BASE_VARIANTS: DemoVariant[] = [
   { name: 'no metallicity term', fit_pl_metallicity: false },
   { name: 'z_min 0.01', z_min: 0.01 },
   { name: 'R_V 3.3', r_v: 3.3 },
+  // Alternatives on both sides of the baseline: a source's error is half the range they span (src/ladder/budget.ts).
+  { name: 'R_V 2.9', r_v: 2.9 },
   { name: 'clipping at 3.0 sigma', clip_sigma: 3.0 },
+  { name: 'clipping at 4.0 sigma', clip_sigma: 4.0 },
+  { name: 'no host-mass step', sn_mass_step_logmass: null },
 ];
 const FIXED_ALPHA_BETA: DemoVariant = { name: 'alpha and beta fixed', sn_alpha: 0.14, sn_beta: 3.1 };
 

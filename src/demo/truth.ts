@@ -35,6 +35,8 @@ export interface DemoParameters {
   beta: number;
   /** Intrinsic scatter of standardised SN magnitudes, mag (typical 0.1-0.15). */
   sigmaIntSnMag: number;
+  /** Host-mass step, mag, added to SNe in hosts with log10 M >= 10 (0 in the demo; recovery tests inject one). */
+  massStepMag: number;
   /** Main-sequence metallicity slope, mag per dex at fixed colour (0.98, methods c). */
   msFehSlope: number;
   /** R_V used to redden main-sequence stars (diffuse ISM average 3.1). */
@@ -72,6 +74,7 @@ export const DEMO_PARAMETERS: Readonly<DemoParameters> = Object.freeze({
   alpha: 0.14,
   beta: 3.1,
   sigmaIntSnMag: 0.11,
+  massStepMag: 0,
   msFehSlope: 0.98,
   rV: 3.1,
   wesenheitR: 0.386,

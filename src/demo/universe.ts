@@ -538,7 +538,7 @@ function supernova(
   while (Math.abs(x1True) > 3) x1True = rng.gauss(0, 1);
   let cTrue = rng.gauss(-0.02, 0.07);
   while (cTrue < -0.25 || cTrue > 0.3) cTrue = rng.gauss(-0.02, 0.07);
-  const mbTrue = mu + p.mB - p.alpha * x1True + p.beta * cTrue + rng.gauss(0, p.sigmaIntSnMag);
+  const mbStandard = mu + p.mB - p.alpha * x1True + p.beta * cTrue + rng.gauss(0, p.sigmaIntSnMag);
   const mbErr = roundTo(e.mbErr, 3);
   const x1Err = roundTo(e.x1Err, 3);
   const cErr = roundTo(e.cErr, 3);
@@ -546,6 +546,9 @@ function supernova(
   const rMx = rng.between(-0.2, 0.2);
   const rMc = rng.between(0.1, 0.5);
   const rXc = rng.between(-0.2, 0.1);
+  // drawn last, as before the step existed, so the other draws stay the same
+  const hostLogMass = roundTo(rng.between(e.logMass[0], e.logMass[1]), 2);
+  const mbTrue = mbStandard + (hostLogMass >= 10 ? p.massStepMag : 0);
   return {
     sn,
     system,
@@ -562,6 +565,6 @@ function supernova(
     covMbX1: roundTo(rMx * mbErr * x1Err, 7),
     covMbC: roundTo(rMc * mbErr * cErr, 7),
     covX1C: roundTo(rXc * x1Err * cErr, 7),
-    hostLogMass: roundTo(rng.between(e.logMass[0], e.logMass[1]), 2),
+    hostLogMass,
   };
 }

@@ -183,6 +183,7 @@ const FIT_PARAMETER: Record<string, string> = {
   Z_W: 'Z_W',
   M_B: 'M_B',
   a_B: 'a_B',
+  delta_M_host: 'delta_M_host',
   parallax_zero_point: 'zeta',
 };
 

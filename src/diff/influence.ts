@@ -107,6 +107,8 @@ function buildFitRow(
     fieldSystems,
     calibrators: [],
     hubbleFlow: [],
+    // one row alone cannot tell whether the step is fitted: the snapshot's fit says
+    massStep: snap.paramNames.includes('delta_M_host'),
   };
   const linearisedMu: number[] = [];
   if (table === 'field_parallax') {

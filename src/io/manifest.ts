@@ -84,6 +84,7 @@ export const ANALYSIS_RULES: Readonly<Record<AnalysisKey, Rule>> = {
   fit_pl_metallicity: booleanRule,
   sn_alpha: nullable(numberRule()),
   sn_beta: nullable(numberRule()),
+  sn_mass_step_logmass: nullable(numberRule()),
   z_min: numberRule({ min: 0 }),
   z_max: numberRule({ greaterThan: 0 }),
   sigma_pec: numberRule({ min: 0 }),

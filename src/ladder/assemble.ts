@@ -3,7 +3,7 @@
  * Only bookkeeping here: every number was computed by a rung or the global fit.
  */
 import { createHash } from 'node:crypto';
-import type { Release } from '../types/release.ts';
+import type { Release, SupernovaLightCurve } from '../types/release.ts';
 import type {
   BudgetEntry,
   CepheidResult,
@@ -23,6 +23,9 @@ import { wesenheitMagnitude } from './cepheids.ts';
 import { correctedMagnitude, correctedMagnitudeVariance } from './supernovae.ts';
 import { hubbleFlowLogFactor } from './kinematics.ts';
 import { distanceMpcFromModulus } from './distance.ts';
+import { massStepIndicator } from './massStep.ts';
+import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
+import { systematicSources } from './budget.ts';
 import { chiSquarePValue } from '../math/special.ts';
 import type { CalibrateOptions } from './calibrate.ts';
 
@@ -35,6 +38,7 @@ const PARAMETER_INFO: Record<string, { unit: string; description: string }> = {
   Z_W: { unit: 'mag/dex', description: 'metallicity term of the period-luminosity relation ([O/H])' },
   M_B: { unit: 'mag', description: 'absolute peak magnitude of a standardised type Ia supernova' },
   a_B: { unit: '', description: 'intercept of the Hubble-flow magnitude-redshift relation' },
+  delta_M_host: { unit: 'mag', description: 'host-mass step: added to the standardised magnitude of supernovae in hosts above the step mass' },
   alpha: { unit: '', description: 'supernova stretch coefficient (Tripp)' },
   beta: { unit: '', description: 'supernova colour coefficient (Tripp)' },
   sigma_int_cepheid: { unit: 'mag', description: 'intrinsic scatter of the Cepheid Wesenheit relation (estimated)' },
@@ -88,7 +92,7 @@ export function assembleResults(
     if (blinded && BLINDED_PARAMS.has(name)) parameters[name].blinded = true;
   };
   if (fit) {
-    for (const name of [PARAM.MW, PARAM.bW, PARAM.ZW, PARAM.MB, PARAM.aB]) {
+    for (const name of [PARAM.MW, PARAM.bW, PARAM.ZW, PARAM.MB, PARAM.aB, PARAM.dM]) {
       if (idx(name) >= 0) put(name, value(name), err(name));
     }
     if (idx(PARAM.MW) >= 0 && idx(PARAM.ZW) < 0) put('Z_W', 0, 0, { fixed: true });
@@ -209,6 +213,8 @@ export function assembleResults(
   const beta = fit?.beta.value ?? 0;
   const mB = idx(PARAM.MB) >= 0 ? value(PARAM.MB) : NaN;
   const aB = idx(PARAM.aB) >= 0 ? value(PARAM.aB) : NaN;
+  // host-mass step (massStep.ts): the part of a supernova's magnitude that is not distance
+  const stepOf = (sn: SupernovaLightCurve) => (idx(PARAM.dM) >= 0 ? value(PARAM.dM) * massStepIndicator(sn, analysis.sn_mass_step_logmass!) : 0);
   const calibrators: SupernovaResult[] = fit
     ? release.snCalibrators.map((sn) => {
         const r = residualByKey.get(`sn_calibrators:${sn.sn}`);
@@ -223,7 +229,7 @@ export function assembleResults(
           c: sn.c,
           m_corr: mCorr,
           m_corr_err: Math.sqrt(correctedMagnitudeVariance(sn, alpha, beta)),
-          mu: mCorr - mB,
+          mu: mCorr - mB - stepOf(sn),
           residual: r ? r.residual : NaN,
           in_sample: true,
           rejected: r ? r.rejected : false,
@@ -245,8 +251,8 @@ export function assembleResults(
           c: sn.c,
           m_corr: mCorr,
           m_corr_err: Math.sqrt(correctedMagnitudeVariance(sn, alpha, beta)),
-          mu: mCorr - mB,
-          residual: r ? r.residual : mCorr - (5 * hubbleFlowLogFactor(sn.z, analysis.q0, analysis.j0) - 5 * aB),
+          mu: mCorr - mB - stepOf(sn),
+          residual: r ? r.residual : mCorr - stepOf(sn) - (5 * hubbleFlowLogFactor(sn.z, analysis.q0, analysis.j0) - 5 * aB),
           in_sample: usedIds.has(sn.sn),
           rejected: r ? r.rejected : false,
         };
@@ -262,6 +268,8 @@ export function assembleResults(
   }));
 
   const checks: CheckResult[] = [...run.checks];
+  // fit quality that can fail (fitQuality.ts): its check comes after the checks of the rungs
+  const quality = fit ? cepheidHostHomogeneity(fit) : null;
   if (fit) {
     const ratio = fit.chi2 / fit.dof;
     checks.push({
@@ -317,6 +325,7 @@ export function assembleResults(
     systems,
     budget,
     variants,
+    systematics: systematicSources(variants),
     fit: fit
       ? {
           chi2: fit.chi2,
@@ -328,6 +337,7 @@ export function assembleResults(
           converged: fit.converged,
           iterations: fit.iterations,
           scatter: fit.scatter,
+          quality,
         }
       : {
           chi2: 0,
@@ -341,7 +351,7 @@ export function assembleResults(
           scatter: { cepheids: 0, supernovae: 0 },
         },
     rejected,
-    checks,
+    checks: quality ? [...checks, homogeneityCheck(quality)] : checks,
     correlation: { names: mainNames, matrix: corr },
     rungs: {
       parallax: {

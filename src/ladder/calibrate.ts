@@ -4,7 +4,6 @@
  * Pure given (release, code version): no clock, no randomness, stable ordering.
  */
 import type { AnalysisChoices } from '../types/analysis.ts';
-import { withOverrides } from '../types/analysis.ts';
 import type { Release } from '../types/release.ts';
 import type { CheckResult, Results, VariantResult } from '../types/results.ts';
 import { RESULTS_SCHEMA } from '../types/results.ts';
@@ -17,8 +16,9 @@ import { cepheidChecks } from './cepheids.ts';
 import { fitGlobal } from './globalFit.ts';
 import { PARAM } from './globalModel.ts';
 import { assembleResults } from './assemble.ts';
-import { errorBudget } from './budget.ts';
-import { systematicError } from './variants.ts';
+import { errorBudget, systematicError } from './budget.ts';
+import { changesData, netShift, sourceOfVariant, variantAnalysis, variantNoiseH0 } from './variants.ts';
+import { massStepProblem } from './massStep.ts';
 import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
 
 /** Everything one pass of the ladder produces (before variants). */
@@ -126,6 +126,15 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
     hubbleFlow: flowInFit,
   });
   reached = 'cepheids';
+  const supernovae = [...release.snCalibrators, ...flowInFit.map((h) => h.row)];
+  const stepProblem = supernovae.length > 0 ? massStepProblem(analysis, supernovae) : null;
+  checks.push({
+    id: 'sn-host-mass-step',
+    title: 'Supernova host-mass step fitted',
+    passed: stepProblem === null || analysis.sn_mass_step_logmass === null,
+    severity: 'info',
+    detail: stepProblem === null ? `fitted at log10(M/M_sun) = ${analysis.sn_mass_step_logmass}` : `not fitted: ${stepProblem}`,
+  });
   let h0: LadderRun['log10H0'] = null;
   const iMB = fit.paramNames.indexOf(PARAM.MB);
   const iAB = fit.paramNames.indexOf(PARAM.aB);
@@ -173,41 +182,76 @@ export interface CalibrateOptions {
   codeVersion: string;
 }
 
-/** What a variant's run gives: its H0 (log10 and variance), or the reason it failed. */
-export type VariantOutcome = { log10H0: { value: number; variance: number } | null; error: string | null };
+/**
+ * What a variant's run gives: its H0 (log10 and variance), the statistical noise of its change
+ * of data (0 when it changes no data; null when it cannot be computed), or the reason it failed.
+ */
+export type VariantOutcome = { log10H0: { value: number; variance: number } | null; noise: number | null; error: string | null };
 
-/** Run one systematic variant (a failed variant is reported, never refuses the release). */
-export function runVariant(release: Release, variant: Release['variants'][number], cache: RungCache = newRungCache()): VariantOutcome {
+function safeNoise(compute: () => number | null): number | null {
   try {
-    const run = runLadder(release, withOverrides(release.analysis, variant.overrides), cache);
-    return { log10H0: run.log10H0 ? { value: run.log10H0.value, variance: run.log10H0.variance } : null, error: null };
+    const n = compute();
+    return n !== null && Number.isFinite(n) ? n : null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * Run one systematic variant (a failed variant is reported, never refuses the release). The
+ * baseline is needed only for the noise of a variant that changes the data
+ * (src/ladder/variants.ts); it is computed here when not given.
+ */
+export function runVariant(
+  release: Release,
+  variant: Release['variants'][number],
+  cache: RungCache = newRungCache(),
+  baseline?: () => LadderRun,
+): VariantOutcome {
+  const { analysis } = variantAnalysis(release.analysis, variant.overrides);
+  try {
+    const run = runLadder(release, analysis, cache);
+    const base = changesData(release.analysis, variant.overrides) ? (baseline ?? (() => runLadder(release, release.analysis, cache)))() : null;
+    // A noise that cannot be computed (a degenerate fit) is null: the whole shift then counts.
+    const noise = base ? safeNoise(() => variantNoiseH0(base, run)) : 0;
+    return { log10H0: run.log10H0 ? { value: run.log10H0.value, variance: run.log10H0.variance } : null, noise, error: null };
   } catch (e) {
-    if (e instanceof AnalysisError) return { log10H0: null, error: e.message };
+    if (e instanceof AnalysisError) return { log10H0: null, noise: null, error: e.message };
     throw e;
   }
 }
 
 /** A variant's entry of results.json from its outcome and the baseline. */
-export function variantResult(variant: Release['variants'][number], outcome: VariantOutcome, baseline: LadderRun): VariantResult {
+export function variantResult(release: Release, variant: Release['variants'][number], outcome: VariantOutcome, baseline: LadderRun): VariantResult {
+  // source, derived values and whether it changes the data: src/ladder/variants.ts
+  const source = sourceOfVariant(variant.overrides).id;
+  const changes_data = changesData(release.analysis, variant.overrides);
+  const { derived } = variantAnalysis(release.analysis, variant.overrides);
+  const described = { source, ...(Object.keys(derived).length > 0 ? { derived } : {}), changes_data };
   if (outcome.error !== null) {
-    return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: outcome.error };
+    return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: outcome.error, ...described, noise_h0: null, delta_h0_net: null };
   }
   const run = outcome.log10H0;
   const h0 = run ? 10 ** run.value : null;
   const base = baseline.log10H0 ? 10 ** baseline.log10H0.value : null;
+  const delta = h0 !== null && base !== null ? h0 - base : null;
+  const noise = outcome.noise;
   return {
     name: variant.name,
     overrides: variant.overrides,
     h0,
     h0_stat: run && h0 !== null ? h0 * Math.LN10 * Math.sqrt(run.variance) : null,
-    delta_h0: h0 !== null && base !== null ? h0 - base : null,
+    delta_h0: delta,
     error: null,
+    ...described,
+    noise_h0: noise,
+    delta_h0_net: delta !== null && noise !== null ? netShift(delta, noise) : delta,
   };
 }
 
 /** results.json content from the baseline run and the variants' outcomes (in the release's order). */
 export function finishCalibration(release: Release, baseline: LadderRun, outcomes: VariantOutcome[], options: CalibrateOptions): Results {
-  const variants = release.variants.map((v, i) => variantResult(v, outcomes[i], baseline));
+  const variants = release.variants.map((v, i) => variantResult(release, v, outcomes[i], baseline));
   const sys = systematicError(variants);
   const budget = errorBudget(baseline, variants);
   return assembleResults(release, baseline, variants, sys, budget, options);
@@ -221,7 +265,7 @@ export function finishCalibration(release: Release, baseline: LadderRun, outcome
 export function calibrateRelease(release: Release, options: CalibrateOptions): Results {
   const cache = newRungCache();
   const baseline = runLadder(release, release.analysis, cache);
-  const outcomes = release.variants.map((variant) => runVariant(release, variant, cache));
+  const outcomes = release.variants.map((variant) => runVariant(release, variant, cache, () => baseline));
   return finishCalibration(release, baseline, outcomes, options);
 }
 

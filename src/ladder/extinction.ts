@@ -11,6 +11,8 @@
  * approximates its extinction (which depends on the spectrum and on A_V).
  */
 
+import { CEPHEID_BAND_WAVELENGTH_UM } from '../constants/index.ts';
+
 /** Name recorded in reports for this law and coefficient set. */
 export const EXTINCTION_LAW_NAME = 'CCM89 (Cardelli, Clayton & Mathis 1989, ApJ 345, 245), IR + optical/NIR branches';
 
@@ -117,4 +119,21 @@ export function wesenheitCoefficient(rV: number, wavelength1Um: number, waveleng
     );
   }
   return a1 / colourExcess;
+}
+
+/**
+ * The Wesenheit coefficient for another R_V, derived from the extinction law: the release's
+ * coefficient `baseR` (stated for `baseRV`) times the law's ratio
+ *   R(rV) = baseR * R_CCM89(rV) / R_CCM89(baseRV),
+ * with R_CCM89 = A_H / (A_V - A_I) at the Cepheid bands' effective wavelengths
+ * (src/constants). Why a ratio and not R_CCM89(rV) itself: a release's coefficient may come
+ * from band-integrated extinction or another law at its R_V (0.386 at R_V = 3.1, while the
+ * monochromatic CCM89 value is 0.448); what the law adds is how R changes with R_V, so a
+ * variant that changes only R_V moves R by the law's relative change and leaves the
+ * baseline exactly as the release states it. Cost: O(1).
+ */
+export function wesenheitCoefficientForRV(baseR: number, baseRV: number, rV: number): number {
+  if (rV === baseRV) return baseR;
+  const { V, I, H } = CEPHEID_BAND_WAVELENGTH_UM;
+  return (baseR * wesenheitCoefficient(rV, H, V, I)) / wesenheitCoefficient(baseRV, H, V, I);
 }

@@ -17,13 +17,14 @@
  *  - Hubble flow: m_B + alpha x1 - beta c - 5 log10(c z f) = -5 a_B           [hubble_flow]
  */
 import type { AnalysisChoices } from '../types/analysis.ts';
-import type { CepheidRow, SnCalibratorRow } from '../types/release.ts';
+import type { CepheidRow, SnCalibratorRow, SupernovaLightCurve } from '../types/release.ts';
 import type { DistancePriorBlock, FieldStarAnchor } from './types.ts';
 import type { GlsProblem, RowBlock, SparseRow } from './gls.ts';
 import type { HubbleFlowSupernova } from './hubbleFlow.ts';
 import { wesenheitMagnitude } from './cepheids.ts';
 import { correctedMagnitude, correctedMagnitudeVariance } from './supernovae.ts';
 import { parallaxMasFromModulus } from './distance.ts';
+import { massStepIndicator, massStepProblem } from './massStep.ts';
 
 export interface GlobalFitInput {
   analysis: AnalysisChoices;
@@ -36,6 +37,8 @@ export interface GlobalFitInput {
   fieldSystems: ReadonlySet<string>;
   calibrators: SnCalibratorRow[];
   hubbleFlow: HubbleFlowSupernova[];
+  /** Whether the host-mass step is a parameter; when absent, decided from the supernovae (massStep.ts). */
+  massStep?: boolean;
 }
 
 export interface FitState {
@@ -74,6 +77,7 @@ export const PARAM = {
   ZW: 'Z_W',
   MB: 'M_B',
   aB: 'a_B',
+  dM: 'delta_M_host',
 } as const;
 
 export function systemParam(system: string): string {
@@ -119,6 +123,7 @@ export class ParameterIndex {
     }
     if (input.calibrators.length > 0) add(PARAM.MB);
     if (input.hubbleFlow.length > 0) add(PARAM.aB);
+    if (input.massStep ?? massStepProblem(input.analysis, [...input.calibrators, ...input.hubbleFlow.map((h) => h.row)]) === null) add(PARAM.dM);
   }
 
   get(name: string): number | undefined {
@@ -196,16 +201,20 @@ export function prepareModel(input: GlobalFitInput, params: ParameterIndex): Pre
     });
   }
   const mB = params.get(PARAM.MB);
+  // host-mass step (massStep.ts): one more term on the high-mass side
+  const dM = params.get(PARAM.dM);
+  const step = (sn: SupernovaLightCurve, row: SparseRow): SparseRow =>
+    dM !== undefined && massStepIndicator(sn, analysis.sn_mass_step_logmass!) === 1 ? { idx: [...row.idx, dM], coef: [...row.coef, 1] } : row;
   const calibrator = input.calibrators.map((sn, index) => ({
     index,
     key: rowKey('sn_calibrators', sn.sn),
-    row: { idx: [params.get(systemParam(sn.system))!, mB!], coef: [1, 1] },
+    row: step(sn, { idx: [params.get(systemParam(sn.system))!, mB!], coef: [1, 1] }),
   }));
   const aB = params.get(PARAM.aB);
   const hubble = input.hubbleFlow.map((h, index) => ({
     index,
     key: rowKey('sn_hubble_flow', h.row.sn),
-    row: { idx: [aB!], coef: [-5] },
+    row: step(h.row, { idx: [aB!], coef: [-5] }),
   }));
   return { input, params, zeta, priorRows, fieldParam, globals: params.globals, cepheid, calibrator, hubble };
 }

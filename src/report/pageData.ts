@@ -437,12 +437,22 @@ function globalFit(r: Results, p: PageInputs): ReleaseData['globalFit'] {
   }
   const rej = rejectedTable(r, 'all-rejected', ['cepheids', 'sn_calibrators', 'sn_hubble_flow'], p.tableDownload);
   if (rej) tables.push(rej);
+  const q = f.quality ?? null;
+  if (q) tables.push(hostScatterTable(q, p));
   return {
     note: 'global-fit',
     tables,
     keyValues: [
       kv('χ² / degrees of freedom', `${fixed(f.chi2, 1)} / ${f.dof}`),
       kv('p-value', fixed(f.p_value, 3)),
+      ...(q
+        ? [
+            kv(
+              'Cepheid scatter alike in every host (Bartlett)',
+              `${q.passed ? 'passed' : 'FAILED'}: T = ${fixed(q.statistic, 2)} with ${q.dof} degrees of freedom, p = ${sig(q.p_value, 2)} (fails below ${q.alpha})`,
+            ),
+          ]
+        : []),
       kv('Data rows / parameters', `${int(f.n_data)} / ${int(f.n_parameters)}`),
       kv('Rows rejected', int(f.n_rejected)),
       kv('Converged', f.converged ? `yes, in ${f.iterations} iterations` : `no (stopped after ${f.iterations} iterations)`),
@@ -451,11 +461,80 @@ function globalFit(r: Results, p: PageInputs): ReleaseData['globalFit'] {
   };
 }
 
+/** Bartlett's test per host: each host's residual variance against the pooled one (src/ladder/fitQuality.ts). */
+function hostScatterTable(q: NonNullable<Results['fit']['quality']>, p: PageInputs): TableView {
+  return tableView(
+    'host-scatter',
+    'Cepheid residual scatter by host',
+    [
+      ['system', 'Host', null, false],
+      ['n', 'Cepheids in the fit', null, true],
+      ['dof', 'Degrees of freedom', null, true],
+      ['chi2', 'χ²', null, true],
+      ['ratio', 'Variance / pooled variance', null, true],
+      ['p', 'p (two-sided)', null, true],
+    ],
+    q.groups.map((g) => [g.system, int(g.n), fixed(g.dof, 1), fixed(g.chi2, 1), fixed(g.variance_ratio, 2), sig(g.p_value, 2)]),
+    {
+      caption:
+        `Bartlett's test that every host's standardised Cepheid residuals have the same variance: T = ${fixed(q.statistic, 2)}, ` +
+        `${q.dof} degrees of freedom, p = ${sig(q.p_value, 2)}. Degrees of freedom are the rows less their leverages.` +
+        (q.excluded.length > 0 ? ` Left out for too few rows: ${q.excluded.join(', ')}.` : ''),
+      marks: q.groups.map((g): RowMark => (g.p_value < q.alpha ? 'flagged' : null)),
+      downloads: p.tableDownload('host_scatter'),
+    },
+  );
+}
+
+/** Each source of systematic error with its alternatives, their shifts and the noise expected (src/ladder/budget.ts). */
+function sourcesTable(r: Results, p: PageInputs): TableView | null {
+  const sources = r.systematics ?? [];
+  if (sources.length === 0) return null;
+  const rows: string[][] = [];
+  const marks: RowMark[] = [];
+  for (const s of sources) {
+    for (const name of s.alternatives) {
+      const v = r.variants.find((x) => x.name === name);
+      if (!v) continue;
+      rows.push([
+        s.label,
+        fixed(s.sigma_h0, 2),
+        v.name,
+        v.delta_h0 === null ? '—' : fixed(v.delta_h0, 2),
+        v.noise_h0 === null || v.noise_h0 === undefined ? '—' : v.changes_data ? fixed(v.noise_h0, 2) : '0 (same data)',
+        v.delta_h0_net === null || v.delta_h0_net === undefined ? '—' : fixed(v.delta_h0_net, 2),
+      ]);
+      marks.push(v.h0 === null ? 'failed' : r.blinded ? 'blinded' : null);
+    }
+  }
+  return tableView(
+    'systematic-sources',
+    'Sources of systematic error and their alternatives',
+    [
+      ['source', 'Source', null, false],
+      ['sigma', 'σ of the source', 'km/s/Mpc', true],
+      ['alternative', 'Alternative', null, false],
+      ['delta', 'Shift of H0', 'km/s/Mpc', true],
+      ['noise', 'Noise expected', 'km/s/Mpc', true],
+      ['net', 'Shift less noise', 'km/s/Mpc', true],
+    ],
+    rows,
+    {
+      caption:
+        "A source's σ is half the full range of H0 over the baseline and its alternatives; an alternative that changes the data counts only " +
+        'the part of its shift beyond the statistical noise of that change (subtracted in quadrature, floored at 0); sources add in quadrature.',
+      marks,
+      downloads: p.tableDownload('systematic_sources'),
+    },
+  );
+}
+
 function budget(r: Results, p: PageInputs): ReleaseData['budget'] {
-  if (r.h0 === null || r.budget.length === 0) return { note: 'error-budget', table: null, figures: [], keyValues: [] };
+  if (r.h0 === null || r.budget.length === 0) return { note: 'error-budget', table: null, sources: null, figures: [], keyValues: [] };
   const h = headline(r);
   return {
     note: 'error-budget',
+    sources: sourcesTable(r, p),
     table: tableView(
       'budget',
       'Error budget of H0',
@@ -489,6 +568,7 @@ function variantsData(r: Results, p: PageInputs): ReleaseData['variants'] {
       'Systematic variants',
       [
         ['name', 'Variant', null, false],
+        ['source', 'Source (analysis choice)', null, false],
         ['overrides', 'Changes', null, false],
         ['h0', 'H0', 'km/s/Mpc', true],
         ['delta', 'Shift from the baseline', 'km/s/Mpc', true],
@@ -496,9 +576,11 @@ function variantsData(r: Results, p: PageInputs): ReleaseData['variants'] {
       ],
       r.variants.map((v) => [
         v.name,
-        Object.entries(v.overrides)
-          .map(([k, x]) => `${k} = ${analysisValueText(x)}`)
-          .join(', ') || '—',
+        (r.systematics ?? []).find((s) => s.alternatives.includes(v.name))?.label ?? '—',
+        [
+          ...Object.entries(v.overrides).map(([k, x]) => `${k} = ${analysisValueText(x)}`),
+          ...Object.entries(v.derived ?? {}).map(([k, x]) => `${k} = ${typeof x === 'number' ? fixed(x, 4) : analysisValueText(x)} (derived)`),
+        ].join(', ') || '—',
         v.h0 === null ? '—' : pm(v.h0, v.h0_stat),
         v.delta_h0 === null ? '—' : fixed(v.delta_h0, 2),
         v.error === null ? 'ok' : `failed: ${v.error}`,

@@ -201,6 +201,40 @@ export function resultTables(r: Results): ResultTable[] {
       rows: r.variants.map((v) => ({ name: v.name, overrides: JSON.stringify(v.overrides), h0: v.h0, h0_stat: v.h0_stat, delta_h0: v.delta_h0, error: v.error })),
     },
     {
+      name: 'systematic_sources',
+      title: 'Sources of systematic error and their alternatives',
+      columns: [
+        col('source', 'string'),
+        col('sigma_source', 'float64', KMSMPC, 'half the full range of H0 over the baseline and the alternatives'),
+        col('alternative', 'string'),
+        col('delta_h0', 'float64', KMSMPC),
+        col('changes_data', 'bool'),
+        col('noise_h0', 'float64', KMSMPC, 'standard deviation of delta_h0 from statistical noise alone'),
+        col('delta_h0_net', 'float64', KMSMPC, 'delta_h0 less the noise in quadrature, floored at 0'),
+        col('derived', 'string', '', 'JSON object of values derived for the alternative'),
+      ],
+      rows: (r.systematics ?? []).flatMap((s) =>
+        r.variants
+          .filter((v) => s.alternatives.includes(v.name))
+          .map((v) => ({
+            source: s.source,
+            sigma_source: s.sigma_h0,
+            alternative: v.name,
+            delta_h0: v.delta_h0,
+            changes_data: v.changes_data ?? false,
+            noise_h0: v.noise_h0 ?? null,
+            delta_h0_net: v.delta_h0_net ?? null,
+            derived: JSON.stringify(v.derived ?? {}),
+          })),
+      ),
+    },
+    {
+      name: 'host_scatter',
+      title: 'Cepheid residual scatter by host (Bartlett test)',
+      columns: [col('system', 'string'), col('n', 'int64'), col('dof', 'float64'), col('chi2', 'float64'), col('variance_ratio', 'float64'), col('p_value', 'float64')],
+      rows: (r.fit.quality?.groups ?? []).map((g) => ({ ...g })),
+    },
+    {
       name: 'rejected',
       title: 'Rejected rows',
       columns: [col('table', 'string'), col('id', 'string'), col('system', 'string'), col('line', 'int64'), col('residual_sigma', 'float64')],

@@ -150,7 +150,7 @@ export interface ReleaseData {
   overviewFigures: string[];
   rungs: RungData[];
   globalFit: { note: string; tables: TableView[]; keyValues: KeyValue[] };
-  budget: { note: string; table: TableView | null; figures: string[]; keyValues: KeyValue[] };
+  budget: { note: string; table: TableView | null; sources: TableView | null; figures: string[]; keyValues: KeyValue[] };
   variants: { note: string; table: TableView | null; figures: string[] };
   provenance: {
     inputs: TableView;

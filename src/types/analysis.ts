@@ -24,6 +24,8 @@ export interface AnalysisChoices {
   /** null: fitted; a number: fixed. */
   sn_alpha: number | null;
   sn_beta: number | null;
+  /** log10(M_host / M_sun) of the supernova host-mass step (src/ladder/massStep.ts); null: no step. */
+  sn_mass_step_logmass: number | null;
   z_min: number;
   z_max: number;
   /** km/s, peculiar-velocity scatter in the Hubble flow. */
@@ -50,6 +52,7 @@ export const ANALYSIS_UNITS: Readonly<Record<AnalysisKey, string>> = Object.free
   fit_pl_metallicity: '',
   sn_alpha: '',
   sn_beta: '',
+  sn_mass_step_logmass: 'dex',
   z_min: '',
   z_max: '',
   sigma_pec: 'km/s',
@@ -89,6 +92,9 @@ export const DEFAULT_ANALYSIS: Readonly<AnalysisChoices> = Object.freeze({
   fit_pl_metallicity: true,
   sn_alpha: null,
   sn_beta: null,
+  // Host-mass step at 10^10 M_sun (Kelly et al. 2010, ApJ 715, 743; Sullivan et al. 2010, MNRAS 406, 782);
+  // fitted only when every supernova states host_logmass and both sides are populated.
+  sn_mass_step_logmass: 10,
   // Hubble-flow range 0.0233 < z < 0.15 (Riess et al. 2016; from memory).
   z_min: 0.0233,
   z_max: 0.15,

@@ -49,7 +49,7 @@ export interface SystemResult {
 
 export interface BudgetEntry {
   /** Stable key: "anchors", "parallax_zero_point", "main_sequence", "cepheids", "sn_calibrators",
-   * "sn_standardisation", "hubble_flow", "systematic:<variant name>". */
+   * "sn_standardisation", "hubble_flow", "systematic:<source id>" (src/ladder/variants.ts). */
   source: string;
   label: string;
   /** Contribution to sigma(H0) in km/s/Mpc: sqrt of this source's share of the variance. */
@@ -67,6 +67,54 @@ export interface VariantResult {
   h0_stat: number | null;
   delta_h0: number | null;
   error: string | null;
+  /** Id of the systematic source (analysis choice) this variant is an alternative of (src/ladder/variants.ts). */
+  source?: string;
+  /** Values the tool derived for this variant (the Wesenheit coefficient from the extinction law when only R_V changes). */
+  derived?: Partial<AnalysisChoices>;
+  /** true when the variant changes which rows enter the fit (clipping threshold, redshift range, colour range). */
+  changes_data?: boolean;
+  /** Standard deviation of delta_h0 expected from statistical noise alone (0 when the data do not change; null if not computed). */
+  noise_h0?: number | null;
+  /** delta_h0 with that noise removed in quadrature, floored at 0, sign kept (null when the variant failed). */
+  delta_h0_net?: number | null;
+}
+
+/** One source of systematic error of H0: an analysis choice, its alternatives and its error (src/ladder/budget.ts). */
+export interface SystematicSource {
+  source: string;
+  label: string;
+  /** Names of the variants that are its alternatives (those that failed included, with no shift). */
+  alternatives: string[];
+  /** The source's error of H0 in km/s/Mpc by the rule below. */
+  sigma_h0: number;
+  /** The rule, in words. */
+  rule: string;
+}
+
+/** One host's residual scatter in the homogeneity test (src/ladder/fitQuality.ts). */
+export interface GroupScatter {
+  system: string;
+  n: number;
+  dof: number;
+  chi2: number;
+  /** s_h^2 / s_p^2: this host's residual variance relative to the pooled one. */
+  variance_ratio: number;
+  /** Two-sided p-value of chi2 against chi2(dof). */
+  p_value: number;
+}
+
+/** Bartlett's test that every Cepheid host's residual variance is the same (src/ladder/fitQuality.ts). */
+export interface HomogeneityTest {
+  table: 'cepheids';
+  test: 'bartlett';
+  statistic: number;
+  dof: number;
+  p_value: number;
+  alpha: number;
+  passed: boolean;
+  groups: GroupScatter[];
+  /** Hosts left out for too few rows. */
+  excluded: string[];
 }
 
 export interface CheckResult {
@@ -213,6 +261,8 @@ export interface Results {
   systems: SystemResult[];
   budget: BudgetEntry[];
   variants: VariantResult[];
+  /** Sources of systematic error (absent in results written before sources existed). */
+  systematics?: SystematicSource[];
   fit: {
     chi2: number;
     dof: number;
@@ -223,6 +273,8 @@ export interface Results {
     converged: boolean;
     iterations: number;
     scatter: { cepheids: number; supernovae: number };
+    /** Heterogeneity of the Cepheid hosts' residual scatter (absent in older results; null with fewer than two hosts). */
+    quality?: HomogeneityTest | null;
   };
   rejected: Rejection[];
   checks: CheckResult[];

@@ -50,7 +50,9 @@ function findH0(results: Results, h0: number, p: number): string[] {
     const isCount = Number.isInteger(value) && path.some((k) => COUNT_KEYS.has(k));
     if (!isCount && String(value) === form) found.push(path.join('.'));
   }
-  for (const s of stringLeaves(results)) if (hasNumberToken(s, form)) found.push(`text: ${s}`);
+  // SHA-256 digests (provenance hashes, blinding commitment) are left out: their hex digits
+  // may hold any short run of decimal digits ("...3f71e3..."), which is no number at all.
+  for (const s of stringLeaves(results)) if (!/^[0-9a-f]{64}$/.test(s) && hasNumberToken(s, form)) found.push(`text: ${s}`);
   // The raw text, for decimal forms (a whole number alone would also match line numbers).
   if (p > 0 && hasNumberToken(serializeResults(results), form)) found.push('results.json text');
   return found;
@@ -136,9 +138,19 @@ describe('its true H0', () => {
     for (const h0 of [truthH0, neverBlinded.h0!.value]) {
       for (let p = 0; p <= 4; p++) expect(findH0(blinded, h0, p), `${h0.toFixed(p)}`).toEqual([]);
     }
-    // No value in km/s/Mpc that the results hold would be shown as a true H0 at any precision.
-    for (const h0 of [truthH0, neverBlinded.h0!.value]) {
-      for (let p = 0; p <= 4; p++) for (const v of h0Values(blinded)) expect(v.toFixed(p), `${v} at ${p} decimals`).not.toBe(h0.toFixed(p));
+    // Every H0 the results hold (baseline and variants) is the never-blinded one times the hidden
+    // factor: none escaped the blinding. (The offset is drawn uniformly on -0.25..+0.25 mag with
+    // zero included, so a blinded value may agree with the true one at a coarse precision by
+    // chance, e.g. this release's variant at 71.44 and the truth 71.3 both read "71": that
+    // agreement tells nothing, since nobody can know the offset is small. Before the scheme
+    // excluded |offset| < 0.05 mag, and this test asserted no agreement at any precision.)
+    const factor = h0Factor(deriveOffsetUnits(Buffer.from(DEMO_KEY), DEMO_BLINDING.blindingId));
+    expect(factor).not.toBe(1);
+    const pairs = [[blinded.h0!.value, neverBlinded.h0!.value], ...blinded.variants.map((v, i) => [v.h0, neverBlinded.variants[i]!.h0])];
+    for (const [b, t] of pairs) {
+      expect(b).not.toBeNull();
+      expect(relErr(b!, t! * factor)).toBeLessThan(REL_1E9);
+      expect(relErr(b!, t!)).toBeGreaterThan(1e-3);
     }
   });
 

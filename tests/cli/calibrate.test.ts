@@ -38,9 +38,13 @@ describe('rungbook calibrate', () => {
     expect(Math.sqrt(stat2)).toBeCloseTo(r.h0!.stat, 9);
     const sys2 = r.budget.filter((b) => b.kind === 'systematic').reduce((s, b) => s + b.sigma_h0 ** 2, 0);
     expect(Math.sqrt(sys2)).toBeCloseTo(r.h0!.sys, 9);
-    // the systematic error is the RMS of the variants about the baseline (content/methods/variants.md)
-    const shifts = r.variants.filter((v) => v.delta_h0 !== null).map((v) => v.delta_h0!);
-    expect(r.h0!.sys).toBeCloseTo(Math.sqrt(shifts.reduce((s, d) => s + d * d, 0) / shifts.length), 12);
+    // the systematic error follows the rule of content/methods/variants.md: per source (analysis
+    // choice), half the range of {0, net shifts of its alternatives}; sources in quadrature
+    const bySource = new Map<string, number[]>();
+    for (const v of r.variants) bySource.set(v.source!, [...(bySource.get(v.source!) ?? [0]), v.delta_h0_net ?? 0]);
+    const half = [...bySource.values()].map((d) => (Math.max(...d) - Math.min(...d)) / 2);
+    expect(bySource.size).toBeLessThan(r.variants.length); // alternatives of one choice share a source
+    expect(r.h0!.sys).toBeCloseTo(Math.sqrt(half.reduce((s, x) => s + x * x, 0)), 12);
   });
 
   it('exits 1 with file, line and column on bad input and writes nothing', async () => {

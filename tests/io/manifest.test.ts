@@ -157,6 +157,7 @@ describe('release.yaml: analysis values', () => {
     ['fit_pl_metallicity', ['1', '"true"', 'yes', 'null']],
     ['sn_alpha', ['fit', '.nan']],
     ['sn_beta', ['"3.1"']],
+    ['sn_mass_step_logmass', ['"10"', '.nan', 'ten']],
     ['z_min', ['-0.01']],
     ['z_max', ['0', '-1']],
     ['sigma_pec', ['-250']],
