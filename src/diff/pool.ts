@@ -9,7 +9,7 @@ import { dirname, join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { Release } from '../types/release.ts';
-import { newJobContext, runJob, type DiffJob, type DiffJobResult, type JobContext } from './jobs.ts';
+import { jobCacheKey, newJobContext, runJob, type DiffJob, type DiffJobResult, type JobContext } from './jobs.ts';
 
 export const DEFAULT_WORKERS = 2;
 
@@ -36,6 +36,8 @@ interface Slot {
   initialised: boolean;
   dead: boolean;
   busy: Pending | null;
+  /** Rung caches this worker holds (jobCacheKey of the jobs it ran). */
+  caches: Set<number>;
 }
 
 type InitData = { a: Release; b: Release; codeVersion: string };
@@ -65,7 +67,7 @@ class Runner implements JobRunner {
       this.notes.push(`worker thread did not start (${(e as Error).message})`);
       return;
     }
-    const slot: Slot = { worker, ready: false, initialised: false, dead: false, busy: null };
+    const slot: Slot = { worker, ready: false, initialised: false, dead: false, busy: null, caches: new Set() };
     this.slots.push(slot);
     worker.on('message', (m: { type: string; id?: number; result?: DiffJobResult; message?: string }) => {
       if (m.type === 'ready') {
@@ -120,10 +122,23 @@ class Runner implements JobRunner {
         slot.initialised = true;
       }
       if (slot.busy || this.queue.length === 0) continue;
-      const p = this.queue.shift()!;
+      const p = this.queue.splice(this.nextFor(slot), 1)[0]!;
       slot.busy = p;
+      slot.caches.add(jobCacheKey(p.job));
       slot.worker.postMessage({ type: 'job', id: p.id, job: p.job });
     }
+  }
+
+  /**
+   * Index in the queue of the job for a free worker: the first whose early rungs this worker has
+   * already computed (its rung cache is reused, as in one thread), else the first whose early
+   * rungs no worker holds, else the first. Only the order of work changes, never a result.
+   */
+  private nextFor(slot: Slot): number {
+    const mine = this.queue.findIndex((p) => slot.caches.has(jobCacheKey(p.job)));
+    if (mine >= 0) return mine;
+    const fresh = this.queue.findIndex((p) => !this.slots.some((s) => !s.dead && s.caches.has(jobCacheKey(p.job))));
+    return fresh >= 0 ? fresh : 0;
   }
 
   private drainLocally(): void {

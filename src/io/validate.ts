@@ -220,7 +220,8 @@ export function validateTable<Row>(raw: RawTable, spec: TableSpec<Row>): Validat
 
     let rowOk = complete;
     const out: Record<string, unknown> = {};
-    const bad = new Set<string>();
+    // Columns of this row with a bad value; created only for a row that has one (most have none).
+    let bad: Set<string> | null = null;
     for (const { spec: col, column, at, convert } of present) {
       const cell = row.cells[at];
       if (cell.trim() === '') {
@@ -233,12 +234,12 @@ export function validateTable<Row>(raw: RawTable, spec: TableSpec<Row>): Validat
       const result = col.type === 'number' ? readNumberCell(cell, column, col, convert) : readTextCell(cell, col);
       if ('problem' in result) {
         rowOk = false;
-        bad.add(col.name);
+        (bad ??= new Set<string>()).add(col.name);
         problems.push({ ...result.problem, line: row.line, column: col.name });
       } else out[col.field] = result.value;
     }
     for (const { spec: col, at } of present) {
-      if (col.needs === undefined || row.cells[at].trim() === '' || bad.has(col.name) || bad.has(col.needs)) continue;
+      if (col.needs === undefined || row.cells[at].trim() === '' || bad?.has(col.name) || bad?.has(col.needs)) continue;
       const partner = index.get(col.needs);
       if (partner === undefined || row.cells[partner].trim() === '') {
         rowOk = false;
@@ -254,7 +255,9 @@ export function validateTable<Row>(raw: RawTable, spec: TableSpec<Row>): Validat
     }
     if (rowOk) {
       for (const col of spec.columns as ColumnSpec[]) if (col.absent !== undefined && out[col.field] === undefined) out[col.field] = col.absent;
-      rows.push({ ...out, line: row.line } as Row);
+      // `line` last, as a spread would put it, without copying the row
+      out.line = row.line;
+      rows.push(out as Row);
     }
   }
 

@@ -31,10 +31,36 @@ const VARIANT_TASK = new URL('./variantTask.ts', import.meta.url);
  */
 export const AUTO_WORKERS_MIN_ROWS = 10_000;
 
-/** Workers for 'auto': the available cores for a large release, 1 (this thread) for a small one. */
+/**
+ * Peak memory that 'auto' keeps a calibration under: issue 14's target for a 16x release with
+ * its variants (500 MB). Each worker thread holds its own copy of the release and of its fits.
+ */
+export const AUTO_MEMORY_BUDGET_MB = 500;
+
+/**
+ * Peak memory of a calibration, MB, as a line in the input rows, fitted to the peaks measured with
+ * `/usr/bin/time -v` and `npm run bench` on the 2-core machine (December 2026): this thread
+ * (the process) about 147 MB at 2,345 rows and 374-404 MB at 37,489 rows; two worker threads
+ * about 93 MB more at 2,345 rows and 300-340 MB more at 37,489 rows (each its own module graph,
+ * copy of the release and fits). Rounded up, so that 'auto' errs towards fewer threads.
+ */
+export function estimatedPeakMb(rows: number, workers: number): number {
+  const process = 140 + 0.0072 * rows;
+  const perWorker = 40 + 0.0036 * rows;
+  return process + (workers > 1 ? workers : 0) * perWorker;
+}
+
+/**
+ * Workers for 'auto': the available cores for a large release, 1 (this thread) for a small one,
+ * and never so many that the estimated peak memory passes AUTO_MEMORY_BUDGET_MB (at 16x the demo
+ * two workers took 690-740 MB for a wall time no shorter than one thread's).
+ */
 export function autoWorkers(release: Release): number {
   const rows = release.inputs.reduce((n, t) => n + t.rows, 0);
-  return rows >= AUTO_WORKERS_MIN_ROWS ? defaultWorkers() : 1;
+  if (rows < AUTO_WORKERS_MIN_ROWS) return 1;
+  let workers = defaultWorkers();
+  while (workers > 1 && estimatedPeakMb(rows, workers) > AUTO_MEMORY_BUDGET_MB) workers--;
+  return workers;
 }
 
 /** calibrateRelease with the variants on `workers` threads ('auto': see autoWorkers). */
