@@ -220,7 +220,7 @@ describe('no silent loss: names the release reads that are not readable regular 
     expect(loadValid(dir).inputs).toHaveLength(7);
   });
 
-  test('a file that cannot be read is an error naming it (run as an unprivileged user when the tests run as root, who may read anything)', () => {
+  test('a file that cannot be read is an error naming it (as root, run without the capabilities that let root read anything)', () => {
     const parent = tempDir();
     chmodSync(parent, 0o755);
     const dir = writeRelease(validRelease(), { folder: '2026.1' });
@@ -231,7 +231,11 @@ describe('no silent loss: names the release reads that are not readable regular 
     for (const f of readdirSync(reachable)) chmodSync(join(reachable, f), 0o644);
     chmodSync(join(reachable, 'cepheids.ecsv'), 0o000);
     const cli = fileURLToPath(new URL('../../scripts/rungbook.mjs', import.meta.url));
-    const asUser = process.getuid?.() === 0 ? ['setpriv', '--reuid=65534', '--regid=65534', '--clear-groups', process.execPath] : [process.execPath];
+    // As root, drop the capabilities that bypass file permissions instead of changing user: the
+    // process stays able to reach the checkout (which may sit in a folder only root can enter)
+    // but no longer reads a file whose mode forbids it.
+    const dropDac = ['--inh-caps=-dac_override,-dac_read_search', '--bounding-set=-dac_override,-dac_read_search'];
+    const asUser = process.getuid?.() === 0 ? ['setpriv', ...dropDac, process.execPath] : [process.execPath];
     const r = spawnSync(asUser[0]!, [...asUser.slice(1), cli, 'check', reachable], { encoding: 'utf8', env: { ...process.env, HOME: parent } });
     expect(r.status, r.stderr).toBe(1);
     expect(r.stderr).toContain(`${join(reachable, 'cepheids.ecsv')}: the file cannot be read; expected a file that the user running rungbook may read, found EACCES (permission denied) (give read permission (chmod a+r))`);
