@@ -13,7 +13,7 @@ import { join, resolve } from 'node:path';
 import { writeFileAtomic } from '../io/atomicWrite.ts';
 import { InputError } from '../types/issues.ts';
 import { describeQuantity } from '../recover/quantities.ts';
-import { defaultWorkers } from '../recover/pool.ts';
+import { defaultWorkers } from '../parallel/pool.ts';
 import { recoverRelease } from '../recover/run.ts';
 import { headerLine, mergeSeedFiles, parseShard, seedLineText, type SeedsHeader } from '../recover/shard.ts';
 import { RECOVERY_FILE, serializeSummary, summarise, type RecoverySummary, type Statistic } from '../recover/summary.ts';
@@ -82,7 +82,8 @@ function progressPrinter(io: CliIO, workers: number): ((done: number, total: num
     const s = (Date.now() - start) / 1000;
     const left = done > 0 ? ((total - done) * s) / done : NaN;
     const eta = Number.isFinite(left) ? `, about ${Math.ceil(left)} s left` : '';
-    io.stderr(`\rrecover: ${done}/${total} seeds on ${workers} worker threads, ${Math.round(s)} s${eta}   `);
+    const where = workers > 1 ? `on ${workers} worker threads` : 'in this thread';
+    io.stderr(`\rrecover: ${done}/${total} seeds ${where}, ${Math.round(s)} s${eta}   `);
     if (done === total) io.stderr('\n');
   };
 }

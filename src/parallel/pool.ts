@@ -56,12 +56,19 @@ parentPort.postMessage({ ready: true });
 
 /**
  * Run `tasks` through the module at `moduleUrl` (an absolute file URL of a TypeScript or
- * JavaScript module) on `workers` worker threads; results in task order.
+ * JavaScript module) on `workers` worker threads; results in task order. `onResult`, when
+ * given, hears of each result as it arrives (in completion order), e.g. for progress.
  */
-export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: readonly T[], workers: number = defaultWorkers()): Promise<R[]> {
+export async function mapOnWorkers<D, T, R>(
+  moduleUrl: URL,
+  data: D,
+  tasks: readonly T[],
+  workers: number = defaultWorkers(),
+  onResult?: (index: number, result: R) => void,
+): Promise<R[]> {
   const n = Math.max(0, Math.min(Math.floor(workers), tasks.length));
   const results = new Array<R>(tasks.length);
-  if (n <= 1) return runHere(moduleUrl, data, tasks);
+  if (n <= 1) return runHere(moduleUrl, data, tasks, onResult);
   let done = 0;
   let settled = false;
   let failure: Error | null = null;
@@ -92,7 +99,10 @@ export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: read
       try {
         const mod = (await import(moduleUrl.href)) as TaskModule<D, unknown, T, R>;
         const ctx = mod.setup(data);
-        for (const i of rest.sort((x, y) => x - y)) results[i] = mod.handle(ctx, tasks[i]);
+        for (const i of rest.sort((x, y) => x - y)) {
+          results[i] = mod.handle(ctx, tasks[i]);
+          onResult?.(i, results[i]);
+        }
       } catch (e) {
         failure ??= e as Error;
       }
@@ -114,6 +124,7 @@ export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: read
         if (m.ok) {
           slot.assigned.delete(m.i!);
           results[m.i!] = m.result!;
+          onResult?.(m.i!, m.result!);
           if (++done === tasks.length) finish();
         } else {
           failure ??= new Error(m.message);
@@ -139,8 +150,12 @@ export async function mapOnWorkers<D, T, R>(moduleUrl: URL, data: D, tasks: read
   });
 }
 
-async function runHere<D, T, R>(moduleUrl: URL, data: D, tasks: readonly T[]): Promise<R[]> {
+async function runHere<D, T, R>(moduleUrl: URL, data: D, tasks: readonly T[], onResult?: (index: number, result: R) => void): Promise<R[]> {
   const mod = (await import(moduleUrl.href)) as TaskModule<D, unknown, T, R>;
   const ctx = mod.setup(data);
-  return tasks.map((t) => mod.handle(ctx, t));
+  return tasks.map((t, i) => {
+    const r = mod.handle(ctx, t);
+    onResult?.(i, r);
+    return r;
+  });
 }

@@ -1,15 +1,16 @@
 /**
  * A recovery run on one release folder: its own fit as the truth, then the seeds (or one shard
- * of them) on worker threads, collected in seed order. Writing files is the command's job
+ * of them) on the shared worker pool (src/parallel/pool.ts), in seed order. Writing files is the command's job
  * (src/cli/recover.ts).
  */
 import { loadReleaseWithBlinding } from '../blinding/apply.ts';
 import { calibrateRelease } from '../ladder/calibrate.ts';
 import type { Release } from '../types/release.ts';
 import type { Results } from '../types/results.ts';
-import { runSeeds } from './pool.ts';
+import { mapOnWorkers } from '../parallel/pool.ts';
 import { publishedQuantities } from './quantities.ts';
 import type { SeedLine } from './seed.ts';
+import type { SeedTaskData } from './seedTask.ts';
 import { SEEDS_SCHEMA, shardSeeds, type SeedsHeader, type Shard } from './shard.ts';
 import type { SimulateOptions } from './simulate.ts';
 
@@ -49,12 +50,12 @@ export async function recoverRelease(dir: string, o: RecoverOptions): Promise<{ 
   const { release, truthResults } = releaseAndTruth(dir, o.codeVersion);
   const header = seedsHeader(truthResults, o);
   const seeds = shardSeeds(o.first, o.seeds, o.shard);
-  const lines: SeedLine[] = [];
+  const data: SeedTaskData = { release, truthResults, codeVersion: o.codeVersion, options: o.simulate ?? {} };
+  let done = 0;
   o.onProgress?.(0, seeds.length);
-  await runSeeds({ release, truthResults, codeVersion: o.codeVersion, options: o.simulate ?? {} }, seeds, o.workers, (line) => {
-    lines.push(line);
-    o.onProgress?.(lines.length, seeds.length);
-  });
-  lines.sort((a, b) => a.seed - b.seed);
+  // Results come back in task order, that is in seed order, whatever the workers.
+  const lines = await mapOnWorkers<SeedTaskData, number, SeedLine>(new URL('./seedTask.ts', import.meta.url), data, seeds, o.workers, () =>
+    o.onProgress?.(++done, seeds.length),
+  );
   return { header, lines };
 }
