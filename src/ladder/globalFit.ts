@@ -3,9 +3,9 @@
  * by structured GLS (gls.ts) on the model of globalModel.ts, iterating on what is not linear:
  *  - field-star parallaxes are re-linearised at the current distances (Gauss-Newton);
  *  - intrinsic scatters of the Cepheid rows and of the supernova rows are estimated from
- *    sum r^2/v = n - sum h (h: leverages), the restricted-likelihood condition (methods.md k);
+ *    sum r^2/v = n - sum h (h: leverages), the restricted-likelihood condition (content/methods/global-fit.md);
  *  - alpha and beta (when not fixed) minimise the chi-square with their variance terms inside
- *    it (an effective-variance estimator; freezing the weights biases beta low, methods.md k);
+ *    it (an effective-variance estimator; freezing the weights biases beta low, content/methods/global-fit.md);
  *  - outliers beyond clip_sigma standardised residuals are rejected, iteratively, all rows
  *    above the threshold at once, until none is left (deterministic).
  * The covariance of alpha and beta comes from a sandwich (delta-method) estimator and is

@@ -586,7 +586,7 @@ export function blockLeverages(block: RowBlock, cov: CovarianceAccess): number[]
 
 /**
  * Split the variance of g^T q by covariance source: sum_k w_k^T C_k w_k with
- * w = C^-1 X F^-1 g (methods.md h, "Error budget"). Returns source -> variance.
+ * w = C^-1 X F^-1 g (content/methods/error-budget.md). Returns source -> variance.
  * The parts add up to g^T F^-1 g exactly (up to rounding).
  */
 export function varianceBySource(

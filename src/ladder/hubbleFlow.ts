@@ -2,7 +2,7 @@
  * Hubble-flow rung: sample selection by redshift and the per-supernova terms that do not
  * depend on the fit (the expansion factor and the redshift-error term).
  *   m_corr = 5 log10[c z f(z)] - 5 a_B,  f(z) = 1 + (1 - q0) z / 2 - (1 - q0 - 3 q0^2 + j0) z^2 / 6
- *   log10 H0 = (M_B + 5 a_B + 25) / 5                   (methods.md g)
+ *   log10 H0 = (M_B + 5 a_B + 25) / 5                   (content/methods/hubble-flow.md)
  */
 import { FIVE_OVER_LN10, C_KM_S } from '../constants/index.ts';
 import type { SnHubbleFlowRow } from '../types/release.ts';

@@ -2,7 +2,7 @@
  * Main-sequence fitting of one target against the fixed locus: joint fit of the
  * distance modulus mu and reddening E = E(B-V) with the binary mixture.
  *
- * Model (release-format.md): mag = P(color - E) - s feh + mu + R_V E for single
+ * Model (content/methods/main-sequence.md): mag = P(color - E) - s feh + mu + R_V E for single
  * stars, 0.753 mag brighter for equal-mass binaries; residual r = mag - that.
  * d r / d mu = -1, d r / d E = P'(color - E) - R_V: one colour-magnitude diagram
  * constrains mainly mu + (R_V - P') E, and E only through the curvature of P,

@@ -3,7 +3,7 @@
  *   m_corr = m_B + alpha x1 - beta c
  * and the variance of m_corr from the light-curve fit's covariance, which depends on
  * alpha and beta. Keeping that dependence inside the fitted objective is what keeps
- * alpha and beta free of the bias that frozen weights give them (methods.md f, k).
+ * alpha and beta free of the bias that frozen weights give them (content/methods/supernovae.md, global-fit.md).
  */
 import type { SupernovaLightCurve } from '../types/release.ts';
 
