@@ -21,6 +21,7 @@ import { comparisonView } from './compare/view.ts';
 import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
 import { h0History, RELEASE_FIGURES, type FigureSpec } from './figures/index.ts';
 import { leaveOneOutFigure } from './figures/leaveOneOut.ts';
+import { systemCmd, systemPlResiduals, systemSnCalibrators } from './figures/systemFigures.ts';
 import { parameterHistory } from './history.ts';
 import type { LeaveOneOut } from './leaveOneOut.ts';
 import { type SystemHistory, systemPages, systemsIndex } from './systems.ts';
@@ -176,6 +177,13 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     releasesBuilt: new Set(input.releasesBuilt ?? [id]),
   };
   for (const page of systemPages(sysInput)) {
+    // Its own figures, beside its page (stable files; the figure's "page" is its place on the system page).
+    for (const draw of [systemPlResiduals, systemSnCalibrators, systemCmd]) {
+      const spec = draw(r, page.system);
+      if (spec === null) continue;
+      const ref = await writeFigure(layout, `${page.path}figures/`, spec);
+      page.figures.push({ ...ref, page: `${page.path}#figure-${spec.id}` });
+    }
     await put(join(layout.dataDir, 'systems', id, `${page.segment}.json`), generatedJson(page));
   }
   const systems = systemsIndex(sysInput, figures['leave-one-out'] ? 'leave-one-out' : null);
