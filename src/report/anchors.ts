@@ -21,7 +21,7 @@ const SLUG_MAX = 40;
 const BASE32 = 'abcdefghijklmnopqrstuvwxyz234567';
 
 /** Element ids the pages use themselves; an object with one of these names gets the hashed form. */
-export const RESERVED_IDS: ReadonlySet<string> = new Set(['top', 'main', 'results', 'figures', 'objects', 'history', 'leave-one-out', 'cautions', 'cautions-title', 'method', 'inputs']);
+export const RESERVED_IDS: ReadonlySet<string> = new Set(['top', 'main', 'results', 'figures', 'objects', 'history', 'leave-one-out', 'cautions', 'cautions-title', 'method', 'inputs', 'pulls']);
 
 function hash10(id: string): string {
   const bytes = createHash('sha256').update(id, 'utf8').digest();

@@ -241,6 +241,19 @@ export function systemPages(p: SystemPagesInput): SystemPageView[] {
           )
         : null;
 
+    // The objects that pull its distance most: its Cepheid and its supernova farthest from the relation.
+    const pulls: { text: string; anchor: string; id: string }[] = [];
+    const keptCeph = ceph.filter((c) => !c.rejected);
+    if (keptCeph.length > 0) {
+      const c = keptCeph.reduce((m, x) => (Math.abs(x.residual) > Math.abs(m.residual) ? x : m), keptCeph[0]!);
+      pulls.push({ id: c.star, anchor: objectAnchor(c.star), text: `its Cepheid farthest from the period–luminosity relation (residual ${signed(c.residual, 3)} mag, line ${c.line} of ${cephFile})` });
+    }
+    const keptSn = sn.filter((x) => !x.rejected);
+    if (keptSn.length > 0) {
+      const x = keptSn.reduce((m, y) => (Math.abs(y.residual) > Math.abs(m.residual) ? y : m), keptSn[0]!);
+      pulls.push({ id: x.sn, anchor: objectAnchor(x.sn), text: `its supernova farthest from the fitted M_B (residual ${signed(x.residual, 3)} mag, line ${x.line} of ${snFile})` });
+    }
+
     const notes = [...new Set(s.roles.map((x) => ROLE_NOTES[x]).filter((x): x is string => x !== undefined))];
     return {
       release: rel,
@@ -251,6 +264,7 @@ export function systemPages(p: SystemPagesInput): SystemPageView[] {
       what,
       keyValues,
       leaveOneOut: { text: looText, keyValues: looKv },
+      pulls,
       tables,
       figures: [],
       history,
@@ -298,7 +312,15 @@ export function systemsIndex(p: SystemPagesInput, looFigure: string | null): Sys
             sortable: true,
           },
         );
-  return { table, looSummary: looSummary(p), looMissing: p.loo ? null : p.looMissing, looFigure };
+  const ok = (p.loo?.entries ?? []).filter((e) => e.shift !== null);
+  const top = ok.length ? ok.reduce((m, e) => (Math.abs(e.shift!) > Math.abs(m.shift!) ? e : m), ok[0]!) : null;
+  return {
+    table,
+    looSummary: looSummary(p),
+    looMissing: p.loo ? null : p.looMissing,
+    looFigure,
+    looTop: top ? { path: systemPagePath(r.release.id, top.system), title: top.system } : null,
+  };
 }
 
 /** One or two sentences for the overview: the system whose removal moves H0 most. */

@@ -183,6 +183,8 @@ export interface SystemsIndexView {
   looMissing: string | null;
   /** Leave-one-out figure id (in ReleaseData.figures), or null. */
   looFigure: string | null;
+  /** The system whose removal moves H0 most, and its page (null without leave-one-out shifts). */
+  looTop?: PageLink | null;
 }
 
 /** One system's page (data/systems/<release>/<segment>.json). */
@@ -198,6 +200,8 @@ export interface SystemPageView {
   keyValues: KeyValue[];
   /** What leaving the system out does to H0. */
   leaveOneOut: { text: string; keyValues: KeyValue[] };
+  /** The objects that pull its distance most (largest |residual|), each with its row's anchor. */
+  pulls?: { text: string; anchor: string; id: string }[];
   /** Its objects: Cepheids, supernovae, parallax stars, main-sequence stars (each row anchored). */
   tables: TableView[];
   /** Its own figures (files under its page's folder). */
