@@ -173,7 +173,7 @@ console.log(`  ${rec1.seeds} seeds: 1 worker ${fmt(rec1.ms / 1000, 2)} s, 2 work
 if (sections.has('build')) {
 interface BuildRun {
   wallMs: number;
-  timingsMs: { calibrate: number; compare: number; generate: number; site: number; total: number };
+  timingsMs: { calibrate: number; compare: number; leaveOneOut?: number; generate: number; site: number; total: number };
   pages: number;
   files: number;
   bytes: number;
@@ -182,14 +182,14 @@ interface BuildRun {
 const buildOut = execFileSync(process.execPath, ['--import', 'tsx', here('./bench/build.ts')], { encoding: 'utf8', maxBuffer: 1 << 24 });
 const b = JSON.parse(buildOut.trim().split('\n').pop()!) as { cold: BuildRun; warm: BuildRun; twenty: BuildRun };
 console.log('\nreport build (rungbook build)');
-console.log('case | wall s | calibrate s | compare s | pages+figures s | astro s | pages | dist MB | largest page');
+console.log('case | wall s | calibrate s | compare s | leave-one-out s | pages+figures s | astro s | pages | dist MB | largest page');
 for (const [name, r] of [
   ['demo, cold cache', b.cold],
   ['demo, nothing changed', b.warm],
   ['20 generated releases', b.twenty],
 ] as const) {
   console.log(
-    [name, fmt(r.wallMs / 1000), fmt(r.timingsMs.calibrate / 1000), fmt(r.timingsMs.compare / 1000), fmt(r.timingsMs.generate / 1000), fmt(r.timingsMs.site / 1000), r.pages, fmt(r.bytes / 1e6, 2), r.largestPage ? `${r.largestPage.path} (${fmt(r.largestPage.bytes / 1024, 0)} KB)` : '-'].join(' | '),
+    [name, fmt(r.wallMs / 1000), fmt(r.timingsMs.calibrate / 1000), fmt(r.timingsMs.compare / 1000), fmt((r.timingsMs.leaveOneOut ?? 0) / 1000), fmt(r.timingsMs.generate / 1000), fmt(r.timingsMs.site / 1000), r.pages, fmt(r.bytes / 1e6, 2), r.largestPage ? `${r.largestPage.path} (${fmt(r.largestPage.bytes / 1024, 0)} KB)` : '-'].join(' | '),
   );
 }
 console.log(`  rebuild with nothing changed: ${fmt((100 * b.warm.timingsMs.site) / b.warm.wallMs, 0)} % of its time in Astro`);

@@ -7,6 +7,7 @@
  *             src/report made from a sanitised syntax tree (summary paragraphs,
  *             release notes). It is inserted as it is, never compiled: no text of
  *             a release ever reaches MDX or a template (DEVELOPERS.md).
+ * - systems:  one JSON file per system page of a release (SystemPageView).
  * - methods:  the authored method notes under content/methods, one per rung.
  *
  * Ids are given explicitly (never the default slug, which drops dots and would
@@ -64,6 +65,21 @@ const prose = defineCollection({
   schema: z.object({ generated: z.string(), html: z.string() }),
 });
 
+// One page per system of a release (SystemPageView): data/systems/<release>/<segment>.json.
+const systems = defineCollection({
+  loader: glob({ pattern: '*/*.json', base: dirUrl(`${genDir}/data/systems`), generateId: ({ data }) => `${String(data.release)}/${String(data.segment)}` }),
+  schema: z
+    .object({
+      generated: z.string(),
+      release: z.string().regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/),
+      system: z.string(),
+      segment: z.string().regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/),
+      path: z.string(),
+      tables: z.array(z.object({ id: z.string() }).passthrough()),
+    })
+    .passthrough(),
+});
+
 const source = z.union([z.string(), z.object({ ref: z.string(), note: z.string().optional(), checked: z.boolean().optional() })]);
 
 const methods = defineCollection({
@@ -78,4 +94,4 @@ const methods = defineCollection({
   }),
 });
 
-export const collections = { releases, site, prose, methods };
+export const collections = { releases, site, prose, methods, systems };

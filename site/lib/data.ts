@@ -3,9 +3,9 @@
  * with clear errors when something the page needs is missing.
  */
 import { getCollection, getEntry } from 'astro:content';
-import type { ReleaseData, SiteData } from '../../src/report/types.ts';
+import type { ReleaseData, SiteData, SystemPageView } from '../../src/report/types.ts';
 
-export type { FigureRef, ReleaseData, RungData, SiteData, TableView, KeyValue, PublishedView } from '../../src/report/types.ts';
+export type { FigureRef, ReleaseData, RungData, SiteData, TableView, KeyValue, PublishedView, SystemPageView, HistoryView } from '../../src/report/types.ts';
 
 export async function allReleases(): Promise<ReleaseData[]> {
   const entries = await getCollection('releases');
@@ -31,4 +31,10 @@ export async function proseEntry(id: string) {
   const entry = await getEntry('prose', id);
   if (!entry) throw new Error(`rungbook: generated prose "${id}" is missing from the build folder.`);
   return entry;
+}
+
+/** Every system page of every release. */
+export async function allSystemPages(): Promise<SystemPageView[]> {
+  const entries = await getCollection('systems');
+  return entries.map((e) => e.data as unknown as SystemPageView).sort((a, b) => a.release.localeCompare(b.release) || a.segment.localeCompare(b.segment));
 }

@@ -135,7 +135,7 @@ export async function runBuild(args: readonly string[], io: BuildIo): Promise<nu
       `Built ${summary.releases.length} release${summary.releases.length === 1 ? '' : 's'} (${summary.releases.map((r) => `${r.id}${r.cached ? ' cached' : ''}`).join(', ')}) into ${summary.outDir}\n` +
         `${summary.pages} pages, ${summary.files} files, ${mb(summary.bytes)}; largest page ${summary.largestPage ? `${summary.largestPage.path} (${(summary.largestPage.bytes / 1024).toFixed(0)} KB)` : '—'}\n` +
         `${summary.comparisons.length} comparison${summary.comparisons.length === 1 ? '' : 's'} with the previous release${summary.comparisons.length ? ` (${summary.comparisons.map((c) => `${c.a} -> ${c.b}${c.cached ? ' cached' : ''}`).join(', ')})` : ''}\n` +
-        `time: calibration ${(summary.timingsMs.calibrate / 1000).toFixed(1)} s, comparisons ${(summary.timingsMs.compare / 1000).toFixed(1)} s, pages and figures ${(summary.timingsMs.generate / 1000).toFixed(1)} s, site ${(summary.timingsMs.site / 1000).toFixed(1)} s\n`,
+        `time: calibration ${(summary.timingsMs.calibrate / 1000).toFixed(1)} s, comparisons ${(summary.timingsMs.compare / 1000).toFixed(1)} s, leave-one-out ${(summary.timingsMs.leaveOneOut / 1000).toFixed(1)} s, pages and figures ${(summary.timingsMs.generate / 1000).toFixed(1)} s, site ${(summary.timingsMs.site / 1000).toFixed(1)} s\n`,
     );
     return 0;
   } catch (e) {

@@ -22,13 +22,15 @@ import { buildLinks, linksFor } from '../diff/links.ts';
 import { DIFF_SCHEMA, type DiffReport } from '../diff/types.ts';
 import { compareResults } from '../publish/drift.ts';
 import { readPublishedRecord, verifyPublishedFolder } from '../publish/record.ts';
-import { InputError } from '../types/issues.ts';
+import { AnalysisError, InputError } from '../types/issues.ts';
 import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
 import { buildSite, normaliseBase } from './astroBuild.ts';
 import { RELEASE_FIGURES } from './figures/index.ts';
 import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, type ReleaseFigure, removeRelease } from './generate.ts';
 import { calibrationCodeHash, comparisonCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
+import { LOO_SCHEMA, type LeaveOneOut } from './leaveOneOut.ts';
 import { releasePath, REQUIRED_NOTES } from './pageData.ts';
+import { systemHistory, type SystemHistory } from './systems.ts';
 import { createProgress } from './progress.ts';
 import { publishedView } from './published.ts';
 import { parseRecoverySummary, RECOVERY_FILE, type RecoverySummary } from '../recover/summary.ts';
@@ -63,6 +65,19 @@ export interface BuildReportOptions {
   progressStream?: { write(s: string): unknown };
   /** The figures of each release (default RELEASE_FIGURES; tests pass a list with a failing figure). */
   figures?: readonly ReleaseFigure[];
+  /**
+   * What leaving each system out does to H0, for a release folder (default: the real refits,
+   * src/report/leaveOneOut.ts); null leaves it out of the pages (tests whose releases have no data).
+   */
+  leaveOneOut?: LeaveOneOutDir | null;
+}
+
+export type LeaveOneOutDir = (dir: string) => Promise<LeaveOneOut>;
+
+/** The real leave-one-out refits, loaded only when a build needs them. */
+async function defaultLeaveOneOut(): Promise<LeaveOneOutDir> {
+  const { leaveOneOutDir } = await import('./leaveOneOut.ts');
+  return async (dir) => leaveOneOutDir(dir);
 }
 
 export type CompareDirs = (dirA: string, dirB: string) => Promise<DiffReport>;
@@ -82,7 +97,7 @@ export interface BuildSummary {
   files: number;
   bytes: number;
   largestPage: { path: string; bytes: number } | null;
-  timingsMs: { calibrate: number; compare: number; generate: number; site: number; total: number };
+  timingsMs: { calibrate: number; compare: number; leaveOneOut: number; generate: number; site: number; total: number };
 }
 
 export class ReportBuildError extends Error {
@@ -220,6 +235,7 @@ async function generateReleaseCached(
   figures: readonly ReleaseFigure[],
   comparison: DiffReport | null,
   next: PageLink[],
+  drill: { leaveOneOut: LeaveOneOut | null; looMissing: string | null; systemHistory: SystemHistory; releasesBuilt: string[] },
   recovery: RecoverySummary | null = null,
 ): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
   const id = results.release.id;
@@ -234,6 +250,7 @@ async function generateReleaseCached(
     JSON.stringify(comparison),
     JSON.stringify(next),
     JSON.stringify(recovery),
+    JSON.stringify(drill),
   );
   const old = await readIfExists(stampFile);
   if (old !== null) {
@@ -246,7 +263,7 @@ async function generateReleaseCached(
     }
   }
   await rm(stampFile, { force: true });
-  const summary = await generateRelease(layout, { results, notes, previousBuilt, published, comparison, next, recovery }, figures);
+  const summary = await generateRelease(layout, { results, notes, previousBuilt, published, comparison, next, recovery, ...drill }, figures);
   await mkdir(join(layout.root, 'stamps'), { recursive: true });
   await writeFile(stampFile, generatedJson({ stamp, summary }));
   return { summary, regenerated: true };
@@ -438,6 +455,37 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
         .map((c) => ({ path: releasePath(c.results.release.id, 'compare/'), title: `Release ${c.results.release.id} compared with ${id}` }));
     const tc = performance.now();
 
+    // 2b. What each system does to H0: the release refitted without it (cached like the results).
+    const loos = new Map<string, { loo: LeaveOneOut | null; missing: string | null }>();
+    const looFn = opts.leaveOneOut === null ? null : (opts.leaveOneOut ?? (await defaultLeaveOneOut()));
+    for (const c of calibrated) {
+      const id = c.results.release.id;
+      if (looFn === null) {
+        loos.set(id, { loo: null, missing: 'The leave-one-out refits were not computed in this build.' });
+        continue;
+      }
+      if (c.results.h0 === null) {
+        loos.set(id, { loo: null, missing: 'The release does not reach the Hubble flow, so there is no H0 to shift.' });
+        continue;
+      }
+      progress.step(`leaving each system of ${id} out`);
+      const file = async () => `loo-${sha256('rungbook.loo-cache/1', codeHash, await reportCodeHash(REPO_ROOT), await hashTree(c.dir))}.json`;
+      try {
+        const { value } = await cachedJson(cacheDir, file, LOO_SCHEMA, () => looFn(c.dir), work);
+        loos.set(id, { loo: value, missing: null });
+      } catch (e) {
+        // The release calibrated, so the refits can only meet what the ladder or the reader refuse
+        // when the results came from elsewhere (a published record, a test's calibration): the
+        // pages say so. Anything else is a defect of ours and stops the build.
+        if (!(e instanceof InputError) && !(e instanceof AnalysisError)) {
+          throw new ReportBuildError(`leave-one-out refits of release ${id} failed: ${messageOf(e)}`, null, { cause: e });
+        }
+        loos.set(id, { loo: null, missing: `The leave-one-out refits could not be run on this release’s folder: ${messageOf(e).split('\n')[0]}` });
+      }
+    }
+    const history = systemHistory(calibrated.map((c) => c.results));
+    const tl = performance.now();
+
     // 3. Generated pages, figures and downloads.
     const reportHash = await reportCodeHash(REPO_ROOT);
     const idSet = new Set(ids);
@@ -456,7 +504,15 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
         const recoveryFile = join(c.dir, RECOVERY_FILE);
         const recoveryText = await readIfExists(recoveryFile);
         const recovery = recoveryText === null ? null : parseRecoverySummary(recoveryFile, recoveryText);
-        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures, comparisons.get(r.release.id) ?? null, nextOf(r.release.id), recovery);
+        const l = loos.get(r.release.id)!;
+        // Only the history of this release's systems enters its pages (and its stamp).
+        const own = Object.fromEntries(r.systems.map((s) => [s.id, history[s.id] ?? []]));
+        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures, comparisons.get(r.release.id) ?? null, nextOf(r.release.id), {
+          leaveOneOut: l.loo,
+          looMissing: l.missing,
+          systemHistory: own,
+          releasesBuilt: ids,
+        }, recovery);
         if (!g.regenerated) progress.step('  unchanged, kept');
         summaries.push(g.summary);
         releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });
@@ -503,7 +559,7 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
       releases,
       comparisons: compared,
       ...measured,
-      timingsMs: { calibrate: t1 - t0, compare: tc - t1, generate: t2 - tc, site: t3 - t2, total: t3 - t0 },
+      timingsMs: { calibrate: t1 - t0, compare: tc - t1, leaveOneOut: tl - tc, generate: t2 - tl, site: t3 - t2, total: t3 - t0 },
     };
   }
 }

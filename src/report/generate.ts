@@ -5,7 +5,8 @@
  *   <gen>/public/releases/<id>/downloads/results.json, <table>.csv|ecsv
  *   <gen>/public/figures/h0-history.svg|png|csv                 report-wide figure
  *   <gen>/data/releases/<id>.json                               data of a release's pages
- *   <gen>/data/site.json                                        list of releases
+ *   <gen>/data/site.json                                        list of releases, parameter history
+ *   <gen>/data/systems/<id>/<system>.json                       data of a release's system pages
  *   <gen>/prose/<id>/summary.json, notes.json                   generated prose: sanitised HTML as data (prose.ts)
  *
  * Every text file starts with the generated mark (JSON: as its first key; CSV and
@@ -19,6 +20,11 @@ import { comparisonFigures } from './compare/figures.ts';
 import { comparisonView } from './compare/view.ts';
 import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
 import { h0History, RELEASE_FIGURES, type FigureSpec } from './figures/index.ts';
+import { leaveOneOutFigure } from './figures/leaveOneOut.ts';
+import { systemCmd, systemPlResiduals, systemSnCalibrators } from './figures/systemFigures.ts';
+import { parameterHistory } from './history.ts';
+import type { LeaveOneOut } from './leaveOneOut.ts';
+import { type SystemHistory, systemPages, systemsIndex } from './systems.ts';
 import { headline, releaseData, releasePath } from './pageData.ts';
 import { svgToPng } from './png.ts';
 import { notesHtml, summaryHtml } from './prose.ts';
@@ -93,6 +99,14 @@ export interface ReleaseGenInput {
   next?: PageLink[];
   /** recovery.json beside the release (rungbook recover), or null: then the release has a recovery page. */
   recovery?: RecoverySummary | null;
+  /** What leaving each system out does to H0 (src/report/leaveOneOut.ts), or null. */
+  leaveOneOut?: LeaveOneOut | null;
+  /** Why the leave-one-out is missing, when it is. */
+  looMissing?: string | null;
+  /** Every system's distance in every release of the report. */
+  systemHistory?: SystemHistory;
+  /** Ids of the releases in this report. */
+  releasesBuilt?: readonly string[];
 }
 
 /** Generate every file of one release; returns its entry for the home page. */
@@ -108,6 +122,13 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     if (spec === null) continue;
     if (spec.id !== f.id) throw new Error(`figure ${f.id} returned id ${spec.id}`);
     figures[f.id] = await writeFigure(layout, releasePath(id, 'figures/'), spec);
+  }
+
+  // What each system does to H0: the figure on the overview.
+  const loo = input.leaveOneOut ?? null;
+  if (loo) {
+    const spec = leaveOneOutFigure(r, loo);
+    if (spec) figures[spec.id] = await writeFigure(layout, releasePath(id, 'figures/'), spec);
   }
 
   // The comparison with the previous release: its figures sit beside the release's own.
@@ -152,7 +173,28 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     await put(join(layout.proseDir, id, 'notes.json'), generatedJson({ html: notes }));
   }
 
+  // A page per system.
+  const sysInput = {
+    results: r,
+    loo,
+    looMissing: input.looMissing ?? (loo ? null : 'The leave-one-out refits were not computed in this build.'),
+    history: input.systemHistory ?? {},
+    releasesBuilt: new Set(input.releasesBuilt ?? [id]),
+  };
+  for (const page of systemPages(sysInput)) {
+    // Its own figures, beside its page (stable files; the figure's "page" is its place on the system page).
+    for (const draw of [systemPlResiduals, systemSnCalibrators, systemCmd]) {
+      const spec = draw(r, page.system);
+      if (spec === null) continue;
+      const ref = await writeFigure(layout, `${page.path}figures/`, spec);
+      page.figures.push({ ...ref, page: `${page.path}#figure-${spec.id}` });
+    }
+    await put(join(layout.dataDir, 'systems', id, `${page.segment}.json`), generatedJson(page));
+  }
+  const systems = systemsIndex(sysInput, figures['leave-one-out'] ? 'leave-one-out' : null);
+
   const data = releaseData({
+    systems,
     results: r,
     figures,
     downloads,
@@ -186,6 +228,7 @@ export async function removeRelease(layout: GenLayout, id: string): Promise<void
   await rm(join(layout.publicDir, 'releases', id), { recursive: true, force: true });
   await rm(join(layout.proseDir, id), { recursive: true, force: true });
   await rm(join(layout.dataDir, 'releases', `${id}.json`), { force: true });
+  await rm(join(layout.dataDir, 'systems', id), { recursive: true, force: true });
 }
 
 /** Newest first: by date, then by id (descending), so the order never depends on file-system order. */
@@ -199,7 +242,7 @@ export async function generateSite(layout: GenLayout, all: readonly Results[], s
   const spec = h0History(all);
   const history = spec ? await writeFigure(layout, 'figures/', spec) : null;
   const releases = newestFirst(summaries);
-  const site: SiteData = { generated: GENERATED_MARK, releases, latest: releases[0]?.id ?? null, history };
+  const site: SiteData = { generated: GENERATED_MARK, releases, latest: releases[0]?.id ?? null, history, parameterHistory: parameterHistory(all) };
   const { generated: _mark, ...rest } = site;
   await put(join(layout.dataDir, 'site.json'), generatedJson(rest));
   return site;

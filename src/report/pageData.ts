@@ -5,10 +5,12 @@
  */
 import { DEFAULT_ANALYSIS, type AnalysisKey } from '../types/analysis.ts';
 import type { Results, SystemResult } from '../types/results.ts';
+import { objectLink, systemPagePath } from './anchors.ts';
 import { parameterBlinded } from './blinding.ts';
 import { changesParagraph } from './compare/view.ts';
 import { analysisValueText, distanceText, fixed, int, percent, pm, sig, valueErr } from './format.ts';
 import { type ColumnSpec, tableView } from './tables.ts';
+import type { SystemsIndexView } from './types.ts';
 import type { CheckView, ComparisonView, DownloadLink, FigureRef, Headline, InputUsed, KeyValue, PageLink, PublishedView, ReleaseData, RowMark, RungData, TableView } from './types.ts';
 import { GENERATED_MARK } from './types.ts';
 
@@ -30,6 +32,7 @@ export const REQUIRED_NOTES: readonly string[] = [
   'blinding',
   'internal-review',
   'comparison',
+  'leave-one-out',
 ];
 
 export const OVERVIEW_FIGURES = ['ladder-diagram'];
@@ -53,6 +56,8 @@ export interface PageInputs {
   comparison?: ComparisonView | null;
   /** Comparison pages of later releases that compare themselves with this one. */
   next?: PageLink[];
+  /** The systems index and leave-one-out summary (src/report/systems.ts). */
+  systems?: SystemsIndexView;
 }
 
 export function releasePath(id: string, rest = ''): string {
@@ -66,6 +71,7 @@ export function releasePages(id: string): PageLink[] {
     { path: releasePath(id, 'global-fit/'), title: 'Global fit' },
     { path: releasePath(id, 'error-budget/'), title: 'Error budget' },
     { path: releasePath(id, 'variants/'), title: 'Variants' },
+    { path: releasePath(id, 'systems/'), title: 'Systems' },
     { path: releasePath(id, 'data/'), title: 'Data & provenance' },
     { path: releasePath(id, 'compare/'), title: 'Comparison' },
     { path: releasePath(id, 'figures/'), title: 'Figures' },
@@ -130,7 +136,14 @@ function rejectedTable(r: Results, id: string, tables: readonly string[], dl: Pa
       ['residual', 'Residual', 'σ', true],
     ],
     rows.map((x) => [x.id, x.system ?? '—', fileOf(r, x.table), String(x.line), fixed(x.residual_sigma, 1)]),
-    { caption: 'Rows removed by the outlier rule (standardised residual beyond the clipping threshold); the line is the row’s line in its input file.', limit: TABLE_LIMIT, marks: rows.map(() => 'rejected'), downloads: dl('rejected') },
+    {
+      caption: 'Rows removed by the outlier rule (standardised residual beyond the clipping threshold); the line is the row’s line in its input file.',
+      limit: TABLE_LIMIT,
+      marks: rows.map(() => 'rejected'),
+      downloads: dl('rejected'),
+      // Each object links to its row on its system's page (Hubble-flow supernovae have no system).
+      links: rows.map((x) => [x.system === null ? null : objectLink(r.release.id, x.system, x.id), x.system === null ? null : systemPagePath(r.release.id, x.system), null, null, null]),
+    },
   );
 }
 
@@ -301,7 +314,7 @@ function cepheidRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note' 
           const e = bySystem.get(s.id)!;
           return [s.id, s.kind, `${int(e.n)} (${int(e.rej)})`, s.mu_prior === null ? '—' : pm(s.mu_prior, s.mu_prior_err), systemMu(s), distanceText(s.distance_mpc)];
         }),
-        { caption: 'Anchors enter with their geometric or main-sequence distance as a prior; hosts get their distance from the fit.', downloads: p.tableDownload('systems') },
+        { caption: 'Anchors enter with their geometric or main-sequence distance as a prior; hosts get their distance from the fit.', downloads: p.tableDownload('systems'), links: systems.map((s) => [systemPagePath(r.release.id, s.id), null, null, null, null, null]) },
       ),
     );
   }
@@ -677,6 +690,7 @@ export function releaseData(p: PageInputs): ReleaseData {
     provenance: provenance(r, p),
     pages: releasePages(id),
     published: p.published ?? null,
+    ...(p.systems ? { systems: p.systems } : {}),
   };
 }
 

@@ -12,6 +12,11 @@ export interface TableOptions {
   /** Show at most this many rows (the rest is in the downloads). */
   limit?: number;
   downloads?: { csv: string; ecsv: string } | null;
+  /** Anchor of each row (null: none). */
+  rowIds?: (string | null)[];
+  /** Link of each cell (null: none). */
+  links?: (string | null)[][];
+  sortable?: boolean;
 }
 
 export function tableView(id: string, title: string, columns: ColumnSpec[], rows: string[][], o: TableOptions = {}): TableView {
@@ -31,5 +36,8 @@ export function tableView(id: string, title: string, columns: ColumnSpec[], rows
     marks,
     shown: rows.length > shownRows.length ? { rows: shownRows.length, total: rows.length } : null,
     downloads: o.downloads ?? null,
+    ...(o.rowIds ? { rowIds: o.rowIds.slice(0, limit) } : {}),
+    ...(o.links ? { links: o.links.slice(0, limit) } : {}),
+    ...(o.sortable ? { sortable: true } : {}),
   };
 }

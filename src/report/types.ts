@@ -54,6 +54,12 @@ export interface TableView {
   shown: { rows: number; total: number } | null;
   /** Downloads of the full table (CSV and ECSV), when it is one of the result tables. */
   downloads: { csv: string; ecsv: string } | null;
+  /** Anchor (element id) of each shown row, or null (src/report/anchors.ts); absent: no anchors. */
+  rowIds?: (string | null)[];
+  /** Site-relative link (may end in "#anchor") of each shown cell, or null; absent: no links. */
+  links?: (string | null)[][];
+  /** The table's columns can be sorted by the reader (progressive enhancement). */
+  sortable?: boolean;
 }
 
 export interface KeyValue {
@@ -166,6 +172,8 @@ export interface ReleaseData {
   published: PublishedView | null;
   /** The recovery page's content, when a recovery.json sits beside the release (absent or null: no page). */
   recovery?: RecoveryView | null;
+  /** Index of the release's systems (src/report/systems.ts); absent in data written before it. */
+  systems?: SystemsIndexView;
 }
 
 /** The recovery page (src/report/recovery.ts): a summary written by `rungbook recover`. */
@@ -183,6 +191,50 @@ export interface RecoveryView {
   failures: string[];
   /** The verdict's bounds, formatted. */
   bounds: { mean: string; sd: string; coverage1: string; coverage2: string };
+}
+
+/** The systems index of a release and the leave-one-out summary of its overview. */
+export interface SystemsIndexView {
+  table: TableView | null;
+  /** What leaving one system out does, in one or two sentences (null when it was not computed). */
+  looSummary: string | null;
+  /** Why there are no leave-one-out shifts, when there are none. */
+  looMissing: string | null;
+  /** Leave-one-out figure id (in ReleaseData.figures), or null. */
+  looFigure: string | null;
+  /** The system whose removal moves H0 most, and its page (null without leave-one-out shifts). */
+  looTop?: PageLink | null;
+}
+
+/** One system's page (data/systems/<release>/<segment>.json). */
+export interface SystemPageView {
+  release: string;
+  system: string;
+  /** Folder name under releases/<release>/systems/ (src/report/anchors.ts). */
+  segment: string;
+  path: string;
+  blinded: boolean;
+  /** What the system is and which rung gives its distance, in words. */
+  what: string;
+  keyValues: KeyValue[];
+  /** What leaving the system out does to H0. */
+  leaveOneOut: { text: string; keyValues: KeyValue[] };
+  /** The objects that pull its distance most (largest |residual|), each with its row's anchor. */
+  pulls?: { text: string; anchor: string; id: string }[];
+  /** Its objects: Cepheids, supernovae, parallax stars, main-sequence stars (each row anchored). */
+  tables: TableView[];
+  /** Its own figures (files under its page's folder). */
+  figures: FigureRef[];
+  /** Its distance in every release of the report that contains it. */
+  history: TableView | null;
+  /** Method notes whose cautions apply to this system. */
+  notes: string[];
+}
+
+/** Every ladder parameter across the releases of the report (the history page). */
+export interface HistoryView {
+  table: TableView;
+  note: string;
 }
 
 /** One published value that a recomputation with the current code moves. */
@@ -227,6 +279,8 @@ export interface SiteData {
   releases: ReleaseSummary[];
   latest: string | null;
   history: FigureRef | null;
+  /** Every ladder parameter across releases (absent in data written before it). */
+  parameterHistory?: HistoryView | null;
 }
 
 /** One paragraph of a method or a caveat on the comparison page. */

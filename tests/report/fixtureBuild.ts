@@ -56,6 +56,8 @@ export function buildFixture(over: Partial<BuildReportOptions> = {}, tmp?: strin
       calibrate: calibrateFixture,
       // The fixture releases hold no data tables: their comparison pages say the comparison was not computed.
       compare: null,
+      // ... and no leave-one-out refits (nothing to refit).
+      leaveOneOut: null,
     },
     over,
     tmp,

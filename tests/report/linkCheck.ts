@@ -25,6 +25,8 @@ export interface LinkReport {
   checked: number;
   problems: LinkProblem[];
   outboundLinks: string[];
+  /** Internal links with a fragment whose target element was looked up (…/#object-id). */
+  fragments: number;
 }
 
 const ORIGIN = 'http://report.test';
@@ -56,6 +58,7 @@ export async function checkLinks(dist: string, base: string): Promise<LinkReport
   const problems: LinkProblem[] = [];
   const outbound = new Set<string>();
   let checked = 0;
+  let fragments = 0;
 
   const checkUrl = (page: string, pageUrl: URL, attribute: string, raw: string, isNavigation: boolean, allowData: boolean) => {
     checked += 1;
@@ -84,6 +87,7 @@ export async function checkLinks(dist: string, base: string): Promise<LinkReport
       problems.push({ page, attribute, url: raw, problem: `no file ${file.slice(dist.length)}` });
       return;
     }
+    if (u.hash.length > 1 && file.endsWith('.html')) fragments += 1;
     if (u.hash.length > 1 && file.endsWith('.html') && !idsOf(file).has(decodeURIComponent(u.hash.slice(1)))) {
       problems.push({ page, attribute, url: raw, problem: `no element with id ${u.hash} in the target page` });
     }
@@ -112,7 +116,7 @@ export async function checkLinks(dist: string, base: string): Promise<LinkReport
     const css = readFileSync(join(dist, rel), 'utf8');
     for (const m of css.matchAll(/url\(\s*(['"]?)([^'")]+)\1\s*\)/g)) checkUrl(rel, cssUrl, 'css url()', m[2]!, false, true);
   }
-  return { pages: pages.length, checked, problems, outboundLinks: [...outbound].sort() };
+  return { pages: pages.length, checked, problems, outboundLinks: [...outbound].sort(), fragments };
 }
 
 /** Every file under dir, relative, "/"-separated, sorted. */

@@ -8,6 +8,7 @@
  * While a release is blinded the comparison has already withheld what must not
  * be shown (src/diff/blinding.ts); this module only marks what remains.
  */
+import { objectLink, systemPagePath } from '../anchors.ts';
 import { rankedContributions, renderMarkdown, tableLine, unitSuffix } from '../../diff/render.ts';
 import { tableTouched } from '../../diff/inputs.ts';
 import type { DiffReport, ParameterShift, Shift, SystemShift } from '../../diff/types.ts';
@@ -101,12 +102,16 @@ function keyValues(r: DiffReport): KeyValue[] {
 function attributionTable(r: DiffReport): TableView | null {
   if (r.attribution.length === 0 || !r.attribution_detail) return null;
   const blinded = r.blinding.a || r.blinding.b;
+  // A share of the total reads well only when every contribution pushes the same way; with
+  // contributions of both signs they cancel and shares run past 100 % (or below -100 %).
+  const total = r.attribution_detail.total;
+  const oneSign = total !== 0 && r.attribution.every((e) => e.delta_h0 === 0 || Math.sign(e.delta_h0) === Math.sign(total));
   const rows = r.attribution.map((e) => [
     GROUP_TITLE[e.group],
     e.group,
     e.differs ? 'yes' : 'no',
     signedText(e.delta_h0, 3),
-    e.fraction === null ? '—' : `${fixed(100 * e.fraction, 1)} %`,
+    !oneSign || e.fraction === null ? '—' : `${fixed(100 * e.fraction, 1)} %`,
     e.rows_sum === null ? '—' : signedText(e.rows_sum, 3),
   ]);
   rows.push(['Total', '', '', signedText(r.attribution_detail.total, 3), r.attribution_detail.total === 0 ? '—' : '100.0 %', '']);
@@ -126,6 +131,7 @@ function attributionTable(r: DiffReport): TableView | null {
       caption:
         `The contributions add up to the total shift (relative difference ${r.attribution_detail.sum_rel_error.toExponential(1)}). ` +
         '"Sum of row estimates" adds the linear estimates of the rows listed below; it differs from the contribution where rows interact.' +
+        (oneSign ? '' : ' Shares are not shown: the contributions have both signs and partly cancel, so a share of the total would be misleading (it can exceed 100 %); read the contributions themselves.') +
         (blinded ? ' Blinded: contributions are in blinded km/s/Mpc.' : ''),
       marks: rows.map(() => (blinded ? 'blinded' : null)),
     },
@@ -161,6 +167,12 @@ function objectsTable(r: DiffReport): TableView | null {
     {
       caption: r.objects_not_estimated ? `${int(r.objects_not_estimated)} changed rows have no estimate (for example a row of a system the other release lacks).` : null,
       marks: rows.map(() => (r.blinding.a || r.blinding.b ? 'blinded' : null)),
+      links: r.top_objects.map((o) => {
+        // A removed row is on the previous release's pages, every other on this release's.
+        const rel = o.status === 'removed' ? r.a : r.b;
+        const row = o.system === null ? null : o.level === 'system' ? systemPagePath(rel, o.system) : objectLink(rel, o.system, o.id);
+        return [null, row, o.system === null ? null : systemPagePath(rel, o.system), null, null, null, null, null];
+      }),
     },
   );
 }

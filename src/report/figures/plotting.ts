@@ -59,7 +59,16 @@ export interface RenderOptions {
   marginTop?: number;
   marginBottom?: number;
   width?: number;
+  /**
+   * Points a reader can hover (src/report/hover.ts, site/components/Figure.astro): the marks with
+   * this Plot `className`, and for each the row of the figure's CSV that each of its symbols
+   * draws, in drawing order. Written as `data-row` on each symbol.
+   */
+  hover?: { className: string; rows: number[] }[];
 }
+
+/** Class of the hoverable marks' groups; the site's script looks for `data-row` inside them. */
+export const HOVER_CLASS = 'hover-points';
 
 /** Render marks with Plot into the server document and finish the SVG (ids, ARIA, font). */
 export function renderSvg(o: RenderOptions): { svg: string; width: number; height: number } {
@@ -81,6 +90,14 @@ export function renderSvg(o: RenderOptions): { svg: string; width: number; heigh
   if (el.tagName.toLowerCase() !== 'svg') {
     throw new Error(`figure ${o.id}: Plot returned <${el.tagName.toLowerCase()}>, expected <svg> (no title, caption or legend options)`);
   }
+  for (const h of o.hover ?? []) {
+    const groups = Array.from(el.querySelectorAll(`g.${h.className}`));
+    const symbols = groups.flatMap((g) => Array.from(g.children));
+    if (symbols.length !== h.rows.length) throw new Error(`figure ${o.id}: ${symbols.length} symbols drawn for ${h.rows.length} hover rows (${h.className})`);
+    symbols.forEach((s, i) => s.setAttribute('data-row', String(h.rows[i])));
+    for (const g of groups) g.setAttribute('class', HOVER_CLASS);
+  }
+  if (o.hover?.length) el.setAttribute('data-hover', 'rows');
   const svg = finishSvg(el as SVGSVGElement, { idPrefix: `fig-${o.id}`, label: o.label, fontSizePx: FONT_SIZE });
   return { svg, ...svgSize(svg) };
 }

@@ -6,6 +6,7 @@
 import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
 import { parameterBlinded } from '../blinding.ts';
+import { objectLink } from '../anchors.ts';
 import { pm } from '../format.ts';
 import { blindedStamp, clip, col, type FigureSpec, GREY, INK, legend, type LegendItem, listText, PALE, r5, renderSvg } from './plotting.ts';
 
@@ -20,6 +21,8 @@ export function snCalibrators(r: Results): FigureSpec | null {
     const err = Math.hypot(c.m_corr_err, c.system ? hostErr.get(c.system) ?? 0 : 0);
     return { sn: c.sn, host: c.system ?? '', label: clip(`${c.sn} (${c.system ?? '?'})`, 30), m, err, rejected: c.rejected };
   });
+  const kept = data.flatMap((d, i) => (d.rejected ? [] : [i]));
+  const rejected = data.flatMap((d, i) => (d.rejected ? [i] : []));
   const rows = data.map((d) => ({ ...d, m: r5(d.m), lo: r5(d.m - d.err), hi: r5(d.m + d.err) }));
   const MB = r.parameters.M_B;
   const blinded = parameterBlinded(r, 'M_B');
@@ -36,8 +39,8 @@ export function snCalibrators(r: Results): FigureSpec | null {
   }
   marks.push(
     Plot.ruleY(rows, { y: 'label', x1: 'lo', x2: 'hi', stroke: INK }),
-    Plot.dot(rows.filter((d) => !d.rejected), { y: 'label', x: 'm', r: 4, fill: INK }),
-    Plot.dot(rows.filter((d) => d.rejected), { y: 'label', x: 'm', r: 5, symbol: 'times', stroke: INK, strokeWidth: 1.5 }),
+    Plot.dot(rows.filter((d) => !d.rejected), { y: 'label', x: 'm', r: 4, fill: INK, className: 'hover-kept' }),
+    Plot.dot(rows.filter((d) => d.rejected), { y: 'label', x: 'm', r: 5, symbol: 'times', stroke: INK, strokeWidth: 1.5, className: 'hover-rejected' }),
     ...leg.marks,
   );
   if (blinded) marks.push(blindedStamp());
@@ -50,6 +53,10 @@ export function snCalibrators(r: Results): FigureSpec | null {
     x: { label: 'Standardised magnitude minus host modulus (mag)', nice: true, inset: 10 },
     y: { domain: rows.map((d) => d.label), label: null },
     marks,
+    hover: [
+      { className: 'hover-kept', rows: kept },
+      { className: 'hover-rejected', rows: rejected },
+    ],
   });
   return {
     id: ID,
@@ -72,8 +79,9 @@ export function snCalibrators(r: Results): FigureSpec | null {
         col('abs_mag', 'float64', 'mag', 'm_corr - host_mu'),
         col('abs_mag_err', 'float64', 'mag', 'with the host distance error'),
         col('rejected', 'bool'),
+        col('page', 'string', '', 'the supernova’s row on its host’s page (site-relative link)'),
       ],
-      rows: cal.map((c, i) => ({ sn: c.sn, system: c.system, m_corr: c.m_corr, m_corr_err: c.m_corr_err, host_mu: c.mu, abs_mag: data[i]!.m, abs_mag_err: data[i]!.err, rejected: c.rejected })),
+      rows: cal.map((c, i) => ({ sn: c.sn, system: c.system, m_corr: c.m_corr, m_corr_err: c.m_corr_err, host_mu: c.mu, abs_mag: data[i]!.m, abs_mag_err: data[i]!.err, rejected: c.rejected, page: c.system === null ? null : objectLink(r.release.id, c.system, c.sn) })),
     },
     thinned: null,
     blinded,
