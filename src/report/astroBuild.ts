@@ -15,8 +15,10 @@
  * (src/report/lock.ts); it is taken last, after the build's own work-folder lock
  * (src/report/build.ts), so that two builds never wait for each other in a circle.
  */
+import { spawn } from 'node:child_process';
 import { cp, mkdir, rename, rm, stat } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { acquireLock } from './lock.ts';
 
 export interface AstroBuildOptions {
@@ -38,15 +40,51 @@ export function normaliseBase(base: string | undefined): string {
   return trimmed === '' ? '/' : `/${trimmed}/`;
 }
 
-const ENV_KEYS = ['RUNGBOOK_GEN_DIR', 'RUNGBOOK_METHODS_DIR', 'RUNGBOOK_BASE', 'RUNGBOOK_SITE', 'ASTRO_TELEMETRY_DISABLED'] as const;
-
 /**
  * Variables that a host process (a Vite-based test runner sets BASE_URL=/ and
  * friends) may have put into process.env; Astro's server build lets
  * process.env win over its own import.meta.env values, which would drop the
- * base path from every link. They are removed while Astro runs.
+ * base path from every link. They are not passed to the Astro process.
  */
 const HOST_ENV_KEYS = ['BASE_URL', 'MODE', 'DEV', 'PROD', 'SSR', 'SITE', 'ASSETS_PREFIX'] as const;
+
+const ASTRO_CHILD = fileURLToPath(new URL('./astroChild.mjs', import.meta.url));
+
+interface AstroRun {
+  root: string;
+  outDir: string;
+  base: string;
+  site: string;
+  publicDir: string;
+  cacheDir: string;
+  /** The settings astro.config.mjs and site/ read (RUNGBOOK_*). */
+  env: Record<string, string>;
+}
+
+/**
+ * Run Astro's build in a child process (src/report/astroChild.mjs): its memory, working
+ * directory and environment are its own. Its warnings pass through to this process's stderr;
+ * a failure rejects with what it wrote there.
+ */
+function runAstro(run: AstroRun): Promise<void> {
+  const env: NodeJS.ProcessEnv = { ...process.env, ...run.env };
+  for (const k of HOST_ENV_KEYS) delete env[k];
+  const { env: _, ...options } = run;
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, [ASTRO_CHILD, JSON.stringify(options)], { cwd: run.root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    let stderr = '';
+    child.stdout.on('data', (d: Buffer) => process.stderr.write(d));
+    child.stderr.on('data', (d: Buffer) => {
+      stderr += d.toString();
+      process.stderr.write(d);
+    });
+    child.on('error', reject);
+    child.on('close', (code, signal) => {
+      if (code === 0) resolve();
+      else reject(new Error(`the Astro build stopped (${signal ?? `exit code ${code}`}): ${stderr.trim().split('\n').slice(-20).join('\n') || 'no message'}`));
+    });
+  });
+}
 
 async function exists(p: string): Promise<boolean> {
   try {
@@ -86,27 +124,15 @@ async function buildSiteLocked(o: AstroBuildOptions): Promise<void> {
   await rm(staged, { recursive: true, force: true });
   await mkdir(parent, { recursive: true });
 
-  // astro.config.mjs and site/ read these (the build runs in this process).
-  const saved = Object.fromEntries([...ENV_KEYS, ...HOST_ENV_KEYS].map((k) => [k, process.env[k]]));
-  for (const k of HOST_ENV_KEYS) delete process.env[k];
-  const savedCwd = process.cwd();
-  process.env.RUNGBOOK_GEN_DIR = o.genDir;
-  process.env.RUNGBOOK_METHODS_DIR = o.methodsDir;
-  process.env.RUNGBOOK_BASE = normaliseBase(o.base);
-  process.env.RUNGBOOK_SITE = o.site;
-  process.env.ASTRO_TELEMETRY_DISABLED = '1';
   try {
-    process.chdir(o.root);
-    const { build } = await import('astro');
-    await build({
+    await runAstro({
       root: o.root,
       outDir: scratch,
       base: normaliseBase(o.base),
       site: o.site,
       publicDir: join(o.genDir, 'public'),
       cacheDir: join(o.genDir, '..', 'astro-cache'),
-      logLevel: 'warn',
-      mode: 'production',
+      env: { RUNGBOOK_GEN_DIR: o.genDir, RUNGBOOK_METHODS_DIR: o.methodsDir, RUNGBOOK_BASE: normaliseBase(o.base), RUNGBOOK_SITE: o.site, ASTRO_TELEMETRY_DISABLED: '1' },
     });
     await moveDir(scratch, staged);
     if (o.verify) await o.verify(staged);
@@ -114,12 +140,6 @@ async function buildSiteLocked(o: AstroBuildOptions): Promise<void> {
     await rm(scratch, { recursive: true, force: true });
     await rm(staged, { recursive: true, force: true });
     throw e;
-  } finally {
-    process.chdir(savedCwd);
-    for (const k of [...ENV_KEYS, ...HOST_ENV_KEYS]) {
-      if (saved[k] === undefined) delete process.env[k];
-      else process.env[k] = saved[k];
-    }
   }
 
   // Swap: previous site aside, new one in, previous one removed.

@@ -28,7 +28,7 @@ import { buildSite, normaliseBase } from './astroBuild.ts';
 import { RELEASE_FIGURES } from './figures/index.ts';
 import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, type ReleaseFigure, removeRelease } from './generate.ts';
 import { calibrationCodeHash, comparisonCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
-import { LOO_SCHEMA, type LeaveOneOut } from './leaveOneOut.ts';
+import { LOO_SCHEMA, type LeaveOneOut, type LooOutcome } from './leaveOneOut.ts';
 import { releasePath, REQUIRED_NOTES } from './pageData.ts';
 import { systemHistory, type SystemHistory } from './systems.ts';
 import { createProgress } from './progress.ts';
@@ -69,15 +69,65 @@ export interface BuildReportOptions {
    * What leaving each system out does to H0, for a release folder (default: the real refits,
    * src/report/leaveOneOut.ts); null leaves it out of the pages (tests whose releases have no data).
    */
-  leaveOneOut?: LeaveOneOutDir | null;
+  leaveOneOut?: LeaveOneOutDirs | null;
 }
 
-export type LeaveOneOutDir = (dir: string) => Promise<LeaveOneOut>;
+/** Leave-one-out of several release folders at once (one outcome per folder, in order). */
+export type LeaveOneOutDirs = (dirs: string[]) => Promise<LooOutcome[]>;
 
 /** The real leave-one-out refits, loaded only when a build needs them. */
-async function defaultLeaveOneOut(): Promise<LeaveOneOutDir> {
-  const { leaveOneOutDir } = await import('./leaveOneOut.ts');
-  return async (dir) => leaveOneOutDir(dir);
+async function defaultLeaveOneOut(): Promise<LeaveOneOutDirs> {
+  const { leaveOneOutDirs } = await import('./leaveOneOut.ts');
+  return (dirs) => leaveOneOutDirs(dirs);
+}
+
+type LooState = { loo: LeaveOneOut | null; missing: string | null };
+
+/**
+ * The leave-one-out of every calibrated release: read from the cache, or refitted, all missing
+ * releases together on one pool of worker threads (src/report/leaveOneOut.ts), then cached.
+ */
+async function leaveOneOutCached(
+  calibrated: readonly { dir: string; results: Results }[],
+  looFn: LeaveOneOutDirs | null,
+  cacheDir: string | null,
+  codeHash: string,
+  work: WorkState,
+  step: (id: string) => void,
+): Promise<Map<string, LooState>> {
+  const loos = new Map<string, LooState>();
+  const todo: { id: string; dir: string; path: string | null }[] = [];
+  for (const c of calibrated) {
+    const id = c.results.release.id;
+    if (looFn === null) loos.set(id, { loo: null, missing: 'The leave-one-out refits were not computed in this build.' });
+    else if (c.results.h0 === null) loos.set(id, { loo: null, missing: 'The release does not reach the Hubble flow, so there is no H0 to shift.' });
+    else {
+      const path = cacheDir === null ? null : join(cacheDir, `loo-${sha256('rungbook.loo-cache/1', codeHash, await reportCodeHash(REPO_ROOT), await hashTree(c.dir))}.json`);
+      const hit = path === null ? null : await readCached<LeaveOneOut>(path, LOO_SCHEMA);
+      if (hit !== null) loos.set(id, { loo: hit, missing: null });
+      else todo.push({ id, dir: c.dir, path });
+    }
+  }
+  if (looFn === null || todo.length === 0) return loos;
+  for (const t of todo) step(t.id);
+  const outcomes = await looFn(todo.map((t) => t.dir));
+  todo.forEach((t, i) => {
+    const o = outcomes[i]!;
+    if (o.ok) {
+      loos.set(t.id, { loo: o.value, missing: null });
+      if (t.path !== null) work.later(t.path, `${JSON.stringify(o.value)}\n`);
+      return;
+    }
+    // The release calibrated, so the refits can only meet what the ladder or the reader refuse
+    // when the results came from elsewhere (a published record, a test's calibration): the
+    // pages say so. Anything else is a defect of ours and stops the build.
+    const e = o.error;
+    if (!(e instanceof InputError) && !(e instanceof AnalysisError)) {
+      throw new ReportBuildError(`leave-one-out refits of release ${t.id} failed: ${messageOf(e)}`, null, { cause: e });
+    }
+    loos.set(t.id, { loo: null, missing: `The leave-one-out refits could not be run on this release’s folder: ${messageOf(e).split('\n')[0]}` });
+  });
+  return loos;
 }
 
 export type CompareDirs = (dirA: string, dirB: string) => Promise<DiffReport>;
@@ -176,6 +226,18 @@ function checkResults(r: Results, dir: string): void {
  * is there and readable with the expected schema; else computed. A new entry is written only if
  * the whole build succeeds (a failed build leaves the cache as it was).
  */
+/** A cache entry of the given schema, or null (missing, unreadable or of another schema: compute again). */
+async function readCached<T extends { schema: string }>(path: string, schema: string): Promise<T | null> {
+  const hit = await readIfExists(path);
+  if (hit === null) return null;
+  try {
+    const value = JSON.parse(hit) as T;
+    return value.schema === schema ? value : null;
+  } catch {
+    return null;
+  }
+}
+
 async function cachedJson<T extends { schema: string }>(
   cacheDir: string | null,
   file: () => Promise<string>,
@@ -185,15 +247,8 @@ async function cachedJson<T extends { schema: string }>(
 ): Promise<{ value: T; cached: boolean }> {
   if (cacheDir === null) return { value: await compute(), cached: false };
   const path = join(cacheDir, await file());
-  const hit = await readIfExists(path);
-  if (hit !== null) {
-    try {
-      const value = JSON.parse(hit) as T;
-      if (value.schema === schema) return { value, cached: true };
-    } catch {
-      // unreadable cache entry: compute again
-    }
-  }
+  const hit = await readCached<T>(path, schema);
+  if (hit !== null) return { value: hit, cached: true };
   const value = await compute();
   work.later(path, `${JSON.stringify(value)}\n`);
   return { value, cached: false };
@@ -456,33 +511,8 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
     const tc = performance.now();
 
     // 2b. What each system does to H0: the release refitted without it (cached like the results).
-    const loos = new Map<string, { loo: LeaveOneOut | null; missing: string | null }>();
     const looFn = opts.leaveOneOut === null ? null : (opts.leaveOneOut ?? (await defaultLeaveOneOut()));
-    for (const c of calibrated) {
-      const id = c.results.release.id;
-      if (looFn === null) {
-        loos.set(id, { loo: null, missing: 'The leave-one-out refits were not computed in this build.' });
-        continue;
-      }
-      if (c.results.h0 === null) {
-        loos.set(id, { loo: null, missing: 'The release does not reach the Hubble flow, so there is no H0 to shift.' });
-        continue;
-      }
-      progress.step(`leaving each system of ${id} out`);
-      const file = async () => `loo-${sha256('rungbook.loo-cache/1', codeHash, await reportCodeHash(REPO_ROOT), await hashTree(c.dir))}.json`;
-      try {
-        const { value } = await cachedJson(cacheDir, file, LOO_SCHEMA, () => looFn(c.dir), work);
-        loos.set(id, { loo: value, missing: null });
-      } catch (e) {
-        // The release calibrated, so the refits can only meet what the ladder or the reader refuse
-        // when the results came from elsewhere (a published record, a test's calibration): the
-        // pages say so. Anything else is a defect of ours and stops the build.
-        if (!(e instanceof InputError) && !(e instanceof AnalysisError)) {
-          throw new ReportBuildError(`leave-one-out refits of release ${id} failed: ${messageOf(e)}`, null, { cause: e });
-        }
-        loos.set(id, { loo: null, missing: `The leave-one-out refits could not be run on this release’s folder: ${messageOf(e).split('\n')[0]}` });
-      }
-    }
+    const loos = await leaveOneOutCached(calibrated, looFn, cacheDir, codeHash, work, (id) => progress.step(`leaving each system of ${id} out`));
     const history = systemHistory(calibrated.map((c) => c.results));
     const tl = performance.now();
 
