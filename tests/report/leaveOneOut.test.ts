@@ -12,7 +12,8 @@ import { rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { calibrateReleaseDir } from '../../src/cli/calibrate.ts';
-import { type LeaveOneOut, leaveOneOutDir } from '../../src/report/leaveOneOut.ts';
+import { type LeaveOneOut, leaveOneOutDir, leaveOneOutDirs } from '../../src/report/leaveOneOut.ts';
+import { InputError } from '../../src/types/issues.ts';
 import type { Results } from '../../src/types/results.ts';
 import { copyDemo, DEMO_RELEASES, editTable, tempDir } from '../trust/releaseCopy.ts';
 
@@ -78,4 +79,21 @@ describe('leave-one-out against an independent refit of an edited copy', () => {
     expect(loo.entries.length).toBe(full.systems.length);
     for (const e of loo.entries) expect(e.error === null ? Number.isFinite(e.shift) : e.error.length > 0).toBe(true);
   });
+});
+
+describe('leave-one-out of several folders on worker threads', () => {
+  it('gives, on two workers, exactly what one thread gives for each folder; a folder that is not a release gives its reading error and the others go on', async () => {
+    const broken = tempDir('rungbook-loo-broken-');
+    try {
+      const dirs = [join(DEMO_RELEASES, RELEASE), broken, join(DEMO_RELEASES, '2026.1')];
+      const out = await leaveOneOutDirs(dirs, 2);
+      expect(out).toHaveLength(3);
+      expect(out[0]).toEqual({ ok: true, value: loo });
+      expect(out[1]!.ok).toBe(false);
+      if (!out[1]!.ok) expect(out[1]!.error).toBeInstanceOf(InputError);
+      expect(out[2]).toEqual({ ok: true, value: leaveOneOutDir(join(DEMO_RELEASES, '2026.1')) });
+    } finally {
+      rmSync(broken, { recursive: true, force: true });
+    }
+  }, 240_000);
 });
