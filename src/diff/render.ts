@@ -5,7 +5,8 @@
  */
 import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';
-import type { AttributionEntry, ColumnSummary, DiffReport, ParameterShift, SystemShift, TableChange } from './types.ts';
+import type { AttributionEntry, ColumnSummary, DiffReport, ObjectInfluence, ParameterShift, SystemShift, TableChange } from './types.ts';
+import { objectLink, systemPagePath } from '../layout/anchors.ts';
 
 /** Changed cells listed in text output (all of them are in the JSON). */
 export const TEXT_CELLS_MAX = 25;
@@ -259,6 +260,19 @@ function largestInputChanges(r: DiffReport): string[] {
   return out.sort((x, y) => y.weight - x.weight).map((x) => x.text);
 }
 
+/**
+ * Absolute link to a row that moved H0, on its system's page of the report (src/layout/anchors.ts):
+ * a removed row is on the earlier release's pages, any other on the later one's; a system-level
+ * estimate links the system's page. Null without report links or without a system.
+ */
+function objectUrl(r: DiffReport, o: ObjectInfluence): string | null {
+  if (!r.links || o.system === null) return null;
+  // The comparison page is <site><base>releases/<b>/compare/: the site's root is three folders up.
+  const root = new URL('../../../', r.links.page);
+  const rel = o.status === 'removed' ? r.a : r.b;
+  return new URL(o.level === 'system' ? systemPagePath(rel, o.system) : objectLink(rel, o.system, o.id), root).href;
+}
+
 /** Markdown message ready to paste: headline, top contributions, largest input changes, links. */
 export function renderMarkdown(r: DiffReport): string {
   const L: string[] = [];
@@ -288,7 +302,12 @@ export function renderMarkdown(r: DiffReport): string {
     for (const e of top) L.push(`- ${GROUP_LABEL[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
     const objs = r.top_objects.slice(0, MARKDOWN_OBJECTS_MAX);
     if (objs.length) {
-      L.push(`- largest single rows: ${objs.map((o) => `${o.level === 'system' ? `${mdData(o.id)} (${o.rows} rows)` : mdData(o.id)} ${signed(o.delta_h0, 3)}`).join(', ')}`);
+      const named = (o: ObjectInfluence) => {
+        const text = o.level === 'system' ? `${mdData(o.id)} (${o.rows} rows)` : mdData(o.id);
+        const url = objectUrl(r, o);
+        return url === null ? text : `[${text}](${url})`;
+      };
+      L.push(`- largest single rows: ${objs.map((o) => `${named(o)} ${signed(o.delta_h0, 3)}`).join(', ')}`);
     }
   } else if (r.attribution_note && !r.identical && h && h.delta !== null) {
     L.push('');

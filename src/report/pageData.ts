@@ -5,7 +5,7 @@
  */
 import { DEFAULT_ANALYSIS, type AnalysisKey } from '../types/analysis.ts';
 import type { Results, SystemResult } from '../types/results.ts';
-import { objectLink, systemPagePath } from './anchors.ts';
+import { objectLink, systemPagePath } from '../layout/anchors.ts';
 import { parameterBlinded } from './blinding.ts';
 import { changesParagraph } from './compare/view.ts';
 import { analysisValueText, distanceText, fixed, int, percent, pm, sig, valueErr } from './format.ts';

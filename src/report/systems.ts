@@ -5,7 +5,7 @@
  * Pure: from results.json, the leave-one-out refits and the other releases' system distances.
  */
 import type { Results, SystemResult } from '../types/results.ts';
-import { assertUnique, objectAnchor, systemPagePath, systemSegment } from './anchors.ts';
+import { assertUnique, objectAnchor, systemPagePath, systemSegment } from '../layout/anchors.ts';
 import type { LeaveOneOut, LeaveOneOutEntry } from './leaveOneOut.ts';
 import { distanceText, fixed, int, pm, sig } from './format.ts';
 import { type ColumnSpec, tableView } from './tables.ts';

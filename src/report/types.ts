@@ -54,7 +54,7 @@ export interface TableView {
   shown: { rows: number; total: number } | null;
   /** Downloads of the full table (CSV and ECSV), when it is one of the result tables. */
   downloads: { csv: string; ecsv: string } | null;
-  /** Anchor (element id) of each shown row, or null (src/report/anchors.ts); absent: no anchors. */
+  /** Anchor (element id) of each shown row, or null (src/layout/anchors.ts); absent: no anchors. */
   rowIds?: (string | null)[];
   /** Site-relative link (may end in "#anchor") of each shown cell, or null; absent: no links. */
   links?: (string | null)[][];
@@ -210,7 +210,7 @@ export interface SystemsIndexView {
 export interface SystemPageView {
   release: string;
   system: string;
-  /** Folder name under releases/<release>/systems/ (src/report/anchors.ts). */
+  /** Folder name under releases/<release>/systems/ (src/layout/anchors.ts). */
   segment: string;
   path: string;
   blinded: boolean;

@@ -1,6 +1,6 @@
 /**
  * Kind: edge cases. Object ids and system names with any characters stay valid anchors and links
- * (src/report/anchors.ts): plain ids are kept as they are, any other id gets a readable slug and a
+ * (src/layout/anchors.ts): plain ids are kept as they are, any other id gets a readable slug and a
  * hash, the result is the same every time, two different ids never share a name, and the name
  * needs no escaping in a URL fragment, an HTML id or a CSS selector. The hostile corpus is the one
  * the trust tests use (tests/trust/hostile.ts). Rules from the HTML standard (an id is any
@@ -8,7 +8,7 @@
  */
 import { JSDOM } from 'jsdom';
 import { describe, expect, it } from 'vitest';
-import { assertUnique, objectAnchor, objectLink, readableSlug, systemPagePath, systemSegment } from '../../src/report/anchors.ts';
+import { assertUnique, objectAnchor, objectLink, readableSlug, systemPagePath, systemSegment } from '../../src/layout/anchors.ts';
 import { HOSTILE, LONG_ID } from '../trust/hostile.ts';
 
 /** RFC 3986 unreserved characters: safe in a path segment and a fragment, never percent-encoded. */

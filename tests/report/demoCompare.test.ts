@@ -11,7 +11,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { compareReleaseDirs } from '../../src/diff/compare.ts';
 import { compareFigureId, figuresDrawn } from '../../src/diff/links.ts';
-import { renderMarkdown } from '../../src/diff/render.ts';
+import { MARKDOWN_OBJECTS_MAX, renderMarkdown } from '../../src/diff/render.ts';
 import type { DiffReport } from '../../src/diff/types.ts';
 import { fixed } from '../../src/report/format.ts';
 import { GROUP_TITLE, signedText } from '../../src/report/compare/words.ts';
@@ -142,9 +142,23 @@ describe.each(DEMO_PAIRS.filter(([, b]) => b !== '2026.4'))('comparison %s -> %s
     expect(urls.length).toBeGreaterThanOrEqual(2);
     for (const u of urls) {
       expect(u.startsWith(`${SITE}${BASE}`), u).toBe(true);
-      const rel = u.slice(`${SITE}${BASE}`.length);
-      expect(existsSync(join(site.dist, rel.endsWith('/') ? `${rel}index.html` : rel)), `${u} in the site`).toBe(true);
+      const [rel, fragment] = u.slice(`${SITE}${BASE}`.length).split('#') as [string, string | undefined];
+      const file = rel.endsWith('/') ? `${rel}index.html` : rel;
+      expect(existsSync(join(site.dist, file)), `${u} in the site`).toBe(true);
+      // A link to a row names its anchor, which must exist on that page.
+      if (fragment !== undefined) expect(site.doc(file).getElementById(decodeURIComponent(fragment)), `${u}: anchor`).not.toBeNull();
     }
+  });
+
+  it('links the rows that moved H0 in the message to their rows on the system pages', () => {
+    const shown = doc().getElementById('paste-message')!.textContent!;
+    const rowsLine = shown.split('\n').find((l) => l.startsWith('- largest single rows:'));
+    const withSystem = d().top_objects.slice(0, MARKDOWN_OBJECTS_MAX).filter((o) => o.system !== null);
+    if (withSystem.length === 0) return expect(rowsLine === undefined || !rowsLine.includes('/systems/')).toBe(true);
+    expect(rowsLine).toBeDefined();
+    const links = [...rowsLine!.matchAll(/\]\((https?:\/\/[^)\s]+)\)/g)].map((m) => m[1]!);
+    expect(links.length).toBe(withSystem.length);
+    for (const [k, o] of withSystem.entries()) expect(links[k]).toContain(`/systems/${o.system}/`);
   });
 });
 

@@ -52,7 +52,7 @@ describe('system pages', () => {
       expect(systems.length).toBeGreaterThan(10);
       const links = new Set(Array.from(site.doc(`releases/${id}/systems/index.html`).querySelectorAll('#table-systems-index ~ .table-scroll a, section[aria-labelledby="table-systems-index"] a')).map((a) => a.getAttribute('href')));
       for (const s of systems) {
-        // Demo names are plain, so the folder is the name itself (src/report/anchors.ts).
+        // Demo names are plain, so the folder is the name itself (src/layout/anchors.ts).
         expect(existsSync(join(site.dist, systemPage(id, s))), `${id}/${s}`).toBe(true);
         expect(links.has(`${BASE}releases/${id}/systems/${s}/`), `index of ${id} links ${s}`).toBe(true);
       }

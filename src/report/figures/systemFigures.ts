@@ -7,7 +7,7 @@
  */
 import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
-import { objectLink } from '../anchors.ts';
+import { objectLink } from '../../layout/anchors.ts';
 import { fixed, int } from '../format.ts';
 import { locusCurve } from './msLocus.ts';
 import { clip, col, type FigureSpec, GREY, INK, legend, type LegendItem, PALE, r5, renderSvg } from './plotting.ts';
