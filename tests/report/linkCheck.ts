@@ -49,8 +49,9 @@ export async function checkLinks(dist: string, base: string): Promise<LinkReport
   const idsOf = (file: string): Set<string> => {
     let ids = idCache.get(file);
     if (!ids) {
-      const doc = new JSDOM(readFileSync(file, 'utf8')).window.document;
-      ids = new Set(Array.from(doc.querySelectorAll('[id]')).map((e) => e.id));
+      const window = new JSDOM(readFileSync(file, 'utf8')).window;
+      ids = new Set(Array.from(window.document.querySelectorAll('[id]')).map((e) => e.id));
+      window.close();
       idCache.set(file, ids);
     }
     return ids;
@@ -96,7 +97,8 @@ export async function checkLinks(dist: string, base: string): Promise<LinkReport
   for (const rel of pages) {
     await breathe();
     const pageUrl = new URL(`${base}${rel.replace(/index\.html$/, '')}`, ORIGIN);
-    const doc = new JSDOM(readFileSync(join(dist, rel), 'utf8')).window.document;
+    const window = new JSDOM(readFileSync(join(dist, rel), 'utf8')).window;
+    const doc = window.document;
     for (const el of Array.from(doc.querySelectorAll('[href]'))) {
       const tag = el.tagName.toLowerCase();
       const relAttr = (el.getAttribute('rel') ?? '').toLowerCase();
@@ -110,6 +112,8 @@ export async function checkLinks(dist: string, base: string): Promise<LinkReport
       if (!m) problems.push({ page: rel, attribute: 'meta refresh', url: '', problem: 'refresh without url' });
       else checkUrl(rel, pageUrl, 'meta refresh', m[1]!.trim(), true, false);
     }
+    // jsdom frees a closed window once the event loop turns (the next breathe()).
+    window.close();
   }
   for (const rel of files.filter((f) => f.endsWith('.css'))) {
     const cssUrl = new URL(`${base}${rel}`, ORIGIN);
