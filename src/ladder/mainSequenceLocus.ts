@@ -101,6 +101,29 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
   const phot = (coeffs: number[]) => stars.map((s, i) => s.magErr ** 2 + (polyDerivative(coeffs, dc[i]) * s.colorErr) ** 2);
   const resid = (coeffs: number[]) => y.map((yi, i) => yi - polyValue(coeffs, dc[i]));
 
+  // The intrinsic scatter is the star-to-star width of the sequence. Each anchor's stars also
+  // share one offset (the errors of its reddening, metallicity and modulus), which is carried to
+  // the targets through dCoeffsDEbv, dCoeffsDFeh and dCoeffsDMu; so the scatter is estimated on
+  // residuals about each anchor's own weighted mean offset, or those common errors would be
+  // counted twice (once inside the scatter, once propagated).
+  const withinAnchor = (res: readonly number[], qq: readonly number[], v: readonly number[]): number[] => {
+    const sum = new Map<number, [number, number]>();
+    stars.forEach((s, i) => {
+      const acc = sum.get(s.anchor) ?? [0, 0];
+      acc[0] += (res[i] + qq[i] * delta) / v[i];
+      acc[1] += 1 / v[i];
+      sum.set(s.anchor, acc);
+    });
+    return res.map((ri, i) => {
+      const [a, b] = sum.get(stars[i].anchor)!;
+      return ri - a / b;
+    });
+  };
+  const scatterUpdate = (ph: readonly number[], res: readonly number[], qq: readonly number[], v: readonly number[]) => {
+    const w = withinAnchor(res, qq, v);
+    return scatterSquaredUpdate(ph, w.map((wi, i) => expectedSquaredResidual(wi, qq[i], delta)));
+  };
+
   let coeffs = weightedLeastSquares(x, y, unit);
   let r = resid(coeffs);
   const m0 = median(r);
@@ -109,7 +132,7 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
   coeffs = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), unit);
   r = resid(coeffs);
   let ph = phot(coeffs);
-  let tau2 = scatterSquaredUpdate(ph, r.map((ri, i) => expectedSquaredResidual(ri, q[i], delta)));
+  let tau2 = scatterUpdate(ph, r, q, unit);
 
   let ll = -Infinity;
   let iterations = 0;
@@ -125,7 +148,7 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
     const change = Math.max(...next.map((c, k) => Math.abs(c - coeffs[k])));
     coeffs = next;
     r = resid(coeffs);
-    tau2 = scatterSquaredUpdate(ph, r.map((ri, i) => expectedSquaredResidual(ri, q[i], delta)));
+    tau2 = scatterUpdate(ph, r, q, v);
     v = ph.map((p) => p + tau2);
     const llNew = mixtureLogLikelihood(r, v, fraction, delta);
     if (Math.abs(llNew - ll) < LOGLIK_TOL * Math.max(1, Math.abs(llNew)) && change < COEFF_TOL) {
