@@ -50,6 +50,13 @@ export interface LocusFit {
   binaryFraction: number;
   /** Statistical covariance of the coefficients (anchor stars' photometry and membership). */
   covStat: Matrix;
+  /**
+   * Statistical covariance of (coefficients, binary fraction), (degree+2) square; the fraction's
+   * row and column are zero when it sits on a boundary (0 or 1) and is not part of the information.
+   */
+  covCoeffsFraction: Matrix;
+  /** Standard error of the intrinsic scatter (mag), from its Fisher information; 0 when the scatter is 0. */
+  scatterErr: number;
   /** d coeffs / d mu_anchor, d coeffs / d E_anchor, d coeffs / d feh_anchor: (degree+1) x nAnchors. */
   dCoeffsDMu: Matrix;
   dCoeffsDEbv: Matrix;
@@ -176,9 +183,21 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
     const cols = Array.from({ length: opts.nAnchors }, (_, a) => column(a, dr));
     return coeffs.map((_, k) => cols.map((c) => c[k]));
   };
+  const p = coeffs.length;
+  const covCoeffsFraction = zeros(p + 1, p + 1);
+  curv.covFull.forEach((row, i) => row.forEach((c, j) => (covCoeffsFraction[i][j] = c)));
+  // Scatter: Fisher information of t = scatter^2 in the Gaussian part of the likelihood,
+  // I(t) = sum_i 1 / (2 v_i^2), less one degree of freedom per anchor offset and coefficient
+  // (var t = 2 / sum v^-2 * n / (n - k)); var(scatter) = var(t) / (4 t). Common practice, no
+  // source; the mixture's membership uncertainty is neglected here (binaries are far off).
+  const k = new Set(stars.map((st) => st.anchor)).size + p;
+  const sumInvV2 = v.reduce((acc, vi) => acc + 1 / (vi * vi), 0);
+  const scatterErr = tau2 > 0 && n > k ? Math.sqrt(((2 / sumInvV2) * n) / (n - k) / (4 * tau2)) : 0;
   return {
     coeffs,
     scatter: Math.sqrt(tau2),
+    covCoeffsFraction,
+    scatterErr,
     binaryFraction: fraction,
     covStat: curv.covTheta,
     dCoeffsDMu: byAnchor(() => -1),
