@@ -160,7 +160,7 @@ function locusMap(locus: LocusForTargets): LocusMap {
     }
     return c;
   };
-  return { P, dP, C, mLo: pLo, mHi: pHi - EQUAL_MASS_BINARY_OFFSET_MAG };
+  return { P, dP, C, mLo: pLo, mHi: pHi };
 }
 
 /**
@@ -213,7 +213,17 @@ export function binaryWeights(mags: readonly number[], fraction: number): number
   });
 }
 
-/** ln of the mixture density of one star at (mu, E); also its binary responsibility. */
+/** The colour variances of a star's single and binary components at (mu, E). */
+function componentVariances(s: TargetStarInput, map: LocusMap, mu: number, ebv: number, opts: TargetFitOptions, tau2: number): [number, number] {
+  const m = s.mag - mu - opts.rV * ebv + opts.fehSlope * opts.feh;
+  const v = (absMag: number) => s.colorErr ** 2 + (s.magErr ** 2 + tau2) / map.dP(map.C(absMag)) ** 2;
+  return [v(m), v(m + EQUAL_MASS_BINARY_OFFSET_MAG)];
+}
+
+/**
+ * ln of the mixture density of one star at (mu, E); also its binary responsibility. With
+ * `frozen`, the components' variances are those given (held at the current iterate, see maximise).
+ */
 function starLogLikelihood(
   s: TargetStarInput,
   map: LocusMap,
@@ -222,18 +232,24 @@ function starLogLikelihood(
   opts: TargetFitOptions,
   tau2: number,
   fraction: number,
+  frozen?: readonly [number, number],
+  q?: number,
 ): { ll: number; q: number } {
   const m = s.mag - mu - opts.rV * ebv + opts.fehSlope * opts.feh;
   const c0 = s.color - ebv;
-  const comp = (absMag: number) => {
+  const comp = (absMag: number, k: 0 | 1) => {
     const c = map.C(absMag);
-    const d = map.dP(c);
-    const v = s.colorErr ** 2 + (s.magErr ** 2 + tau2) / (d * d);
+    const v = frozen ? frozen[k] : s.colorErr ** 2 + (s.magErr ** 2 + tau2) / map.dP(c) ** 2;
     const r = c0 - c;
     return -0.5 * ((r * r) / v + Math.log(2 * Math.PI * v));
   };
-  const a = fraction < 1 ? Math.log(1 - fraction) + comp(m) : -Infinity;
-  const b = fraction > 0 ? Math.log(fraction) + comp(m + EQUAL_MASS_BINARY_OFFSET_MAG) : -Infinity;
+  const a = fraction < 1 ? Math.log(1 - fraction) + comp(m, 0) : -Infinity;
+  const b = fraction > 0 ? Math.log(fraction) + comp(m + EQUAL_MASS_BINARY_OFFSET_MAG, 1) : -Infinity;
+  if (q !== undefined) {
+    // Complete-data log-likelihood with the membership held at q (the EM surrogate).
+    const ll = (q < 1 ? (1 - q) * a : 0) + (q > 0 ? q * b : 0);
+    return { ll, q };
+  }
   const top = Math.max(a, b);
   const ll = top + Math.log(Math.exp(a - top) + Math.exp(b - top));
   return { ll, q: Math.exp(b - ll) };
@@ -246,11 +262,15 @@ interface Sample {
   tau2: number;
   /** Each star's probability of being a binary before its colour is seen (binaryWeights). */
   weights: readonly number[];
+  /** Component variances held fixed (maximise); absent: they follow (mu, E). */
+  frozen?: readonly (readonly [number, number])[];
+  /** Binary responsibilities held fixed (complete-data surrogate); absent: the mixture itself. */
+  memberships?: readonly number[];
 }
 
 function sampleLogLikelihood(x: Sample, mu: number, ebv: number, opts: TargetFitOptions): number {
   let ll = 0;
-  x.stars.forEach((s, i) => (ll += starLogLikelihood(s, x.map, mu, ebv, opts, x.tau2, x.weights[i]).ll));
+  x.stars.forEach((s, i) => (ll += starLogLikelihood(s, x.map, mu, ebv, opts, x.tau2, x.weights[i], x.frozen?.[i], x.memberships?.[i]).ll));
   if (opts.prior.kind === 'gaussian') ll -= 0.5 * ((ebv - opts.prior.ebv) / opts.prior.ebvErr) ** 2;
   return ll;
 }
@@ -279,9 +299,24 @@ function derivatives(f: (t: number[]) => number, t: readonly number[]): { g: num
   return { g, h };
 }
 
+/** -Hessian of the complete-data surrogate at t: memberships frozen at their values there. */
+function surrogateInformation(x: Sample, opts: TargetFitOptions, t: readonly number[], fixedEbv: number): Matrix {
+  const freeE = opts.prior.kind !== 'fixed';
+  const e0 = freeE ? t[1] : fixedEbv;
+  const memberships = x.stars.map((s, i) => starLogLikelihood(s, x.map, t[0], e0, opts, x.tau2, x.weights[i], x.frozen?.[i]).q);
+  const xs: Sample = { ...x, memberships };
+  const { h } = derivatives((u) => sampleLogLikelihood(xs, u[0], freeE ? u[1] : fixedEbv, opts), t);
+  return h.map((row) => row.map((v) => -v));
+}
+
 /**
- * Maximise ln L over (mu[, E]) on a fixed star sample by Newton's method with step halving;
- * E kept within `bounds`. Returns the number of iterations and whether the step fell below tol.
+ * Solve the likelihood equations in (mu[, E]) on a fixed star sample: at each iterate the
+ * components' variances are held at their current values (iteratively reweighted, as the
+ * effective-variance method does) and ln L with those variances is raised by one Newton step with
+ * step halving; E kept within `bounds`. The fixed point zeroes the score of the weighted residuals,
+ * so exact data give back the exact parameters; differentiating the variances as well would add the
+ * score of ln v, which has zero mean but moves exact data off the truth. Returns the number of
+ * iterations and whether the step fell below tol.
  */
 function maximise(
   x: Sample,
@@ -292,13 +327,16 @@ function maximise(
 ): { mu: number; ebv: number; iterations: number; converged: boolean } {
   const freeE = opts.prior.kind !== 'fixed';
   const clamp = (e: number) => Math.min(bounds[1], Math.max(bounds[0], e));
-  const f = (t: number[]) => sampleLogLikelihood(x, t[0], freeE ? t[1] : start.ebv, opts);
   let t = freeE ? [start.mu, start.ebv] : [start.mu];
   for (let it = 1; it <= MAX_NEWTON_ITERATIONS; it++) {
+    const e0 = freeE ? t[1] : start.ebv;
+    const frozen = x.stars.map((s) => componentVariances(s, x.map, t[0], e0, opts, x.tau2));
+    const xf: Sample = { ...x, frozen };
+    const f = (u: number[]) => sampleLogLikelihood(xf, u[0], freeE ? u[1] : start.ebv, opts);
     const { g, h } = derivatives(f, t);
-    const neg = h.map((row) => row.map((v) => -v));
-    const l = cholesky(neg);
-    // Not concave here (far from the optimum): a gradient step scaled to 0.1 mag instead.
+    // Where the mixture is not concave (ambiguous memberships), the curvature of the complete-data
+    // surrogate (memberships held at their current values, as EM does) gives the step instead.
+    const l = cholesky(h.map((row) => row.map((v) => -v))) ?? cholesky(surrogateInformation(xf, opts, t, start.ebv));
     let step: number[];
     if (l !== null) step = choleskySolve(l, g);
     else {
@@ -345,7 +383,7 @@ function fitTargetFrom(
   stars: readonly TargetStarInput[],
   locus: LocusForTargets,
   opts: TargetFitOptions,
-  start: { ebv: number; bounds: readonly [number, number]; tolerance?: number },
+  start: { ebv: number; mu?: number; bounds: readonly [number, number]; tolerance?: number },
 ): TargetFit {
   const map = locusMap(locus);
   const [lo, hi] = locus.colorRange;
@@ -354,7 +392,7 @@ function fitTargetFrom(
   let ebv = start.ebv;
   // Start: the median offset of the stars in the colour range read as singles.
   const inColour = stars.filter((s) => s.color - ebv >= lo && s.color - ebv <= hi);
-  let mu = median(
+  let mu = start.mu ?? median(
     (inColour.length > 0 ? inColour : stars).map((s) => s.mag - map.P(s.color - ebv) + opts.fehSlope * opts.feh - opts.rV * ebv),
   );
   let used = selection(stars, map, mu, ebv, opts);
@@ -438,12 +476,14 @@ function fitTargetFreeReddening(stars: readonly TargetStarInput[], locus: LocusF
   }
   const beats = (x: TargetFit, y: TargetFit) => {
     const common = x.used.map((u, i) => u && y.used[i]);
+    // No star in common: the solution on more stars is preferred.
+    if (!common.some(Boolean)) return x.nUsed > y.nUsed;
     return logLikelihoodOn(stars, locus, opts, x, common) >= logLikelihoodOn(stars, locus, opts, y, common);
   };
   const wins = found.map((x) => found.filter((y) => y !== x && beats(x, y)).length);
   const searched = found[found.map((_, i) => i).sort((i, j) => wins[j] - wins[i] || found[i].ebv - found[j].ebv)[0]];
   // Polish the chosen solution to the full tolerance.
-  const best = fitTargetFrom(stars, locus, opts, { ebv: searched.ebv, bounds: FREE_EBV_INTERVAL });
+  const best = fitTargetFrom(stars, locus, opts, { ebv: searched.ebv, mu: searched.mu, bounds: FREE_EBV_INTERVAL });
   const ebvErr = Math.sqrt(best.covFit[1][1]);
   if (best.ebv <= a + 1e-9 || best.ebv >= b - 1e-9 || !(ebvErr < b - a)) {
     throw new RangeError(
@@ -474,10 +514,12 @@ function finish(
   const allMags = stars.map((s) => s.mag);
   const selWeights = (f: number) => binaryWeights(allMags, f).filter((_, i) => used[i]);
   const base: Sample = { stars: sel, map, tau2: locus.scatter ** 2, weights: selWeights(locus.binaryFraction) };
-  const f = (t: number[]) => sampleLogLikelihood(base, t[0], freeE ? t[1] : ebv, opts);
+  const frozen = sel.map((s) => componentVariances(s, map, mu, ebv, opts, base.tau2));
+  const f = (t: number[]) => sampleLogLikelihood({ ...base, frozen }, t[0], freeE ? t[1] : ebv, opts);
   const { h } = derivatives(f, freeE ? [mu, ebv] : [mu]);
+  // Observed information; where the mixture is not concave at the solution, the complete-data one.
   const info = h.map((row) => row.map((v) => -v));
-  const inv = spdInverse(info);
+  const inv = spdInverse(info) ?? spdInverse(surrogateInformation({ ...base, frozen }, opts, freeE ? [mu, ebv] : [mu], ebv));
   if (inv === null) {
     throw new RangeError(freeE ? 'E(B-V) is not constrained by the photometry (flat locus over the stars used)' : 'the distance is not constrained by the stars used');
   }
