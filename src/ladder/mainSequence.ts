@@ -1,7 +1,7 @@
 /**
  * Main-sequence rung: the locus from the geometric anchors' members, then each
- * target's (mu, E) against it, with every error carried through: the target's own
- * stars, the locus statistics, the anchors' moduli (and through them the parallax
+ * target's (mu, E) against it, with every error carried through once: the target's own
+ * stars, the locus statistics (coefficients, binary fraction, intrinsic scatter), the anchors' moduli (and through them the parallax
  * zero point), the anchors' reddening and metallicity errors and the target's
  * metallicity error. Targets share the locus, so they come out correlated with each
  * other and with the anchors; buildDistancePriors assembles that covariance.
@@ -35,7 +35,8 @@ export interface MainSequenceRungResult {
   targetAnchorJacobian: Matrix;
   /**
    * Covariance of the targets' mu from main-sequence fitting alone: own fits, locus
-   * statistics, target metallicity, anchors' reddening and metallicity errors.
+   * statistics (coefficients, binary fraction and scatter, shared by all targets), target
+   * metallicity, anchors' reddening and metallicity errors.
    * The anchors' moduli and the zero point are excluded (they enter through G).
    */
   targetCovarianceMainSequence: Matrix;
