@@ -50,6 +50,13 @@ export interface LocusFit {
   binaryFraction: number;
   /** Statistical covariance of the coefficients (anchor stars' photometry and membership). */
   covStat: Matrix;
+  /**
+   * Statistical covariance of (coefficients, binary fraction), (degree+2) square; the fraction's
+   * row and column are zero when it sits on a boundary (0 or 1) and is not part of the information.
+   */
+  covCoeffsFraction: Matrix;
+  /** Standard error of the intrinsic scatter (mag), from its Fisher information; 0 when the scatter is 0. */
+  scatterErr: number;
   /** d coeffs / d mu_anchor, d coeffs / d E_anchor, d coeffs / d feh_anchor: (degree+1) x nAnchors. */
   dCoeffsDMu: Matrix;
   dCoeffsDEbv: Matrix;
@@ -101,6 +108,29 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
   const phot = (coeffs: number[]) => stars.map((s, i) => s.magErr ** 2 + (polyDerivative(coeffs, dc[i]) * s.colorErr) ** 2);
   const resid = (coeffs: number[]) => y.map((yi, i) => yi - polyValue(coeffs, dc[i]));
 
+  // The intrinsic scatter is the star-to-star width of the sequence. Each anchor's stars also
+  // share one offset (the errors of its reddening, metallicity and modulus), which is carried to
+  // the targets through dCoeffsDEbv, dCoeffsDFeh and dCoeffsDMu; so the scatter is estimated on
+  // residuals about each anchor's own weighted mean offset, or those common errors would be
+  // counted twice (once inside the scatter, once propagated).
+  const withinAnchor = (res: readonly number[], qq: readonly number[], v: readonly number[]): number[] => {
+    const sum = new Map<number, [number, number]>();
+    stars.forEach((s, i) => {
+      const acc = sum.get(s.anchor) ?? [0, 0];
+      acc[0] += (res[i] + qq[i] * delta) / v[i];
+      acc[1] += 1 / v[i];
+      sum.set(s.anchor, acc);
+    });
+    return res.map((ri, i) => {
+      const [a, b] = sum.get(stars[i].anchor)!;
+      return ri - a / b;
+    });
+  };
+  const scatterUpdate = (ph: readonly number[], res: readonly number[], qq: readonly number[], v: readonly number[]) => {
+    const w = withinAnchor(res, qq, v);
+    return scatterSquaredUpdate(ph, w.map((wi, i) => expectedSquaredResidual(wi, qq[i], delta)));
+  };
+
   let coeffs = weightedLeastSquares(x, y, unit);
   let r = resid(coeffs);
   const m0 = median(r);
@@ -109,7 +139,7 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
   coeffs = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), unit);
   r = resid(coeffs);
   let ph = phot(coeffs);
-  let tau2 = scatterSquaredUpdate(ph, r.map((ri, i) => expectedSquaredResidual(ri, q[i], delta)));
+  let tau2 = scatterUpdate(ph, r, q, unit);
 
   let ll = -Infinity;
   let iterations = 0;
@@ -125,7 +155,7 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
     const change = Math.max(...next.map((c, k) => Math.abs(c - coeffs[k])));
     coeffs = next;
     r = resid(coeffs);
-    tau2 = scatterSquaredUpdate(ph, r.map((ri, i) => expectedSquaredResidual(ri, q[i], delta)));
+    tau2 = scatterUpdate(ph, r, q, v);
     v = ph.map((p) => p + tau2);
     const llNew = mixtureLogLikelihood(r, v, fraction, delta);
     if (Math.abs(llNew - ll) < LOGLIK_TOL * Math.max(1, Math.abs(llNew)) && change < COEFF_TOL) {
@@ -153,9 +183,21 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
     const cols = Array.from({ length: opts.nAnchors }, (_, a) => column(a, dr));
     return coeffs.map((_, k) => cols.map((c) => c[k]));
   };
+  const p = coeffs.length;
+  const covCoeffsFraction = zeros(p + 1, p + 1);
+  curv.covFull.forEach((row, i) => row.forEach((c, j) => (covCoeffsFraction[i][j] = c)));
+  // Scatter: Fisher information of t = scatter^2 in the Gaussian part of the likelihood,
+  // I(t) = sum_i 1 / (2 v_i^2), less one degree of freedom per anchor offset and coefficient
+  // (var t = 2 / sum v^-2 * n / (n - k)); var(scatter) = var(t) / (4 t). Common practice, no
+  // source; the mixture's membership uncertainty is neglected here (binaries are far off).
+  const k = new Set(stars.map((st) => st.anchor)).size + p;
+  const sumInvV2 = v.reduce((acc, vi) => acc + 1 / (vi * vi), 0);
+  const scatterErr = tau2 > 0 && n > k ? Math.sqrt(((2 / sumInvV2) * n) / (n - k) / (4 * tau2)) : 0;
   return {
     coeffs,
     scatter: Math.sqrt(tau2),
+    covCoeffsFraction,
+    scatterErr,
     binaryFraction: fraction,
     covStat: curv.covTheta,
     dCoeffsDMu: byAnchor(() => -1),

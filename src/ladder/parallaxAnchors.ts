@@ -10,11 +10,61 @@ import { distanceModulusFromParallaxMas } from './distance.ts';
 import { outer, diag, addMatrices, scaleMatrix, type Matrix } from '../math/matrix.ts';
 
 /**
- * Largest fractional error of an anchor's mean parallax for which the
- * linearised modulus mu = 10 - 5 log10(parallax) is used: beyond f ~ 0.2 naive
- * inversion is unreliable (Bailer-Jones 2015, PASP 127, 994).
+ * Largest fractional error of an anchor's mean parallax that is turned into a distance modulus:
+ * beyond f ~ 0.2 inverting a parallax is unreliable (Bailer-Jones 2015, PASP 127, 994), and the
+ * chance of a non-positive mean (where no modulus exists) is no longer negligible.
  */
 export const MAX_ANCHOR_FRACTIONAL_ERROR = 0.2;
+
+/** Points of the Simpson rule over the standardised parallax error z in parallaxModulus (odd). */
+const MODULUS_QUADRATURE_POINTS = 4001;
+/** The quadrature runs over |z| <= this, and stops short of 1 + f z = 0 (see parallaxModulus). */
+const MODULUS_QUADRATURE_HALF_WIDTH = 10;
+
+export interface ParallaxModulus {
+  /** Distance modulus, corrected to be unbiased for the given fractional error. */
+  mu: number;
+  /** Its standard deviation (not the first-order (5/ln 10) f). */
+  muErr: number;
+  /** Bias removed from 10 - 5 log10(parallax), mag. */
+  bias: number;
+}
+
+/**
+ * Distance modulus from a mean parallax w (mas) with Gaussian error s, without linearisation.
+ * With w = w_true (1 + f z), z ~ N(0, 1), f = s / w_true, the naive modulus 10 - 5 log10 w is off
+ * by g(z) = -5 log10(1 + f z), whose mean b(f) = (5/ln 10)(f^2/2 + 3 f^4/4 + ...) is about
+ * 1.086 f^2 mag (0.043 mag at f = 0.2) and whose spread is wider than the linear (5/ln 10) f. So
+ *   mu = 10 - 5 log10 w - b(f),   mu_err = SD[g(z)],
+ * with f estimated as s / w (the difference is of order f^4). b and SD by Simpson's rule on
+ * N(0, 1) over |z| <= 10, cut where 1 + f z < 0.05: for f <= 0.2 (MAX_ANCHOR_FRACTIONAL_ERROR)
+ * the cut leaves out a probability below 3e-6, where the expectation of ln w does not exist
+ * (w <= 0). Checked against scipy quadrature and by simulation (tests/ladder/parallaxModulus.test.ts).
+ * Cost O(MODULUS_QUADRATURE_POINTS).
+ */
+export function parallaxModulus(parallaxMas: number, errMas: number): ParallaxModulus {
+  if (!(parallaxMas > 0) || !(errMas >= 0)) throw new RangeError(`parallaxModulus: parallax ${parallaxMas} mas, error ${errMas} mas`);
+  const f = errMas / parallaxMas;
+  const naive = distanceModulusFromParallaxMas(parallaxMas);
+  if (f === 0) return { mu: naive, muErr: 0, bias: 0 };
+  const lo = Math.max(-MODULUS_QUADRATURE_HALF_WIDTH, (0.05 - 1) / f);
+  const hi = MODULUS_QUADRATURE_HALF_WIDTH;
+  const n = MODULUS_QUADRATURE_POINTS;
+  const h = (hi - lo) / (n - 1);
+  let m0 = 0;
+  let m1 = 0;
+  let m2 = 0;
+  for (let k = 0; k < n; k++) {
+    const z = lo + k * h;
+    const w = (k === 0 || k === n - 1 ? 1 : k % 2 === 1 ? 4 : 2) * Math.exp(-0.5 * z * z);
+    const g = -5 * Math.log10(1 + f * z);
+    m0 += w;
+    m1 += w * g;
+    m2 += w * g * g;
+  }
+  const bias = m1 / m0;
+  return { mu: naive - bias, muErr: Math.sqrt(Math.max(0, m2 / m0 - bias * bias)), bias };
+}
 
 export interface AnchorFit {
   result: AnchorResult;
@@ -82,10 +132,11 @@ export function anchorParallaxProblem(system: string, rows: readonly ParallaxRow
  * Weighted mean parallax of one anchor and its distance modulus.
  *   corr_i = measured_i - Z0,  w_i = 1/sigma_i^2,  mean = sum w corr / sum w,
  *   err = (sum w)^-1/2 * max(1, sqrt(chi2/(N-1))),  err_tot = sqrt(err^2 + floor^2),
- *   mu = 10 - 5 log10(mean),  mu_err_stat = (5/ln 10) err_tot / mean,
- *   K = d mu / d Z = (5/ln 10) / mean  (mag per mas; a larger Z lowers the corrected parallax),
+ *   mu, mu_err_stat = parallaxModulus(mean, err_tot)  (unbiased, not linearised),
+ *   K = d mu / d Z = -d mu / d mean  (mag per mas; a larger Z lowers the corrected parallax;
+ *       (5/ln 10) / mean to first order), by a central difference,
  *   mu_err = sqrt(mu_err_stat^2 + K^2 sigma_Z^2).
- * Common practice for the mean and the chi^2 scaling; the modulus error is first order.
+ * Common practice for the mean and the chi^2 scaling.
  * Throws AnalysisError (with a hint) for one member, a non-positive mean, or f > 0.2
  * (anchorParallaxProblem). Cost O(N).
  */
@@ -100,9 +151,10 @@ export function fitAnchorParallax(
   if (problem !== null) throw AnalysisError.of(problem);
   const n = rows.length;
   const { mean, errTot, scale, chi2, dof, frac } = anchorMean(rows, zeroPointMas, floorMas);
-  const mu = distanceModulusFromParallaxMas(mean);
-  const muErrStat = (FIVE_OVER_LN10 * errTot) / mean;
-  const k = FIVE_OVER_LN10 / mean;
+  const { mu, muErr: muErrStat } = parallaxModulus(mean, errTot);
+  // K from the same conversion (its bias term depends on the mean too); step 1e-6 of the mean.
+  const h = 1e-6 * mean;
+  const k = errTot > 0 ? -(parallaxModulus(mean + h, errTot).mu - parallaxModulus(mean - h, errTot).mu) / (2 * h) : FIVE_OVER_LN10 / mean;
   return {
     result: {
       system,
