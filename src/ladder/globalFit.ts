@@ -2,12 +2,20 @@
  * The global fit: all Cepheid systems, supernovae and the Hubble-flow intercept at once,
  * by structured GLS (gls.ts) on the model of globalModel.ts, iterating on what is not linear:
  *  - field-star parallaxes are re-linearised at the current distances (Gauss-Newton);
- *  - intrinsic scatters of the Cepheid rows and of the supernova rows are estimated from
- *    sum r^2/v = n - sum h (h: leverages), the restricted-likelihood condition (content/methods/global-fit.md);
+ *  - intrinsic scatters of the Cepheid rows and of the supernova rows are estimated by a
+ *    leverage-corrected moment estimator (not REML): per group, sum E[r^2]/v = sum (1 - h) - m,
+ *    h the rows' leverages, m the number of fitted non-linear parameters the group's rows
+ *    determine (alpha and beta for the supernovae), so that every fitted parameter is counted
+ *    in the degrees of freedom (content/methods/global-fit.md); E[r^2] = r^2 except for the
+ *    Cepheids' expected blend light;
+ *  - Cepheid rows carry a mixture likelihood with a one-sided blend component (cepheidMixture.ts):
+ *    one expectation-maximisation step per iteration (memberships, expected blend light, the
+ *    blend fraction and mean offset);
  *  - alpha and beta (when not fixed) minimise the chi-square with their variance terms inside
  *    it (an effective-variance estimator; freezing the weights biases beta low, content/methods/global-fit.md);
  *  - outliers beyond clip_sigma standardised residuals are rejected, iteratively, all rows
- *    above the threshold at once, until none is left (deterministic).
+ *    above the threshold at once, until none is left (deterministic); Cepheids only on the
+ *    faint side (the bright side is the mixture's).
  * The covariance of alpha and beta comes from a sandwich (delta-method) estimator and is
  * propagated to every parameter through the fit's Jacobian.
  */
@@ -45,6 +53,7 @@ import {
 } from './globalModel.ts';
 import { correctedMagnitudeVarianceGradient, TYPICAL_ALPHA, TYPICAL_BETA } from './supernovae.ts';
 import { distanceModulusFromParallaxMas } from './distance.ts';
+import { MIXTURE, mixtureStep } from './cepheidMixture.ts';
 
 /** Convergence and safety limits of the iteration (numerical choices, no physical meaning). */
 const LIMITS = {
@@ -57,6 +66,8 @@ const LIMITS = {
   tolBeta: 1e-5,
   tolScatterSq: 1e-8,
   tolMu: 1e-7,
+  /** Largest change of a Cepheid's core membership between iterations at convergence. */
+  tolMembership: 1e-6,
   /** Largest step (mag) of a field star's linearisation point per iteration. */
   maxMuStep: 1.0,
   /** Finite-difference steps for alpha and beta. */
@@ -70,10 +81,15 @@ const START_SCATTER = { cepheid: 0.08, supernova: 0.1 };
 export interface RowResidual {
   ref: RowRef;
   residual: number;
-  /** Total variance of the row (measurement, scatter, redshift terms). */
+  /** Total variance of the row (measurement, scatter, redshift terms), before any mixture weight. */
   variance: number;
   standardised: number;
   rejected: boolean;
+  /** Core membership of the mixture likelihood (Cepheids, cepheidMixture.ts); 1 for other rows. */
+  membership: number;
+  /** Expected blend light E[z u] taken out of the row (mag) and its variance; 0 for other rows. */
+  blendShift: number;
+  blendShiftVariance: number;
 }
 
 export interface GlobalFitResult {
@@ -89,6 +105,10 @@ export interface GlobalFitResult {
   /** Covariance of the free ones of (alpha, beta) and d q / d(alpha, beta). */
   standardisation: { names: ('alpha' | 'beta')[]; cov: number[][]; jacobian: number[][] };
   scatter: { cepheids: number; supernovae: number };
+  /** Standard errors of the scatters: the spread of the moment estimator (scatterStandardError). */
+  scatterErr: { cepheids: number; supernovae: number };
+  /** Fitted fraction of blended Cepheids and their mean brightening (mag); null without Cepheids. */
+  blend: { fraction: number; meanOffset: number } | null;
   chi2: number;
   dof: number;
   nData: number;
@@ -97,6 +117,8 @@ export interface GlobalFitResult {
   residuals: RowResidual[];
   /** Rows rejected as outliers (in the order they were rejected). */
   rejected: RowResidual[];
+  /** Cepheid rows kept but down-weighted by the mixture (membership below MIXTURE.reportBelow), by membership. */
+  downweighted: RowResidual[];
   /** Variance of g^T q split by source, including 'sn_standardisation'. */
   budget(g: ArrayLike<number>): Map<string, number>;
   /** Linearisation points of the field stars at convergence. */
@@ -237,19 +259,87 @@ function standardisationStep(prep: PreparedModel, state: FitState, free: [boolea
   return { alpha: state.alpha + t * da, beta: state.beta + t * db, hessian: h };
 }
 
+/** Sums over one group's rows for the scatter equation. */
 interface GroupStats {
+  /** sum E[r^2] / v */
   sumChi2: number;
+  /** sum (1 - h) */
   sumOneMinusH: number;
+  /** sum (1 - h) / v */
   sumOneMinusHOverV: number;
   n: number;
+  /** Fitted non-linear parameters determined by this group's rows (alpha, beta for the supernovae). */
+  extraParams: number;
 }
 
-/** Newton update of an intrinsic scatter from sum r^2/v = sum (1 - h). */
+function emptyStats(extraParams: number): GroupStats {
+  return { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0, extraParams };
+}
+
+/** Newton update of an intrinsic scatter from sum E[r^2]/v = sum (1 - h) - m. */
 function updatedScatter(s: number, st: GroupStats): number {
-  if (st.n === 0 || st.sumOneMinusH <= 0) return s;
+  const target = st.sumOneMinusH - st.extraParams;
+  if (st.n === 0 || target <= 0) return s;
   // d(sum r^2/v)/d(s^2) ~ -sum (1 - h)/v, since E[r^2] = (1 - h) v
-  const s2 = s * s + (st.sumChi2 - st.sumOneMinusH) / st.sumOneMinusHOverV;
+  const s2 = s * s + (st.sumChi2 - target) / st.sumOneMinusHOverV;
   return Math.sqrt(Math.max(0, s2));
+}
+
+/**
+ * Standard error of a scatter from the moment estimator's own spread. With T = sum r^2/v,
+ * Var(T) = 2 tr((D C)^2) for Gaussian residuals (C their covariance, D = diag(1/v)), which for a
+ * group that alone determines its parameters is 2 (sum (1 - h) - m); dT/d(s^2) = -sum (1 - h)/v.
+ * So Var(s^2) = 2 (sum (1 - h) - m) / (sum (1 - h)/v)^2 and err(s) = err(s^2) / (2 s).
+ * The Fisher information of s^2 (sum 1/(2 v^2)), used before, is the spread of the maximum-likelihood
+ * estimator: it counts no fitted parameter and weights the rows by 1/v^2 where this estimator
+ * weights them by 1/v, so it understated this estimator's error (content/methods/global-fit.md).
+ * At s = 0 the delta method fails; the error of s^2 is then given as sqrt(err(s^2)).
+ */
+export function scatterStandardError(s: number, st: GroupStats): number {
+  const dof = st.sumOneMinusH - st.extraParams;
+  if (st.n === 0 || dof <= 0 || st.sumOneMinusHOverV <= 0) return 0;
+  const errS2 = Math.sqrt((2 * dof) / st.sumOneMinusHOverV ** 2);
+  return s > 0 ? errS2 / (2 * s) : Math.sqrt(errS2);
+}
+
+/** The scatter equation's sums over the diagonal blocks of a solved model. */
+function groupStats(model: BuiltModel, sol: GlsSolution, state: FitState, snExtraParams: number): Record<'cep' | 'sn', GroupStats> {
+  const cov = sol.factor.blocks();
+  const stats: Record<'cep' | 'sn', GroupStats> = { cep: emptyStats(0), sn: emptyStats(snExtraParams) };
+  model.problem.blocks.forEach((block, b) => {
+    if (!block.diagonal) return;
+    const group = groupOf(model.refs[b][0]?.table ?? '');
+    if (!group) return;
+    // Cepheid rows: r is already W + E[z u] - model; E[(r - z u)^2] adds Var(z u) (cepheidMixture.ts)
+    const r = blockResiduals(block, sol.q);
+    const v = cachedVariance(block) as number[];
+    const h = blockLeverages(block, cov);
+    const gs = stats[group];
+    const blendVar = group === 'cep' ? state.cepheidBlend?.shiftVariance : undefined;
+    for (let i = 0; i < r.length; i++) {
+      const extra = blendVar ? blendVar[model.refs[b][i]!.index]! : 0;
+      gs.sumChi2 += (r[i] * r[i] + extra) / v[i];
+      gs.sumOneMinusH += 1 - h[i];
+      gs.sumOneMinusHOverV += (1 - h[i]) / v[i];
+      gs.n++;
+    }
+  });
+  return stats;
+}
+
+/** Residuals W - model (no blend light taken out) and variances of every Cepheid row not rejected, at q. */
+function cepheidResiduals(prep: PreparedModel, state: FitState, q: ArrayLike<number>): { index: number[]; r: Float64Array; v: Float64Array } {
+  const rows = prep.cepheid.filter((c) => !state.rejected.has(c.key));
+  const s2 = state.scatterCepheid ** 2;
+  const r = new Float64Array(rows.length);
+  const v = new Float64Array(rows.length);
+  rows.forEach((c, i) => {
+    let m = 0;
+    for (let k = 0; k < c.row.idx.length; k++) m += c.row.coef[k]! * q[c.row.idx[k]!]!;
+    r[i] = c.w - m;
+    v[i] = c.wErr2 + s2;
+  });
+  return { index: rows.map((c) => c.index), r, v };
 }
 
 function groupOf(table: string): 'cep' | 'sn' | null {
@@ -258,19 +348,26 @@ function groupOf(table: string): 'cep' | 'sn' | null {
   return null;
 }
 
-function residualsOf(model: BuiltModel, sol: GlsSolution, rejected: ReadonlySet<string>): RowResidual[] {
+function residualsOf(model: BuiltModel, sol: GlsSolution, state: FitState, rejected: ReadonlySet<string> = state.rejected): RowResidual[] {
   const out: RowResidual[] = [];
   model.problem.blocks.forEach((block, b) => {
     const r = blockResiduals(block, sol.q);
     const v = cachedVariance(block);
     const diag = block.diagonal ? (v as number[]) : (v as number[][]).map((row, i) => row[i]);
+    const blend = model.refs[b][0]?.table === 'cepheids' ? state.cepheidBlend : undefined;
     model.refs[b].forEach((ref, i) => {
+      // a Cepheid's published residual is W - model, with its expected blend light left in
+      const shift = blend ? blend.shift[ref.index]! : 0;
+      const residual = r[i] - shift;
       out.push({
         ref,
-        residual: r[i],
+        residual,
         variance: diag[i],
-        standardised: r[i] / Math.sqrt(diag[i]),
+        standardised: residual / Math.sqrt(diag[i]),
         rejected: rejected.has(rowKey(ref.table, ref.id)),
+        membership: blend ? blend.membership[ref.index]! : 1,
+        blendShift: shift,
+        blendShiftVariance: blend ? blend.shiftVariance[ref.index]! : 0,
       });
     });
   });
@@ -300,7 +397,18 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     scatterSupernova: hasSn ? START_SCATTER.supernova : 0,
     linearisedMu: initialFieldMu(input),
     rejected: new Set<string>(),
+    cepheidBlend: input.cepheids.length
+      ? {
+          membership: new Float64Array(input.cepheids.length).fill(1),
+          shift: new Float64Array(input.cepheids.length),
+          shiftVariance: new Float64Array(input.cepheids.length),
+        }
+      : undefined,
   };
+  let blendFraction: number = MIXTURE.startFraction;
+  let blendMeanOffset: number = MIXTURE.startMeanOffsetMag;
+  // alpha and beta are fitted from the supernova rows: they take degrees of freedom from that group
+  const snExtraParams = (free[0] ? 1 : 0) + (free[1] ? 1 : 0);
   const rejectedOrder: string[] = [];
   let converged = false;
   let iterations = 0;
@@ -329,30 +437,28 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
         const mu0 = state.linearisedMu[i];
         return mu0 + Math.max(-LIMITS.maxMuStep, Math.min(LIMITS.maxMuStep, mu - mu0));
       });
-      // 2. intrinsic scatters from sum r^2/v = n - sum h, per group
-      const cov = sol.factor.blocks();
-      const stats: Record<'cep' | 'sn', GroupStats> = {
-        cep: { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0 },
-        sn: { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0 },
-      };
-      model.problem.blocks.forEach((block, b) => {
-        if (!block.diagonal) return;
-        const group = groupOf(model.refs[b][0]?.table ?? '');
-        if (!group) return;
-        const r = blockResiduals(block, sol.q);
-        const v = cachedVariance(block) as number[];
-        const h = blockLeverages(block, cov);
-        const gs = stats[group];
-        for (let i = 0; i < r.length; i++) {
-          gs.sumChi2 += (r[i] * r[i]) / v[i];
-          gs.sumOneMinusH += 1 - h[i];
-          gs.sumOneMinusHOverV += (1 - h[i]) / v[i];
-          gs.n++;
-        }
-      });
+      // 2. intrinsic scatters from the moment equation, per group
+      const stats = groupStats(model, sol, state, snExtraParams);
       const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep);
       const scatterSupernova = updatedScatter(state.scatterSupernova, stats.sn);
-      let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova };
+      // 2b. Cepheid mixture, one EM step at the current residuals (cepheidMixture.ts)
+      let cepheidBlend = state.cepheidBlend;
+      let dMembership = 0;
+      if (cepheidBlend) {
+        const cr = cepheidResiduals(prep, { ...state, scatterCepheid }, sol.q);
+        const em = mixtureStep(cr.r, cr.v, blendFraction, blendMeanOffset);
+        const old = cepheidBlend;
+        cepheidBlend = { membership: Float64Array.from(old.membership), shift: Float64Array.from(old.shift), shiftVariance: Float64Array.from(old.shiftVariance) };
+        cr.index.forEach((ci, k) => {
+          dMembership = Math.max(dMembership, Math.abs(em.membership[k]! - old.membership[ci]!), Math.abs(em.shift[k]! - old.shift[ci]!));
+          cepheidBlend!.membership[ci] = em.membership[k]!;
+          cepheidBlend!.shift[ci] = em.shift[k]!;
+          cepheidBlend!.shiftVariance[ci] = em.shiftVariance[k]!;
+        });
+        blendFraction = em.fraction;
+        blendMeanOffset = em.meanOffset;
+      }
+      let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova, cepheidBlend };
       // 3. alpha, beta
       if (free[0] || free[1]) {
         const step = standardisationStep(prep, next, free, st);
@@ -365,6 +471,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
         Math.abs(next.beta - state.beta) < LIMITS.tolBeta &&
         Math.abs(next.scatterCepheid ** 2 - state.scatterCepheid ** 2) < LIMITS.tolScatterSq &&
         Math.abs(next.scatterSupernova ** 2 - state.scatterSupernova ** 2) < LIMITS.tolScatterSq &&
+        dMembership < LIMITS.tolMembership &&
         dMu < LIMITS.tolMu;
       state = next;
       if (done) {
@@ -376,10 +483,12 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     // outlier rejection on the data rows (Cepheids and supernovae), all beyond the threshold at once
     const model = buildModel(prep, state);
     const sol = solveOrExplain(model);
-    const res = residualsOf(model, sol, state.rejected);
+    const res = residualsOf(model, sol, state);
     const clip = analysis.clip_sigma;
+    // Cepheids: only too-faint rows (the mixture models the too-bright ones)
+    const beyond = (r: RowResidual) => (r.ref.table === 'cepheids' ? r.standardised > clip : Math.abs(r.standardised) > clip);
     const candidates = res
-      .filter((r) => groupOf(r.ref.table) && Math.abs(r.standardised) > clip)
+      .filter((r) => groupOf(r.ref.table) && beyond(r))
       .sort((a, b) => Math.abs(b.standardised) - Math.abs(a.standardised) || a.ref.line - b.ref.line);
     const newlyRejected: string[] = [];
     const count: Record<string, number> = {};
@@ -424,9 +533,13 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     const k = names.indexOf(name);
     return k < 0 ? 0 : Math.sqrt(covTheta[k][k]);
   };
-  const residuals = residualsOf(model, sol, state.rejected);
+  const residuals = residualsOf(model, sol, state);
   // rejected rows are not in the model: compute their residuals against the final solution
   const rejectedRows = rejectedResiduals(prep, state, sol, rejectedOrder);
+  const downweighted = residuals
+    .filter((r) => r.ref.table === 'cepheids' && r.membership < MIXTURE.reportBelow)
+    .sort((a, b) => a.membership - b.membership || a.ref.line - b.ref.line);
+  const finalStats = groupStats(model, sol, state, snExtraParams);
   const nData = model.problem.blocks.reduce((s, b) => s + b.rows.length, 0);
   const nScatter = (input.cepheids.length ? 1 : 0) + (hasSn ? 1 : 0);
   return {
@@ -438,6 +551,11 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     beta: { value: state.beta, err: thetaErr('beta'), fixed: !free[1] },
     standardisation: { names, cov: covTheta, jacobian },
     scatter: { cepheids: state.scatterCepheid, supernovae: state.scatterSupernova },
+    scatterErr: {
+      cepheids: scatterStandardError(state.scatterCepheid, finalStats.cep),
+      supernovae: scatterStandardError(state.scatterSupernova, finalStats.sn),
+    },
+    blend: input.cepheids.length ? { fraction: blendFraction, meanOffset: blendMeanOffset } : null,
     chi2: sol.chi2,
     dof: nData - p - names.length - nScatter,
     nData,
@@ -445,6 +563,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     iterations,
     residuals,
     rejected: rejectedRows,
+    downweighted,
     fieldStarMu: state.linearisedMu,
     model,
     budget(g: ArrayLike<number>) {
@@ -586,7 +705,7 @@ function rejectedResiduals(
   if (order.length === 0) return [];
   // rebuild the model with nothing rejected to get the rows, then keep the rejected ones
   const full = buildModel(prep, { ...state, rejected: new Set() });
-  const all = residualsOf(full, sol, state.rejected);
+  const all = residualsOf(full, sol, state);
   const byKey = new Map(all.map((r) => [rowKey(r.ref.table, r.ref.id), r]));
   return order.map((k) => byKey.get(k)!).filter(Boolean);
 }

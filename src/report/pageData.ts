@@ -128,9 +128,19 @@ function rejectedTable(r: Results, id: string, tables: readonly string[], dl: Pa
       ['file', 'File', null, false],
       ['line', 'Line', null, true],
       ['residual', 'Residual', 'σ', true],
+      ['treatment', 'Treatment', null, false],
+      ['membership', 'Core membership', null, true],
     ],
-    rows.map((x) => [x.id, x.system ?? '—', fileOf(r, x.table), String(x.line), fixed(x.residual_sigma, 1)]),
-    { caption: 'Rows removed by the outlier rule (standardised residual beyond the clipping threshold); the line is the row’s line in its input file.', limit: TABLE_LIMIT, marks: rows.map(() => 'rejected'), downloads: dl('rejected') },
+    rows.map((x) => [
+      x.id,
+      x.system ?? '—',
+      fileOf(r, x.table),
+      String(x.line),
+      fixed(x.residual_sigma, 1),
+      x.treatment === 'clipped' ? 'removed (clipping)' : 'down-weighted (blend mixture)',
+      x.membership === null ? '—' : fixed(x.membership, 3),
+    ]),
+    { caption: 'Rows removed by the outlier rule (standardised residual beyond the clipping threshold; for Cepheids only the too-faint side), and Cepheids kept but down-weighted by the mixture likelihood because they are probably blended (core membership below 0.5; the row enters with its membership as a weight); the line is the row’s line in its input file.', limit: TABLE_LIMIT, marks: rows.map(() => 'rejected'), downloads: dl('rejected') },
   );
 }
 
