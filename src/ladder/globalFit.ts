@@ -9,13 +9,13 @@
  *    in the degrees of freedom (content/methods/global-fit.md); E[r^2] = r^2 except for the
  *    Cepheids' expected blend light;
  *  - Cepheid rows carry a mixture likelihood with a one-sided blend component (cepheidMixture.ts):
- *    one expectation-maximisation step per iteration (memberships, expected blend light, the
- *    blend fraction and mean offset);
+ *    expectation-maximisation at each iteration's residuals (memberships, expected blend light,
+ *    the blend fraction);
  *  - alpha and beta (when not fixed) minimise the chi-square with their variance terms inside
  *    it (an effective-variance estimator; freezing the weights biases beta low, content/methods/global-fit.md);
  *  - outliers beyond clip_sigma standardised residuals are rejected, iteratively, all rows
- *    above the threshold at once, until none is left (deterministic); Cepheids only on the
- *    faint side (the bright side is the mixture's).
+ *    above the threshold at once, until none is left (deterministic); a Cepheid's residual is
+ *    taken with its expected blend light out (a blend the mixture explains is not an outlier).
  * The covariance of alpha and beta comes from a sandwich (delta-method) estimator and is
  * propagated to every parameter through the fit's Jacobian.
  */
@@ -53,7 +53,7 @@ import {
 } from './globalModel.ts';
 import { correctedMagnitudeVarianceGradient, TYPICAL_ALPHA, TYPICAL_BETA } from './supernovae.ts';
 import { distanceModulusFromParallaxMas } from './distance.ts';
-import { MIXTURE, mixtureStep } from './cepheidMixture.ts';
+import { MIXTURE, mixtureAtResiduals } from './cepheidMixture.ts';
 
 /** Convergence and safety limits of the iteration (numerical choices, no physical meaning). */
 const LIMITS = {
@@ -107,8 +107,8 @@ export interface GlobalFitResult {
   scatter: { cepheids: number; supernovae: number };
   /** Standard errors of the scatters: the spread of the moment estimator (scatterStandardError). */
   scatterErr: { cepheids: number; supernovae: number };
-  /** Fitted fraction of blended Cepheids and their mean brightening (mag); null without Cepheids. */
-  blend: { fraction: number; meanOffset: number } | null;
+  /** Fitted fraction of blended Cepheids (of the rows in galaxies); null without such rows. */
+  blend: { fraction: number } | null;
   chi2: number;
   dof: number;
   nData: number;
@@ -327,9 +327,10 @@ function groupStats(model: BuiltModel, sol: GlsSolution, state: FitState, snExtr
   return stats;
 }
 
-/** Residuals W - model (no blend light taken out) and variances of every Cepheid row not rejected, at q. */
+/** Residuals W - model (no blend light taken out) and variances of the blendable Cepheid rows not rejected, at q. */
 function cepheidResiduals(prep: PreparedModel, state: FitState, q: ArrayLike<number>): { index: number[]; r: Float64Array; v: Float64Array } {
-  const rows = prep.cepheid.filter((c) => !state.rejected.has(c.key));
+  const blendable = prep.input.blendSystems;
+  const rows = prep.cepheid.filter((c) => !state.rejected.has(c.key) && blendable?.has(prep.input.cepheids[c.index]!.system));
   const s2 = state.scatterCepheid ** 2;
   const r = new Float64Array(rows.length);
   const v = new Float64Array(rows.length);
@@ -397,7 +398,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     scatterSupernova: hasSn ? START_SCATTER.supernova : 0,
     linearisedMu: initialFieldMu(input),
     rejected: new Set<string>(),
-    cepheidBlend: input.cepheids.length
+    cepheidBlend: input.cepheids.some((c) => input.blendSystems?.has(c.system))
       ? {
           membership: new Float64Array(input.cepheids.length).fill(1),
           shift: new Float64Array(input.cepheids.length),
@@ -406,7 +407,6 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
       : undefined,
   };
   let blendFraction: number = MIXTURE.startFraction;
-  let blendMeanOffset: number = MIXTURE.startMeanOffsetMag;
   // alpha and beta are fitted from the supernova rows: they take degrees of freedom from that group
   const snExtraParams = (free[0] ? 1 : 0) + (free[1] ? 1 : 0);
   const rejectedOrder: string[] = [];
@@ -441,12 +441,12 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
       const stats = groupStats(model, sol, state, snExtraParams);
       const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep);
       const scatterSupernova = updatedScatter(state.scatterSupernova, stats.sn);
-      // 2b. Cepheid mixture, one EM step at the current residuals (cepheidMixture.ts)
+      // 2b. Cepheid mixture: EM at the current residuals (cepheidMixture.ts)
       let cepheidBlend = state.cepheidBlend;
       let dMembership = 0;
       if (cepheidBlend) {
         const cr = cepheidResiduals(prep, { ...state, scatterCepheid }, sol.q);
-        const em = mixtureStep(cr.r, cr.v, blendFraction, blendMeanOffset);
+        const em = mixtureAtResiduals(cr.r, cr.v, blendFraction);
         const old = cepheidBlend;
         cepheidBlend = { membership: Float64Array.from(old.membership), shift: Float64Array.from(old.shift), shiftVariance: Float64Array.from(old.shiftVariance) };
         cr.index.forEach((ci, k) => {
@@ -456,7 +456,6 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
           cepheidBlend!.shiftVariance[ci] = em.shiftVariance[k]!;
         });
         blendFraction = em.fraction;
-        blendMeanOffset = em.meanOffset;
       }
       let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova, cepheidBlend };
       // 3. alpha, beta
@@ -485,8 +484,8 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     const sol = solveOrExplain(model);
     const res = residualsOf(model, sol, state);
     const clip = analysis.clip_sigma;
-    // Cepheids: only too-faint rows (the mixture models the too-bright ones)
-    const beyond = (r: RowResidual) => (r.ref.table === 'cepheids' ? r.standardised > clip : Math.abs(r.standardised) > clip);
+    // Cepheids that may be blended: judged with their expected blend light taken out (the mixture's)
+    const beyond = (r: RowResidual) => Math.abs((r.residual + r.blendShift) / Math.sqrt(r.variance)) > clip;
     const candidates = res
       .filter((r) => groupOf(r.ref.table) && beyond(r))
       .sort((a, b) => Math.abs(b.standardised) - Math.abs(a.standardised) || a.ref.line - b.ref.line);
@@ -555,7 +554,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
       cepheids: scatterStandardError(state.scatterCepheid, finalStats.cep),
       supernovae: scatterStandardError(state.scatterSupernova, finalStats.sn),
     },
-    blend: input.cepheids.length ? { fraction: blendFraction, meanOffset: blendMeanOffset } : null,
+    blend: state.cepheidBlend ? { fraction: blendFraction } : null,
     chi2: sol.chi2,
     dof: nData - p - names.length - nScatter,
     nData,

@@ -36,6 +36,12 @@ export interface GlobalFitInput {
   cepheids: CepheidRow[];
   /** Systems of kind `field`: their Cepheids each get their own distance. */
   fieldSystems: ReadonlySet<string>;
+  /**
+   * Systems whose Cepheids may be blended (kind `galaxy`: crowded fields at extragalactic
+   * distances); their rows get the mixture likelihood of cepheidMixture.ts. Cepheids of clusters
+   * and field Cepheids are resolved and keep the Gaussian likelihood. Absent: none.
+   */
+  blendSystems?: ReadonlySet<string>;
   calibrators: SnCalibratorRow[];
   hubbleFlow: HubbleFlowSupernova[];
   /** Whether the host-mass step is a parameter; when absent, decided from the supernovae (massStep.ts). */
