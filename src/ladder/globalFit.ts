@@ -96,7 +96,7 @@ export interface GlobalFitResult {
   paramNames: string[];
   /** Best-fit values, in paramNames order. */
   q: Float64Array;
-  /** Covariance of q including the propagated uncertainty of alpha and beta (flat p x p). */
+  /** Covariance of q including the propagated uncertainty of alpha, beta and the intrinsic scatters (flat p x p). */
   cov: Float64Array;
   /** Covariance of q at fixed alpha, beta (the GLS part). */
   covGls: Float64Array;
@@ -528,6 +528,24 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
       cov[i * p + j] += s;
     }
   }
+  // the scatters' own uncertainty, carried into every parameter: q moves with the weights
+  // (first order: d q / d s times err(s), the scatters independent of q and of each other)
+  const finalStats = groupStats(model, sol, state, snExtraParams);
+  const scatterErr = {
+    cepheids: scatterStandardError(state.scatterCepheid, finalStats.cep),
+    supernovae: scatterStandardError(state.scatterSupernova, finalStats.sn),
+  };
+  const scatterTerms = (
+    [
+      ['scatterCepheid', scatterErr.cepheids],
+      ['scatterSupernova', scatterErr.supernovae],
+    ] as const
+  )
+    .filter(([, e]) => e > 0)
+    .map(([which, e]) => ({ err: e, jacobian: scatterJacobian(prep, state, which, e) }));
+  for (const t of scatterTerms) {
+    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) cov[i * p + j] += t.jacobian[i] * t.err ** 2 * t.jacobian[j];
+  }
   const thetaErr = (name: 'alpha' | 'beta') => {
     const k = names.indexOf(name);
     return k < 0 ? 0 : Math.sqrt(covTheta[k][k]);
@@ -538,7 +556,6 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
   const downweighted = residuals
     .filter((r) => r.ref.table === 'cepheids' && r.membership < MIXTURE.reportBelow)
     .sort((a, b) => a.membership - b.membership || a.ref.line - b.ref.line);
-  const finalStats = groupStats(model, sol, state, snExtraParams);
   const nData = model.problem.blocks.reduce((s, b) => s + b.rows.length, 0);
   const nScatter = (input.cepheids.length ? 1 : 0) + (hasSn ? 1 : 0);
   return {
@@ -550,10 +567,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     beta: { value: state.beta, err: thetaErr('beta'), fixed: !free[1] },
     standardisation: { names, cov: covTheta, jacobian },
     scatter: { cepheids: state.scatterCepheid, supernovae: state.scatterSupernova },
-    scatterErr: {
-      cepheids: scatterStandardError(state.scatterCepheid, finalStats.cep),
-      supernovae: scatterStandardError(state.scatterSupernova, finalStats.sn),
-    },
+    scatterErr,
     blend: state.cepheidBlend ? { fraction: blendFraction } : null,
     chi2: sol.chi2,
     dof: nData - p - names.length - nScatter,
@@ -578,9 +592,30 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
         }
       }
       if (names.length) parts.set('sn_standardisation', s);
+      let sc = 0;
+      for (const t of scatterTerms) {
+        let gj = 0;
+        for (let i = 0; i < p; i++) gj += g[i] * t.jacobian[i];
+        sc += (gj * t.err) ** 2;
+      }
+      if (scatterTerms.length) parts.set('intrinsic_scatter', sc);
       return parts;
     },
   };
+}
+
+/**
+ * d q / d s for one intrinsic scatter, by central differences of half its standard error either
+ * side (everything else held: alpha, beta, linearisation, rejected rows, blend light).
+ */
+function scatterJacobian(prep: PreparedModel, state: FitState, which: 'scatterCepheid' | 'scatterSupernova', err: number): number[] {
+  const h = 0.5 * err;
+  const at = (d: number) => solveOrExplain(buildModel(prep, { ...state, [which]: Math.max(0, state[which] + d) })).q;
+  const lo = Math.max(0, state[which] - h);
+  const qp = at(h);
+  const qm = at(lo - state[which]);
+  const step = state[which] + h - lo;
+  return Array.from(qp, (x, i) => (x - qm[i]) / step);
 }
 
 /** d q / d theta by central differences at fixed scatters and linearisation. */
