@@ -54,7 +54,11 @@ const LOG_SQRT_2PI = 0.5 * Math.log(2 * Math.PI);
 /** ln Phi(z), the standard normal CDF, accurate in the far lower tail (asymptotic series there). */
 export function logNormalCdf(z: number): number {
   // Phi(z) = Q(1/2, z^2/2) / 2 for z <= 0 (Q: regularised upper incomplete gamma, erfc(x) = Q(1/2, x^2))
-  if (z < -35) return -0.5 * z * z - Math.log(-z) - LOG_SQRT_2PI + Math.log1p(-1 / (z * z));
+  if (z < -35) {
+    // Phi(z) = phi(z)/(-z) (1 - 1/z^2 + 3/z^4 - 15/z^6 + 105/z^8 ...) (Abramowitz & Stegun 26.2.12)
+    const x = 1 / (z * z);
+    return -0.5 * z * z - Math.log(-z) - LOG_SQRT_2PI + Math.log1p(x * (-1 + x * (3 + x * (-15 + x * 105))));
+  }
   if (z <= 0) return Math.log(0.5 * upperRegularizedGamma(0.5, 0.5 * z * z));
   return Math.log1p(-0.5 * upperRegularizedGamma(0.5, 0.5 * z * z));
 }
