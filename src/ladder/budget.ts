@@ -23,7 +23,6 @@ export const BUDGET_LABELS: Record<string, string> = {
   sn_calibrators: 'Supernova calibrators',
   sn_standardisation: 'Supernova standardisation (alpha, beta)',
   hubble_flow: 'Hubble-flow supernovae and peculiar velocities',
-  intrinsic_scatter: 'Uncertainty of the fitted intrinsic scatters',
 };
 
 const ORDER = Object.keys(BUDGET_LABELS);
