@@ -319,14 +319,21 @@ function cepheidRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note' 
   if (rej) tables.push(rej);
   const a = r.analysis;
   const nRej = ceph.filter((c) => c.rejected).length;
+  // the blend mixture (content/methods/cepheids.md): rows below one half core membership, and the expected number of blends
+  const nBlend = r.rejected.filter((x) => x.table === 'cepheids' && x.treatment === 'downweighted').length;
+  const expectedBlends = ceph.reduce((sum, c) => sum + (c.rejected ? 0 : 1 - c.membership), 0);
   return {
     reached: ceph.length > 0,
-    status: ceph.length > 0 ? `${int(ceph.length)} Cepheids in ${systems.length} systems; ${int(nRej)} rejected.` : 'No Cepheids in this release.',
+    status:
+      ceph.length > 0
+        ? `${int(ceph.length)} Cepheids in ${systems.length} systems; ${int(nRej)} rejected; ${int(nBlend)} kept as probable blends (core membership below 0.5).`
+        : 'No Cepheids in this release.',
     keyValues: [
       param(r, 'M_W', 'M_W at the pivot period'),
       param(r, 'b_W', 'Slope b_W'),
       param(r, 'Z_W', 'Metallicity term Z_W'),
       kv('Intrinsic scatter', `${fixed(r.fit.scatter.cepheids, 3)} mag`),
+      kv('Expected number of blends (sum of 1 − core membership)', fixed(expectedBlends, 1)),
       kv('Pivot log P', analysisValueText(a.pl_pivot_logp)),
       kv('Wesenheit coefficient R', analysisValueText(a.wesenheit_r)),
     ].filter(present),
