@@ -123,7 +123,7 @@ export interface GlobalFitResult {
   budget(g: ArrayLike<number>): Map<string, number>;
   /**
    * Variance of g^T q from the uncertainty of the fitted intrinsic scatters (d q / d s err(s),
-   * both scatters, in quadrature). Not part of cov: it is negligible (see fitGlobal); computed on demand.
+   * both scatters, in quadrature). Not part of cov: it is negligible (see fitGlobal).
    */
   scatterVariance(g: ArrayLike<number>): number;
   /** Linearisation points of the field stars at convergence. */
@@ -544,16 +544,16 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     cepheids: scatterStandardError(state.scatterCepheid, finalStats.cep),
     supernovae: scatterStandardError(state.scatterSupernova, finalStats.sn),
   };
-  let scatterTerms: { err: number; jacobian: number[] }[] | null = null;
+  // computed here (four solves) so that the result keeps no reference to the prepared model
+  const scatterTerms = (
+    [
+      ['scatterCepheid', scatterErr.cepheids],
+      ['scatterSupernova', scatterErr.supernovae],
+    ] as const
+  )
+    .filter(([, e]) => e > 0)
+    .map(([which, e]) => ({ err: e, jacobian: scatterJacobian(prep, state, which, e) }));
   const scatterVariance = (g: ArrayLike<number>): number => {
-    scatterTerms ??= (
-      [
-        ['scatterCepheid', scatterErr.cepheids],
-        ['scatterSupernova', scatterErr.supernovae],
-      ] as const
-    )
-      .filter(([, e]) => e > 0)
-      .map(([which, e]) => ({ err: e, jacobian: scatterJacobian(prep, state, which, e) }));
     let sc = 0;
     for (const t of scatterTerms) {
       let gj = 0;
