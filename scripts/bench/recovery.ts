@@ -9,5 +9,5 @@ const arg = (name: string) => Number(process.argv[process.argv.indexOf(`--${name
 const seeds = Array.from({ length: arg('seeds') }, (_, i) => 1000 + i);
 const workers = arg('workers');
 const t = performance.now();
-await recoverSeeds(seeds, workers);
+await recoverSeeds(seeds, {}, workers);
 console.log(JSON.stringify({ seeds: seeds.length, workers, ms: performance.now() - t }));

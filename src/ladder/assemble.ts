@@ -62,14 +62,6 @@ export function canonicalJson(value: unknown): string {
   return JSON.stringify(value);
 }
 
-/** Approximate standard error of an intrinsic scatter from the Fisher information of s^2. */
-export function scatterError(s: number, variances: number[]): number {
-  if (variances.length === 0) return 0;
-  const info = 0.5 * variances.reduce((a, v) => a + 1 / (v * v), 0);
-  const errS2 = Math.sqrt(1 / info);
-  return s > 0 ? errS2 / (2 * s) : Math.sqrt(errS2);
-}
-
 export function assembleResults(
   release: Release,
   run: LadderRun,
@@ -100,18 +92,9 @@ export function assembleResults(
       put('alpha', fit.alpha.value, fit.alpha.err, { fixed: fit.alpha.fixed });
       put('beta', fit.beta.value, fit.beta.err, { fixed: fit.beta.fixed });
     }
-    const residualVariances = (tables: string[]) =>
-      fit.residuals.filter((r) => tables.includes(r.ref.table) && !r.rejected).map((r) => r.variance);
-    if (release.cepheids.length) {
-      put('sigma_int_cepheid', fit.scatter.cepheids, scatterError(fit.scatter.cepheids, residualVariances(['cepheids'])));
-    }
-    if (release.snCalibrators.length + release.snHubbleFlow.length > 0) {
-      put(
-        'sigma_int_sn',
-        fit.scatter.supernovae,
-        scatterError(fit.scatter.supernovae, residualVariances(['sn_calibrators', 'sn_hubble_flow'])),
-      );
-    }
+    // errors of the scatters: the spread of their moment estimator (globalFit.ts, scatterStandardError)
+    if (release.cepheids.length) put('sigma_int_cepheid', fit.scatter.cepheids, fit.scatterErr.cepheids);
+    if (release.snCalibrators.length + release.snHubbleFlow.length > 0) put('sigma_int_sn', fit.scatter.supernovae, fit.scatterErr.supernovae);
     if (idx(PARAM.zeta) >= 0) {
       put('parallax_zero_point', analysis.parallax_zero_point + value(PARAM.zeta), err(PARAM.zeta));
     }
@@ -182,10 +165,10 @@ export function assembleResults(
   });
 
   // per-object rows
-  const residualByKey = new Map<string, { residual: number; variance: number; rejected: boolean }>();
+  const residualByKey = new Map<string, { residual: number; variance: number; rejected: boolean; membership: number }>();
   if (fit) {
     for (const r of [...fit.residuals, ...fit.rejected]) {
-      residualByKey.set(`${r.ref.table}:${r.ref.id}`, { residual: r.residual, variance: r.variance, rejected: r.rejected });
+      residualByKey.set(`${r.ref.table}:${r.ref.id}`, { residual: r.residual, variance: r.variance, rejected: r.rejected, membership: r.membership });
     }
   }
   const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
@@ -206,6 +189,7 @@ export function assembleResults(
       abs_w: mi >= 0 ? wm.w - mu : NaN,
       residual: r ? r.residual : NaN,
       rejected: r ? r.rejected : false,
+      membership: r ? r.membership : 1,
     };
   }).filter((c) => Number.isFinite(c.abs_w));
 
@@ -259,12 +243,17 @@ export function assembleResults(
       })
     : [];
 
-  const rejected: Rejection[] = (fit?.rejected ?? []).map((r) => ({
+  const rejected: Rejection[] = [
+    ...(fit?.rejected ?? []).map((r) => ({ r, treatment: 'clipped' as const })),
+    ...(fit?.downweighted ?? []).map((r) => ({ r, treatment: 'downweighted' as const })),
+  ].map(({ r, treatment }) => ({
     table: r.ref.table as Rejection['table'],
     id: r.ref.id,
     system: r.ref.system,
     line: r.ref.line,
     residual_sigma: r.standardised,
+    treatment,
+    membership: r.ref.table === 'cepheids' ? r.membership : null,
   }));
 
   const checks: CheckResult[] = [...run.checks];
@@ -274,10 +263,12 @@ export function assembleResults(
     const ratio = fit.chi2 / fit.dof;
     checks.push({
       id: 'fit-quality',
-      title: 'Global fit quality (chi2 per degree of freedom)',
+      title: 'Global fit chi2 per degree of freedom (about 1 by construction)',
       passed: ratio >= CHI2_PER_DOF_WARN[0] && ratio <= CHI2_PER_DOF_WARN[1],
       severity: 'warning',
-      detail: `chi2/dof = ${ratio.toFixed(3)} (${fit.chi2.toFixed(1)} / ${fit.dof}); expected near 1 because the intrinsic scatters are estimated`,
+      detail:
+        `chi2/dof = ${ratio.toFixed(3)} (${fit.chi2.toFixed(1)} / ${fit.dof}): about 1 by construction, because the intrinsic scatters are fitted to make each group's chi2 match its degrees of freedom. ` +
+        'It is not a test of the fit; the host-scatter check (Bartlett) is the one that can fail.',
     });
     checks.push({
       id: 'outliers',

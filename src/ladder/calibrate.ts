@@ -122,6 +122,8 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
     zeroPointErrMas: release.parallax.length > 0 ? analysis.parallax_zero_point_err : 0,
     cepheids: release.cepheids,
     fieldSystems,
+    // Cepheids in galaxies may be blended (crowding): the fit's mixture likelihood (cepheidMixture.ts)
+    blendSystems: new Set(release.systems.filter((s) => s.kind === 'galaxy').map((s) => s.system)),
     calibrators: release.snCalibrators,
     hubbleFlow: flowInFit,
   });

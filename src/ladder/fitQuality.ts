@@ -4,7 +4,8 @@
  * residuals scatter more (or less) than the others'. This module compares the Cepheid
  * residual variance of every host with the pooled one.
  *
- * Per host h (Cepheid rows kept in the fit): z_i = residual_i / sqrt(total variance_i),
+ * Per host h (Cepheid rows kept in the fit): z_i^2 = E[(residual_i - blend light_i)^2] / total variance_i
+ * (the mixture likelihood's expected blend light taken out, cepheidMixture.ts),
  *   chi2_h = sum z_i^2,   nu_h = n_h - sum of the rows' leverages   (degrees of freedom left
  *   after the fit, the same count the scatter equation uses),   s_h^2 = chi2_h / nu_h.
  * Heterogeneity: Bartlett's test of equal variances (Bartlett 1937, Proc. R. Soc. Lond. A
@@ -62,8 +63,10 @@ export function cepheidHostHomogeneity(fit: GlobalFitResult): HomogeneityTest | 
       if (!res || res.rejected) return;
       const key = ref.system ?? '';
       const g = bySystem.get(key) ?? { n: 0, chi2: 0, leverage: 0 };
+      // the mixture likelihood (cepheidMixture.ts): the expected blend light is taken out of the
+      // residual, as in the fit's scatter equation
       g.n += 1;
-      g.chi2 += res.standardised ** 2;
+      g.chi2 += ((res.residual + res.blendShift) ** 2 + res.blendShiftVariance) / res.variance;
       g.leverage += h[i];
       bySystem.set(key, g);
     });

@@ -12,7 +12,8 @@
  *  - zero point prior: 0 = zeta, variance sigma_Z^2                           [parallax_zero_point]
  *  - field star, in parallax space, linearised at mu0:
  *      parallax_corr = p(mu0) + p'(mu0)(mu - mu0) + zeta, p(mu) = 10^(-0.2 (mu - 10))   [anchors]
- *  - Cepheid: W = mu + M_W + b_W (log P - pivot) + Z_W [O/H]                  [cepheids]
+ *  - Cepheid: W + E[z u] = mu + M_W + b_W (log P - pivot) + Z_W [O/H]       [cepheids]
+ *    (E[z u]: expected blend light of the row, from the mixture likelihood, cepheidMixture.ts)
  *  - calibrator: m_B + alpha x1 - beta c = mu_host + M_B                      [sn_calibrators]
  *  - Hubble flow: m_B + alpha x1 - beta c - 5 log10(c z f) = -5 a_B           [hubble_flow]
  */
@@ -35,6 +36,12 @@ export interface GlobalFitInput {
   cepheids: CepheidRow[];
   /** Systems of kind `field`: their Cepheids each get their own distance. */
   fieldSystems: ReadonlySet<string>;
+  /**
+   * Systems whose Cepheids may be blended (kind `galaxy`: crowded fields at extragalactic
+   * distances); their rows get the mixture likelihood of cepheidMixture.ts. Cepheids of clusters
+   * and field Cepheids are resolved and keep the Gaussian likelihood. Absent: none.
+   */
+  blendSystems?: ReadonlySet<string>;
   calibrators: SnCalibratorRow[];
   hubbleFlow: HubbleFlowSupernova[];
   /** Whether the host-mass step is a parameter; when absent, decided from the supernovae (massStep.ts). */
@@ -51,6 +58,12 @@ export interface FitState {
   linearisedMu: Float64Array;
   /** Keys "<table>:<id>" of rows rejected as outliers. */
   rejected: ReadonlySet<string>;
+  /**
+   * The Cepheid mixture likelihood's current E-step (cepheidMixture.ts), by index into
+   * input.cepheids: each row's core membership, and the expected blend light E[z u] (mag) that
+   * the model takes out of its W, with its variance. Absent: no row is a blend.
+   */
+  cepheidBlend?: { membership: Float64Array; shift: Float64Array; shiftVariance: Float64Array };
 }
 
 export type RowTable = 'priors' | 'zero_point' | 'field_parallax' | 'cepheids' | 'sn_calibrators' | 'sn_hubble_flow';
@@ -326,7 +339,8 @@ export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart
   if (withStatic && cep.length > 0) {
     blocks.push({
       rows: kept.cepheidRows,
-      y: kept.cepheidW,
+      // W with the expected blend light taken out (W + E[z u]: a blend is brighter by u)
+      y: state.cepheidBlend ? cep.map((c) => c.w + state.cepheidBlend!.shift[c.index]!) : kept.cepheidW,
       components: [{ source: 'cepheids', diagonal: cep.map((c) => c.wErr2 + s2c) }],
       diagonal: true,
     });

@@ -11,7 +11,9 @@
  * Model (release format; DEVELOPERS.md, "Conventions"):
  *   parallax = 1000 / d_pc + Z + N(0, parallax_err); the stated Z0 = Z + N(0, parallax_zero_point_err)
  *   V = P(c0) - s [Fe/H] + mu + R_V E + N(0, locus scatter) (- 2.5 log10 2 for a binary),  B-V = c0 + E
- *   W = m_h - R (m_v - m_i) = mu + M_W + b_W (log10 P - pivot) + Z_W [O/H] + N(0, sigma_int)
+ *   W = m_h - R (m_v - m_i) = mu + M_W + b_W (log10 P - pivot) + Z_W [O/H] + N(0, sigma_int),
+ *     and for a blended Cepheid (a Cepheid in a galaxy, with probability RECOVERY_BLENDS.fraction)
+ *     m_h, m_v and m_i all brighter by u ~ U(offsetRangeMag), so W brighter by u
  *   m_b + alpha x1 - beta c = mu + M_B + N(0, sigma_int_sn), with (m_b, x1, c) noise from the row's covariance
  *   Hubble flow: mu + M_B = 5 log10(c z f(z)) - 5 a_B, z_obs = z + v_pec / c + N(0, z_err), v_pec ~ N(0, sigma_pec)
  *
@@ -41,7 +43,17 @@ export type ErrorColumn = 'parallax_err' | 'color_err' | 'mag_err' | 'm_h_err' |
 
 export interface SimulateOptions {
   statedErrorFactor?: Partial<Record<ErrorColumn, number>>;
+  /** Blended Cepheids (default RECOVERY_BLENDS; fraction 0 switches them off). */
+  blends?: { fraction: number; offsetRangeMag: readonly [number, number] };
 }
+
+/**
+ * Blends drawn into every simulated release: a few per cent of the Cepheids in galaxies (kind
+ * `galaxy`: crowded fields), 0.3 to 1 mag too bright in every band, the rates real data show
+ * (from memory, no single source). Recovery runs with them so that it sees what they do to H0;
+ * the fit models them (src/ladder/cepheidMixture.ts), but is not told this fraction.
+ */
+export const RECOVERY_BLENDS = { fraction: 0.02, offsetRangeMag: [0.3, 1.0] as readonly [number, number] };
 
 /**
  * Rows resample their errors from the rows within this many places either side of their own,
@@ -182,21 +194,32 @@ export function simulateRelease(release: Release, truth: RecoveryTruth, seed: nu
     };
   });
 
-  // Cepheids: the observed colour m_v - m_i of the row is kept as the true colour.
+  // Cepheids: the observed colour m_v - m_i of the row is kept as the true colour. Blends come from
+  // a stream of their own, so switching them off leaves every other draw as it was.
+  const blends = options.blends ?? RECOVERY_BLENDS;
+  const bRng = stream('cepheid-blends');
+  const galaxies = new Set(release.systems.filter((s) => s.kind === 'galaxy').map((s) => s.system));
+  const blendOffset = release.cepheids.map((row) => {
+    if (!galaxies.has(row.system) || blends.fraction <= 0) return 0;
+    const blended = bRng.chance(blends.fraction);
+    const u = blends.offsetRangeMag[0] + (blends.offsetRangeMag[1] - blends.offsetRangeMag[0]) * bRng.uniform();
+    return blended ? -u : 0;
+  });
   const cRng = stream('cepheids');
   const cDonor = errorDonors(cRng, release.cepheids, (r) => r.system, (r) => r.periodDays);
   const cepheids: CepheidRow[] = release.cepheids.map((row, i) => {
     const mu = fieldSystems.has(row.system) ? need(truth.fieldStarMu, row.star, 'distance modulus of the field Cepheid') : need(truth.systemMu, row.system, 'distance modulus of system');
     const w = mu + truth.mW + truth.bW * (Math.log10(row.periodDays) - a.pl_pivot_logp) + truth.zW * row.oh + cRng.gauss(0, truth.sigmaIntCepheid);
-    const mhTrue = w + a.wesenheit_r * (row.mV - row.mI);
+    // a blend brightens every band by the same amount: the colour stays, W moves with m_h
+    const mhTrue = w + a.wesenheit_r * (row.mV - row.mI) + blendOffset[i]!;
     const d = release.cepheids[cDonor[i]!]!;
     return {
       ...row,
       mH: mhTrue + cRng.gauss(0, d.mHErr),
       mHErr: d.mHErr * f('m_h_err'),
-      mV: row.mV + cRng.gauss(0, d.mVErr),
+      mV: row.mV + blendOffset[i]! + cRng.gauss(0, d.mVErr),
       mVErr: d.mVErr * f('m_v_err'),
-      mI: row.mI + cRng.gauss(0, d.mIErr),
+      mI: row.mI + blendOffset[i]! + cRng.gauss(0, d.mIErr),
       mIErr: d.mIErr * f('m_i_err'),
     };
   });

@@ -134,15 +134,26 @@ function rejectedTable(r: Results, id: string, tables: readonly string[], dl: Pa
       ['file', 'File', null, false],
       ['line', 'Line', null, true],
       ['residual', 'Residual', 'σ', true],
+      ['treatment', 'Treatment', null, false],
+      ['membership', 'Core membership', null, true],
     ],
-    rows.map((x) => [x.id, x.system ?? '—', fileOf(r, x.table), String(x.line), fixed(x.residual_sigma, 1)]),
+    rows.map((x) => [
+      x.id,
+      x.system ?? '—',
+      fileOf(r, x.table),
+      String(x.line),
+      fixed(x.residual_sigma, 1),
+      x.treatment === 'clipped' ? 'removed (clipping)' : 'down-weighted (blend mixture)',
+      x.membership === null ? '—' : fixed(x.membership, 3),
+    ]),
     {
-      caption: 'Rows removed by the outlier rule (standardised residual beyond the clipping threshold); the line is the row’s line in its input file.',
+      caption:
+        'Rows removed by the outlier rule (standardised residual beyond the clipping threshold; for Cepheids only the too-faint side), and Cepheids kept but down-weighted by the mixture likelihood because they are probably blended (core membership below 0.5; the row enters with its membership as a weight); the line is the row’s line in its input file.',
       limit: TABLE_LIMIT,
       marks: rows.map(() => 'rejected'),
       downloads: dl('rejected'),
       // Each object links to its row on its system's page (Hubble-flow supernovae have no system).
-      links: rows.map((x) => [x.system === null ? null : objectLink(r.release.id, x.system, x.id), x.system === null ? null : systemPagePath(r.release.id, x.system), null, null, null]),
+      links: rows.map((x) => [x.system === null ? null : objectLink(r.release.id, x.system, x.id), x.system === null ? null : systemPagePath(r.release.id, x.system), null, null, null, null, null]),
     },
   );
 }
@@ -322,14 +333,21 @@ function cepheidRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note' 
   if (rej) tables.push(rej);
   const a = r.analysis;
   const nRej = ceph.filter((c) => c.rejected).length;
+  // the blend mixture (content/methods/cepheids.md): rows below one half core membership, and the expected number of blends
+  const nBlend = r.rejected.filter((x) => x.table === 'cepheids' && x.treatment === 'downweighted').length;
+  const expectedBlends = ceph.reduce((sum, c) => sum + (c.rejected ? 0 : 1 - c.membership), 0);
   return {
     reached: ceph.length > 0,
-    status: ceph.length > 0 ? `${int(ceph.length)} Cepheids in ${systems.length} systems; ${int(nRej)} rejected.` : 'No Cepheids in this release.',
+    status:
+      ceph.length > 0
+        ? `${int(ceph.length)} Cepheids in ${systems.length} systems; ${int(nRej)} rejected; ${int(nBlend)} kept as probable blends (core membership below 0.5).`
+        : 'No Cepheids in this release.',
     keyValues: [
       param(r, 'M_W', 'M_W at the pivot period'),
       param(r, 'b_W', 'Slope b_W'),
       param(r, 'Z_W', 'Metallicity term Z_W'),
       kv('Intrinsic scatter', `${fixed(r.fit.scatter.cepheids, 3)} mag`),
+      kv('Expected number of blends (sum of 1 − core membership)', fixed(expectedBlends, 1)),
       kv('Pivot log P', analysisValueText(a.pl_pivot_logp)),
       kv('Wesenheit coefficient R', analysisValueText(a.wesenheit_r)),
     ].filter(present),

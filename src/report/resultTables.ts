@@ -165,6 +165,7 @@ export function resultTables(r: Results): ResultTable[] {
         col('abs_w', 'float64', 'mag'),
         col('residual', 'float64', 'mag'),
         col('rejected', 'bool'),
+        col('membership', 'float64'),
       ],
       rows: r.rungs.cepheids.map((c) => ({ ...c })),
     },
@@ -237,7 +238,7 @@ export function resultTables(r: Results): ResultTable[] {
     {
       name: 'rejected',
       title: 'Rejected rows',
-      columns: [col('table', 'string'), col('id', 'string'), col('system', 'string'), col('line', 'int64'), col('residual_sigma', 'float64')],
+      columns: [col('table', 'string'), col('id', 'string'), col('system', 'string'), col('line', 'int64'), col('residual_sigma', 'float64'), col('treatment', 'string'), col('membership', 'float64')],
       rows: r.rejected.map((x) => ({ ...x })),
     },
     {

@@ -131,8 +131,15 @@ export interface Rejection {
   id: string;
   system: string | null;
   line: number;
-  /** Standardised residual (residual / its standard deviation) when rejected. */
+  /** Standardised residual (residual / its standard deviation, without mixture weight). */
   residual_sigma: number;
+  /**
+   * clipped: removed by the clipping rule; downweighted: a Cepheid kept in the fit whose core
+   * membership of the mixture likelihood is below one half (a probable blend, weighted by it).
+   */
+  treatment: 'clipped' | 'downweighted';
+  /** Core membership of the mixture likelihood (Cepheids); null for other tables. */
+  membership: number | null;
 }
 
 /** Per-object rows behind the figures and tables (from the final, baseline fit). */
@@ -222,6 +229,8 @@ export interface CepheidResult {
   abs_w: number;
   residual: number;
   rejected: boolean;
+  /** Probability that the row belongs to the Gaussian core of the relation, not to the blend component. */
+  membership: number;
 }
 
 export interface SupernovaResult {

@@ -132,8 +132,10 @@ describe('blinding a release', () => {
       if (s.mu === null) expect(t.mu).toBeNull();
       else expect(Math.abs(t.mu! - s.mu), s.id).toBeLessThan(MAG_1E9);
     });
-    expect(rBlind.rejected.map(({ residual_sigma: _, ...where }) => where)).toEqual(rPlain.rejected.map(({ residual_sigma: _, ...where }) => where));
+    expect(rBlind.rejected.map(({ residual_sigma: _, membership: __, ...where }) => where)).toEqual(rPlain.rejected.map(({ residual_sigma: _, membership: __, ...where }) => where));
     rPlain.rejected.forEach((x, i) => expect(relErr(rBlind.rejected[i]!.residual_sigma, x.residual_sigma)).toBeLessThan(FIT_REPEAT_REL));
+    // a probable blend's core membership is a fitted number too: the same to the fit's repeatability
+    rPlain.rejected.forEach((x, i) => expect(Math.abs((rBlind.rejected[i]!.membership ?? 0) - (x.membership ?? 0))).toBeLessThan(FIT_REPEAT_REL));
     expect(relErr(rBlind.fit.chi2, rPlain.fit.chi2)).toBeLessThan(FIT_REPEAT_REL);
     expect(rBlind.fit.dof).toBe(rPlain.fit.dof);
     rPlain.budget.forEach((b, i) => expect(relErr(rBlind.budget[i]!.fraction, b.fraction), b.source).toBeLessThan(FIT_REPEAT_REL));

@@ -12,7 +12,7 @@
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { releaseAndTruth } from '../../src/recover/run.ts';
-import { ERROR_NEIGHBOURS, simulateRelease } from '../../src/recover/simulate.ts';
+import { ERROR_NEIGHBOURS, RECOVERY_BLENDS, simulateRelease } from '../../src/recover/simulate.ts';
 import { headerLine, mergeSeedFiles, SEEDS_SCHEMA, seedLineText, shardSeeds, type SeedsHeader } from '../../src/recover/shard.ts';
 import type { SeedLine } from '../../src/recover/seed.ts';
 import { main } from '../../src/cli/main.ts';
@@ -76,7 +76,8 @@ describe('simulated releases', () => {
     const field = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
     const z: number[] = [];
     for (const seed of [1, 2, 3]) {
-      for (const c of simulateRelease(release, truth, seed).cepheids) {
+      // blends off here: they are checked on their own below
+      for (const c of simulateRelease(release, truth, seed, { blends: { fraction: 0, offsetRangeMag: [0.3, 1] } }).cepheids) {
         const mu = field.has(c.system) ? truth.fieldStarMu[c.star]! : truth.systemMu[c.system]!;
         const w = c.mH - a.wesenheit_r * (c.mV - c.mI);
         const model = mu + truth.mW + truth.bW * (Math.log10(c.periodDays) - a.pl_pivot_logp) + truth.zW * c.oh;
@@ -86,6 +87,37 @@ describe('simulated releases', () => {
     }
     expect(z.length).toBeGreaterThan(1000);
     expectUnitNormal(z);
+  });
+
+  it('blend Cepheids in galaxies only, at the stated fraction, brighter in every band by 0.3 to 1 mag, and change nothing else', () => {
+    const galaxies = new Set(release.systems.filter((s) => s.kind === 'galaxy').map((s) => s.system));
+    let n = 0;
+    let blended = 0;
+    for (const seed of [11, 12, 13, 14, 15, 16, 17, 18]) {
+      const off = simulateRelease(release, truth, seed, { blends: { fraction: 0, offsetRangeMag: [0.3, 1] } });
+      const on = simulateRelease(release, truth, seed);
+      expect(on.snHubbleFlow).toEqual(off.snHubbleFlow);
+      on.cepheids.forEach((c, i) => {
+        const o = off.cepheids[i]!;
+        const d = [c.mH - o.mH, c.mV - o.mV, c.mI - o.mI];
+        if (!galaxies.has(c.system)) {
+          expect(d).toEqual([0, 0, 0]);
+          return;
+        }
+        n++;
+        if (d[0] === 0) return expect(d).toEqual([0, 0, 0]);
+        blended++;
+        // one offset u in all three bands (to rounding), in the stated range
+        expect(Math.abs(d[1]! - d[0]!)).toBeLessThan(1e-9);
+        expect(Math.abs(d[2]! - d[0]!)).toBeLessThan(1e-9);
+        expect(-d[0]!).toBeGreaterThanOrEqual(RECOVERY_BLENDS.offsetRangeMag[0] - 1e-9);
+        expect(-d[0]!).toBeLessThanOrEqual(RECOVERY_BLENDS.offsetRangeMag[1] + 1e-9);
+      });
+    }
+    // binomial: within 4 standard errors of the stated fraction
+    const p = RECOVERY_BLENDS.fraction;
+    expect(n).toBeGreaterThan(1000);
+    expect(Math.abs(blended / n - p)).toBeLessThan(4 * Math.sqrt((p * (1 - p)) / n));
   });
 
   it('draw Hubble-flow supernovae about the magnitude-redshift relation with their covariance and scatter', () => {

@@ -1,17 +1,16 @@
 /**
- * Injection and recovery: generate a release with known truth (src/demo), calibrate it,
- * and compare each fitted quantity with the truth as a pull (fitted - true) / reported error.
- * Used by recovery.test.ts and by `npm run recovery` (scripts/recovery.ts) for the full table.
+ * Injection and recovery: generate a release with known truth (src/demo), calibrate it as
+ * `rungbook calibrate` does (calibrateRelease, the results.json structure), and compare every
+ * published quantity with the truth as a pull (published - true) / published error.
+ * Used by recovery.test.ts; pooled on worker threads by pool.ts.
  */
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { writeGeneratedRelease } from '../../src/demo/index.ts';
-import { DEMO_PARAMETERS } from '../../src/demo/truth.ts';
+import { DEMO_PARAMETERS, type DemoParameters } from '../../src/demo/truth.ts';
 import { loadRelease } from '../../src/io/release.ts';
-import { runLadder } from '../../src/ladder/calibrate.ts';
-import type { GeneratedReleaseOptions } from '../../src/demo/write.ts';
-import { scatterError } from '../../src/ladder/assemble.ts';
+import { calibrateRelease } from '../../src/ladder/calibrate.ts';
 
 export interface Pull {
   name: string;
@@ -20,79 +19,60 @@ export interface Pull {
   truth: number;
 }
 
-/** Calibrate one generated release and return the pulls of H0, every ladder parameter and every distance. */
-export function recoverSeed(seed: number, options: Partial<GeneratedReleaseOptions> = {}): Pull[] {
+export interface RecoverSeedOptions {
+  /** Generator parameters to change (e.g. blendFraction); the rest are DEMO_PARAMETERS. */
+  parameters?: Partial<DemoParameters>;
+}
+
+/**
+ * Blends as real crowded fields show them (a few per cent of extragalactic Cepheids, too bright):
+ * the recovery runs with them on so that it sees what they do to H0. The generator's blend offset
+ * is DEMO_PARAMETERS.blendOffsetMag (0.5 mag brighter).
+ */
+export const RECOVERY_BLEND_FRACTION = 0.02;
+
+/** Calibrate one generated release and return the pulls of every published quantity. */
+export function recoverSeed(seed: number, options: RecoverSeedOptions = {}): Pull[] {
   const dir = mkdtempSync(join(tmpdir(), 'rungbook-recovery-'));
   try {
-    // Blended Cepheids (crowding) are left out of the simulated data: the model assumes crowding
-    // corrections already applied (see the Cepheid cautions), so with blends the recovery would
-    // measure that unmodelled systematic (1 % of host Cepheids 0.5 mag bright moves H0 by about
-    // +0.25 sigma) rather than the estimator. Outlier rejection is exercised on the demo releases.
     const truth = writeGeneratedRelease(dir, 'sim', {
       seed,
       writeTruth: false,
       variants: [],
-      parameters: { ...DEMO_PARAMETERS, blendFraction: 0 },
-      ...options,
+      parameters: { ...DEMO_PARAMETERS, blendFraction: RECOVERY_BLEND_FRACTION, ...options.parameters },
     });
     const release = loadRelease(truth.dir);
-    const run = runLadder(release, release.analysis);
-    const fit = run.fit!;
-    const p = fit.paramNames.length;
+    const r = calibrateRelease(release, { codeVersion: 'recovery-test' });
     const pulls: Pull[] = [];
-    const at = (name: string) => fit.paramNames.indexOf(name);
-    const add = (label: string, param: string, t: number) => {
-      const i = at(param);
-      if (i >= 0) pulls.push({ name: label, value: fit.q[i], err: Math.sqrt(fit.cov[i * p + i]), truth: t });
-    };
     const P = truth.parameters;
-    add('M_W', 'M_W', P.mW);
-    add('b_W', 'b_W', P.bW);
-    add('Z_W', 'Z_W', P.zW);
-    add('M_B', 'M_B', P.mB);
-    add('a_B', 'a_B', (5 * Math.log10(P.h0KmSMpc) - 25 - P.mB) / 5);
-    const iz = at('zeta');
-    if (iz >= 0) {
-      pulls.push({
-        name: 'parallax zero point',
-        value: release.analysis.parallax_zero_point + fit.q[iz],
-        err: Math.sqrt(fit.cov[iz * p + iz]),
-        truth: truth.parallax.zeroPointMas,
-      });
+    const trueParameter: Record<string, number> = {
+      M_W: P.mW,
+      b_W: P.bW,
+      Z_W: P.zW,
+      M_B: P.mB,
+      a_B: (5 * Math.log10(P.h0KmSMpc) - 25 - P.mB) / 5,
+      delta_M_host: P.massStepMag,
+      alpha: P.alpha,
+      beta: P.beta,
+      sigma_int_cepheid: P.sigmaIntCepMag,
+      sigma_int_sn: P.sigmaIntSnMag,
+      parallax_zero_point: truth.parallax.zeroPointMas,
+    };
+    for (const [name, p] of Object.entries(r.parameters)) {
+      if (p.fixed) continue;
+      const t = trueParameter[name];
+      if (t === undefined) throw new Error(`recovery harness: no truth for published parameter ${name}`);
+      pulls.push({ name, value: p.value, err: p.err, truth: t });
     }
-    pulls.push({ name: 'alpha', value: fit.alpha.value, err: fit.alpha.err, truth: P.alpha });
-    pulls.push({ name: 'beta', value: fit.beta.value, err: fit.beta.err, truth: P.beta });
-    const variances = (tables: string[]) => fit.residuals.filter((r) => tables.includes(r.ref.table) && !r.rejected).map((r) => r.variance);
-    pulls.push({
-      name: 'sigma_int_cepheid',
-      value: fit.scatter.cepheids,
-      err: scatterError(fit.scatter.cepheids, variances(['cepheids'])),
-      truth: P.sigmaIntCepMag,
-    });
-    pulls.push({
-      name: 'sigma_int_sn',
-      value: fit.scatter.supernovae,
-      err: scatterError(fit.scatter.supernovae, variances(['sn_calibrators', 'sn_hubble_flow'])),
-      truth: P.sigmaIntSnMag,
-    });
-    if (run.log10H0) {
-      const h0 = 10 ** run.log10H0.value;
-      pulls.push({ name: 'H0', value: h0, err: h0 * Math.LN10 * Math.sqrt(run.log10H0.variance), truth: P.h0KmSMpc });
-    }
-    for (const s of truth.systems) {
-      if (s.mu === null) continue;
-      const i = at(`mu:${s.id}`);
-      if (i < 0) continue;
-      pulls.push({ name: `mu (${s.group})`, value: fit.q[i], err: Math.sqrt(fit.cov[i * p + i]), truth: s.mu });
-    }
-    // main-sequence targets on their own rung (before the global fit)
-    for (const t of run.mainSequence.targets) {
-      const s = truth.systems.find((x) => x.id === t.system);
-      if (s?.mu != null) pulls.push({ name: 'mu main-sequence rung', value: t.mu, err: t.mu_err, truth: s.mu });
-    }
-    for (const a of run.parallax.anchors) {
-      const s = truth.systems.find((x) => x.id === a.system);
-      if (s?.mu != null) pulls.push({ name: 'mu parallax rung', value: a.mu, err: a.mu_err, truth: s.mu });
+    if (r.h0) pulls.push({ name: 'H0', value: r.h0.value, err: r.h0.stat, truth: P.h0KmSMpc });
+    const byId = new Map(truth.systems.map((s) => [s.id, s]));
+    for (const s of r.systems) {
+      const t = byId.get(s.id);
+      if (!t || t.mu === null) continue;
+      if (s.mu !== null && s.mu_err !== null && s.mu_err > 0) pulls.push({ name: `mu (${t.group})`, value: s.mu, err: s.mu_err, truth: t.mu });
+      if (s.mu_prior !== null && s.mu_prior_err !== null && s.mu_prior_err > 0) {
+        pulls.push({ name: `mu own rung (${t.group})`, value: s.mu_prior, err: s.mu_prior_err, truth: t.mu });
+      }
     }
     return pulls;
   } finally {
@@ -103,19 +83,21 @@ export function recoverSeed(seed: number, options: Partial<GeneratedReleaseOptio
 export interface PullSummary {
   name: string;
   n: number;
-  meanPull: number;
-  /** Standard error of the mean pull, from the spread of the pulls. */
-  meanPullErr: number;
-  rmsPull: number;
-  /** Fraction of cases whose 1-sigma interval covers the truth. */
-  coverage: number;
+  mean: number;
+  /** Sample standard deviation of the pulls. */
+  sd: number;
+  /** Fraction of cases whose 1-sigma (2-sigma) interval covers the truth. */
+  coverage1: number;
+  coverage2: number;
 }
 
 export function summarisePulls(all: Pull[]): PullSummary[] {
   const groups = new Map<string, number[]>();
   for (const p of all) {
     const z = (p.value - p.truth) / p.err;
-    groups.set(p.name, [...(groups.get(p.name) ?? []), z]);
+    const list = groups.get(p.name);
+    if (list) list.push(z);
+    else groups.set(p.name, [z]);
   }
   return [...groups].map(([name, z]) => {
     const n = z.length;
@@ -124,10 +106,20 @@ export function summarisePulls(all: Pull[]): PullSummary[] {
     return {
       name,
       n,
-      meanPull: mean,
-      meanPullErr: sd / Math.sqrt(n),
-      rmsPull: Math.sqrt(z.reduce((a, b) => a + b * b, 0) / n),
-      coverage: z.filter((x) => Math.abs(x) <= 1).length / n,
+      mean,
+      sd,
+      coverage1: z.filter((x) => Math.abs(x) <= 1).length / n,
+      coverage2: z.filter((x) => Math.abs(x) <= 2).length / n,
     };
   });
+}
+
+export function formatSummary(summary: PullSummary[]): string {
+  const lines = ['quantity                        n    mean     sd    cov1   cov2'];
+  for (const s of summary) {
+    lines.push(
+      `${s.name.padEnd(28)} ${String(s.n).padStart(5)}  ${s.mean.toFixed(3).padStart(6)}  ${s.sd.toFixed(3)}  ${(100 * s.coverage1).toFixed(1).padStart(5)}  ${(100 * s.coverage2).toFixed(1).padStart(5)}`,
+    );
+  }
+  return lines.join('\n');
 }

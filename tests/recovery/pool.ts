@@ -3,11 +3,11 @@
  * by default on every core. The pulls come back in seed order whatever the number of workers.
  */
 import { defaultWorkers, mapOnWorkers } from '../../src/parallel/pool.ts';
-import type { Pull } from './harness.ts';
+import type { Pull, RecoverSeedOptions } from './harness.ts';
 
 const SEED_TASK = new URL('./seedTask.ts', import.meta.url);
 
-export async function recoverSeeds(seeds: number[], workers = defaultWorkers()): Promise<Pull[]> {
-  const perSeed = await mapOnWorkers<null, number, Pull[]>(SEED_TASK, null, seeds, workers);
+export async function recoverSeeds(seeds: number[], options: RecoverSeedOptions = {}, workers = defaultWorkers()): Promise<Pull[]> {
+  const perSeed = await mapOnWorkers<RecoverSeedOptions, number, Pull[]>(SEED_TASK, options, seeds, workers);
   return perSeed.flat();
 }
