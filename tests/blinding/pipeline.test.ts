@@ -15,7 +15,7 @@ import { main } from '../../src/cli/main.ts';
 import { writeGeneratedRelease } from '../../src/demo/index.ts';
 import { InputError } from '../../src/types/issues.ts';
 import type { Results } from '../../src/types/results.ts';
-import { FIT_REPEAT_REL, MAG_1E9, REL_1E9, relErr } from '../tolerances.ts';
+import { FIT_REPEAT_REL, MAG_1E9, relErr } from '../tolerances.ts';
 import { capture, folderHash, hasNumberToken, OTHER_KEY, TEST_KEY, tempDir, writeKeyFile } from './helpers.ts';
 
 const ID = 'season-t';
@@ -258,10 +258,13 @@ describe('two releases blinded with the same key and blinding id', () => {
     const [rPlainB, rBlindB, rBlindC] = await Promise.all([calibrateReleaseDir(plainB), calibrateReleaseDir(outB), calibrateReleaseDir(outC)]);
     const trueRatio = rPlainB.h0!.value / rPlain.h0!.value;
     expect(Math.abs(trueRatio - 1)).toBeGreaterThan(1e-4); // the two releases do differ
-    expect(relErr(rBlindB.h0!.value / rBlind.h0!.value, trueRatio)).toBeLessThan(REL_1E9);
+    // Each blinded H0 repeats its unblinded value only to the fit's repeatability (FIT_REPEAT_REL,
+    // as asserted above: the iterative fit, the Cepheid blend mixture's EM included, stops at its own
+    // convergence limits on data that differ by round-off), so the ratio is good to twice that.
+    expect(relErr(rBlindB.h0!.value / rBlind.h0!.value, trueRatio)).toBeLessThan(2 * FIT_REPEAT_REL);
     const trueShift = rPlainB.h0!.value - rPlain.h0!.value;
-    // The shift is a difference of two values each good to REL_1E9: compare it on H0's scale.
-    expect(Math.abs(rBlindB.h0!.value - rBlind.h0!.value - trueShift * factor) / rPlain.h0!.value).toBeLessThan(2 * REL_1E9);
+    // The shift is a difference of two values each good to FIT_REPEAT_REL: compare it on H0's scale.
+    expect(Math.abs(rBlindB.h0!.value - rBlind.h0!.value - trueShift * factor) / rPlain.h0!.value).toBeLessThan(2 * FIT_REPEAT_REL);
 
     expect(sameBlinding(readBlindingRecord(blinded), readBlindingRecord(outB))).toBe(true);
     expect(sameBlinding(rBlind.blinding, rBlindB.blinding)).toBe(true);

@@ -137,7 +137,7 @@ export const STRUCTURE_CASES: readonly StructureCase[] = [
       keepRows('main_sequence', (r, col) => r[col('system')] !== 'Greywick' || (n += 1) <= 3)(dir);
     },
     ending: 'analysis error',
-    message: /main-sequence target "Greywick" \(systems line \d+\): \d star\(s\) in the colour range \[0\.4, 1\.2\] at E\(B-V\) = [\d.-]+; at least 5 needed/,
+    message: /main-sequence target "Greywick" \(systems line \d+\): \d star\(s\) in the colour range \[0\.4, 1\.2\] \(single and binary colours\) at E\(B-V\) = [\d.-]+; at least 5 needed/,
   },
   // The input contract and the records beside the tables.
   {

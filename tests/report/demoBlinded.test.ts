@@ -20,7 +20,7 @@ import { main } from '../../src/cli/main.ts';
 import { DEMO_SEED, writeGeneratedRelease } from '../../src/demo/index.ts';
 import { fixed } from '../../src/report/format.ts';
 import type { Results } from '../../src/types/results.ts';
-import { capture, hasNumberToken, writeKeyFile } from '../blinding/helpers.ts';
+import { capture, writeKeyFile } from '../blinding/helpers.ts';
 import { buildDemo, DEMO_BUILD_TIMEOUT_MS, DEMO_RELEASES, type DemoBuild } from './demoBuild.ts';
 import { listFilesSync } from './linkCheck.ts';
 
@@ -67,26 +67,39 @@ function forms(x: number): string[] {
   return [...new Set([...PRECISIONS.map((p) => x.toFixed(p)), String(x)])];
 }
 
+/** SVG attributes that place a mark on the drawing (pixel coordinates and sizes), not values. */
+const SVG_GEOMETRY = ['d', 'cx', 'cy', 'r', 'x', 'y', 'x1', 'x2', 'y1', 'y2', 'dx', 'dy', 'width', 'height', 'transform', 'points', 'viewBox'];
+
 /**
- * What a file publishes, as text to search. Two kinds of content are left out, each the same
- * on every release's pages and not derived from any data: the method notes (committed prose,
- * whose invented worked examples may hold any number) and SVG path geometry (`d` attributes:
- * KaTeX's glyph outlines and plot line shapes, which are drawing coordinates, not values).
+ * What a file publishes, as text to search. Two kinds of content are left out, each not derived
+ * from any value of the data as such: the method notes (committed prose, whose invented worked
+ * examples may hold any number) and SVG geometry (path shapes, positions and sizes of marks: KaTeX's
+ * glyph outlines and plot coordinates in pixels, e.g. a point drawn at cy="70.5").
  */
 function published(dist: string, rel: string): string {
   const raw = readFileSync(join(dist, rel), 'utf8');
-  if (!rel.endsWith('.html')) return raw.replace(/\sd="[^"]*"/g, '');
+  const geometry = new RegExp(`\\s(?:${SVG_GEOMETRY.join('|')})="[^"]*"`, 'g');
+  if (!rel.endsWith('.html')) return rel.endsWith('.svg') ? raw.replace(geometry, '') : raw;
   const doc = new JSDOM(raw).window.document;
   doc.querySelectorAll('section.method').forEach((e) => e.remove());
-  doc.querySelectorAll('[d]').forEach((e) => e.removeAttribute('d'));
+  doc.querySelectorAll('svg, svg *').forEach((e) => SVG_GEOMETRY.forEach((a) => e.removeAttribute(a)));
   return doc.documentElement.outerHTML;
+}
+
+/**
+ * A number written as a percentage ("70.3 %": a share of the error budget, a coverage) is not a
+ * value in km/s/Mpc: the H0 forms are searched only where no per-cent sign follows.
+ */
+function hasValueToken(text: string, token: string): boolean {
+  const esc = token.replace(/[.+-]/g, (c) => `\\${c}`);
+  return new RegExp(`(?<![0-9.])${esc}(?![0-9])(?!\\s?%)`).test(text);
 }
 
 function leaks(files: string[], dist: string, tokens: string[]): string[] {
   const found: string[] = [];
   for (const rel of files) {
     const text = published(dist, rel).replace(/\u2212/g, '-');
-    for (const t of tokens) if (hasNumberToken(text, t)) found.push(`${rel}: ${t}`);
+    for (const t of tokens) if (hasValueToken(text, t)) found.push(`${rel}: ${t}`);
   }
   return found;
 }
