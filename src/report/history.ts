@@ -38,10 +38,15 @@ function paramCell(r: Results, name: string): string {
   return parameterBlinded(r, name) ? `${v} [BLINDED]` : v;
 }
 
+/** Releases oldest first: by date, then by id, so the order never depends on the order read. */
+export function oldestFirst(all: readonly Results[]): Results[] {
+  return [...all].sort((a, b) => a.release.date.localeCompare(b.release.date) || a.release.id.localeCompare(b.release.id));
+}
+
 /** Rows: releases oldest first; columns: H0 then every parameter. */
 export function parameterHistory(all: readonly Results[]): HistoryView | null {
   if (all.length === 0) return null;
-  const sorted = [...all].sort((a, b) => a.release.date.localeCompare(b.release.date) || a.release.id.localeCompare(b.release.id));
+  const sorted = oldestFirst(all);
   const units = new Map<string, string>();
   for (const r of sorted) for (const { name } of HISTORY_PARAMETERS) if (r.parameters[name] && !units.has(name)) units.set(name, r.parameters[name]!.unit);
   return {

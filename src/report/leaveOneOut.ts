@@ -122,6 +122,17 @@ export function leaveOneSystemOut(release: Release, system: string, base: H0Fit 
   return looEntry(release, system, refitWithout(release, system), base);
 }
 
+/** Entries with a shift and its σ (the system could be left out). */
+export function shiftedEntries(entries: readonly LeaveOneOutEntry[]): LeaveOneOutEntry[] {
+  return entries.filter((e) => e.error === null && e.shift !== null && e.shift_err !== null);
+}
+
+/** The entry whose removal moves H0 most (largest |shift|), or null when none has a shift. */
+export function largestShift(entries: readonly LeaveOneOutEntry[]): LeaveOneOutEntry | null {
+  const ok = shiftedEntries(entries);
+  return ok.length === 0 ? null : ok.reduce((m, e) => (Math.abs(e.shift!) > Math.abs(m.shift!) ? e : m), ok[0]!);
+}
+
 /** Systems to leave out: every row of the systems table, in its order. */
 export function systemsToLeaveOut(release: Release): string[] {
   return release.systems.map((s) => s.system);

@@ -7,12 +7,13 @@ import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
 import { pm } from '../format.ts';
 import { clip, col, type FigureSpec, GREY, INK, legend, listText, r5, renderSvg } from './plotting.ts';
+import { oldestFirst } from '../history.ts';
 
 export const ID = 'h0-history';
 
 export function h0History(all: readonly Results[]): FigureSpec | null {
   if (all.length === 0) return null;
-  const ordered = [...all].sort((a, b) => a.release.date.localeCompare(b.release.date) || a.release.id.localeCompare(b.release.id));
+  const ordered = oldestFirst(all);
   const labels = ordered.map((r) => clip(r.release.id, 20));
   const shown = ordered.filter((r) => r.h0 !== null && !r.blinded);
   const rows = shown.map((r) => ({

@@ -8,7 +8,7 @@ import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
 import { systemPagePath } from '../../layout/anchors.ts';
 import { fixed } from '../format.ts';
-import type { LeaveOneOut } from '../leaveOneOut.ts';
+import { largestShift, type LeaveOneOut } from '../leaveOneOut.ts';
 import { blindedStamp, clip, col, type FigureSpec, GREY, INK, legend, listText, r5, renderSvg } from './plotting.ts';
 
 export const ID = 'leave-one-out';
@@ -50,7 +50,7 @@ export function leaveOneOutFigure(r: Results, loo: LeaveOneOut): FigureSpec | nu
     marks,
     hover: [{ className: 'hover-loo', rows: rows.map((d) => d.row) }],
   });
-  const worst = ok.reduce((m, x) => (Math.abs(x.e.shift!) > Math.abs(m.e.shift!) ? x : m), ok[0]!).e;
+  const worst = largestShift(loo.entries)!;
   const text = (e: (typeof ok)[number]['e']) => `${e.system}: ${fixed(e.shift! * scale, 2)} ± ${fixed(e.shift_err! * scale, 2)}`;
   return {
     id: ID,

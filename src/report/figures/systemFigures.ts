@@ -10,7 +10,8 @@ import type { Results } from '../../types/results.ts';
 import { objectLink } from '../../layout/anchors.ts';
 import { fixed, int } from '../format.ts';
 import { locusCurve } from './msLocus.ts';
-import { clip, col, type FigureSpec, GREY, INK, legend, type LegendItem, PALE, r5, renderSvg } from './plotting.ts';
+import { residualCsv, residualLayers } from './plResiduals.ts';
+import { clip, col, type FigureSpec, GREY, INK, legend, PALE, r5, renderSvg } from './plotting.ts';
 
 export const SYSTEM_FIGURE_IDS = ['system-pl-residuals', 'system-sn-calibrators', 'system-cmd'] as const;
 
@@ -20,32 +21,16 @@ export function systemPlResiduals(r: Results, system: string): FigureSpec | null
   if (ceph.length === 0) return null;
   const rows = ceph.map((c, i) => ({ p: r5(c.log_period), res: r5(c.residual), rejected: c.rejected, row: i }));
   const s = r.fit.scatter.cepheids;
-  const items: LegendItem[] = [
-    { label: `Cepheid of ${clip(system, 24)}`, kind: 'dot', symbol: 'circle', filled: false },
-    ...(rows.some((d) => d.rejected) ? [{ label: 'rejected', kind: 'dot' as const, symbol: 'times' as const, filled: false }] : []),
-    { label: `± global intrinsic scatter (${fixed(s, 3)} mag)`, kind: 'line', dash: '5,3' },
-  ];
-  const leg = legend(items);
-  const kept = rows.filter((d) => !d.rejected);
-  const rej = rows.filter((d) => d.rejected);
+  const layers = residualLayers(rows, s, { pointLabel: `Cepheid of ${clip(system, 24)}`, scatterLabel: 'global intrinsic scatter', dotR: 3, dotStroke: 1 });
   const out = renderSvg({
     id: 'system-pl-residuals',
     label: `Period–luminosity residuals of the Cepheids of ${clip(system, 40)}`,
-    height: 260 + leg.marginTop,
-    marginTop: leg.marginTop,
+    height: 260 + layers.leg.marginTop,
+    marginTop: layers.leg.marginTop,
     x: { label: 'log₁₀ period (days)', nice: true },
     y: { label: 'Residual (mag)', nice: true },
-    marks: [
-      Plot.ruleY([0], { stroke: INK }),
-      Plot.ruleY([-s, s], { stroke: GREY, strokeDasharray: '5,3' }),
-      Plot.dot(kept, { x: 'p', y: 'res', r: 3, fill: 'white', stroke: INK, strokeWidth: 1, className: 'hover-kept' }),
-      Plot.dot(rej, { x: 'p', y: 'res', r: 4, symbol: 'times', stroke: INK, strokeWidth: 1.5, className: 'hover-rejected' }),
-      ...leg.marks,
-    ],
-    hover: [
-      { className: 'hover-kept', rows: kept.map((d) => d.row) },
-      { className: 'hover-rejected', rows: rej.map((d) => d.row) },
-    ],
+    marks: layers.marks,
+    hover: layers.hover,
   });
   const k = ceph.filter((c) => !c.rejected);
   const mean = k.length ? k.reduce((a, c) => a + c.residual, 0) / k.length : NaN;
@@ -55,10 +40,7 @@ export function systemPlResiduals(r: Results, system: string): FigureSpec | null
     caption: `Residual of each Cepheid of ${system} from the global period–luminosity relation (observed minus model, with this system’s fitted distance), against log period. Dashed: ± the fitted intrinsic scatter of all Cepheids. Crosses: rejected.`,
     alt: `${int(ceph.length)} Cepheids of ${system}; mean residual of the ${int(k.length)} kept is ${fixed(mean, 3)} mag; intrinsic scatter ${fixed(s, 3)} mag.`,
     ...out,
-    csv: {
-      columns: [col('star', 'string'), col('system', 'string'), col('line', 'int64', '', 'line in the input file'), col('log_period', 'float64'), col('residual', 'float64', 'mag'), col('rejected', 'bool'), col('page', 'string')],
-      rows: ceph.map((c) => ({ star: c.star, system: c.system, line: c.line, log_period: c.log_period, residual: c.residual, rejected: c.rejected, page: objectLink(r.release.id, c.system, c.star) })),
-    },
+    csv: residualCsv(r.release.id, ceph),
     thinned: null,
     blinded: false,
   };
