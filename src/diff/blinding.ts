@@ -10,8 +10,8 @@
 import { blindingRefOf, compareH0Blinding, type BlindingRecord } from '../blinding/index.ts';
 import type { BlindingComparison } from './types.ts';
 
-/** Parameters whose values carry the blinding offset (besides those the calibration marks `blinded`). */
-export const HIDDEN_WHEN_BLINDED: readonly string[] = ['M_B', 'a_B'];
+/** Parameters whose values carry the blinding offset (the rung registry marks them). */
+export { HIDDEN_WHEN_BLINDED } from '../registry/rungs.ts';
 
 export interface BlindingSide {
   /** release.yaml's `blinded` after the record was applied (an unblinded release reads false). */

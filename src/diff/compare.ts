@@ -7,6 +7,7 @@
 import { InputError, AnalysisError, type InputIssue } from '../types/issues.ts';
 import type { Release, TableName } from '../types/release.ts';
 import { TABLE_NAMES } from '../types/release.ts';
+import { TABLE_SPECS } from '../registry/tables.ts';
 import type { Results } from '../types/results.ts';
 import { codeVersion as currentCodeVersion } from '../version.ts';
 import { compareBlinding, HIDDEN_WHEN_BLINDED } from './blinding.ts';
@@ -189,10 +190,10 @@ const FIT_PARAMETER: Record<string, string> = {
 
 const SN_TABLES: TableName[] = ['sn_calibrators', 'sn_hubble_flow'];
 
-/** Tables whose rows are estimated without recalibrating (influence.ts). */
-const LINEAR_TABLES: TableName[] = ['parallax', 'cepheids', 'sn_calibrators', 'sn_hubble_flow'];
-/** Tables whose rows are estimated by recalibrating release a with the row swapped. */
-const REFIT_TABLES: TableName[] = ['main_sequence', 'systems'];
+/** Tables whose rows are estimated without recalibrating (influence.ts), and those estimated by recalibrating release a with the row swapped: each table's `rowShift` in the registry. */
+const LINEAR_TABLES: TableName[] = TABLE_NAMES.filter((t) => TABLE_SPECS[t].rowShift === 'first-order');
+// the systems table last: a system's priors are planned after the rows of its stars
+const REFIT_TABLES: TableName[] = TABLE_NAMES.filter((t) => TABLE_SPECS[t].rowShift === 'refit').sort((x, y) => Number(x === 'systems') - Number(y === 'systems'));
 
 interface SwapPlan {
   table: TableName;

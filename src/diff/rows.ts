@@ -2,31 +2,23 @@
  * Row-level access to a release's tables for the comparison: the rows of a table, their id,
  * the system they belong to, each column's value, and the status of a row between two
  * releases (same, corrected, remeasured, added, removed). Column names and units come from
- * the contract (src/io/schema.ts), so the comparison speaks the files' language.
+ * the table registry (src/registry/tables.ts), so the comparison speaks the files' language.
  */
-import { TABLE_SPECS, type ColumnSpec } from '../io/schema.ts';
-import type { Release, TableName } from '../types/release.ts';
+import { TABLE_SPECS, type ColumnSpec } from '../registry/tables.ts';
+import { TABLE_NAMES, type Release, type TableName } from '../types/release.ts';
 import type { RowStatus } from './types.ts';
 
 /** A row of any table: the typed fields plus `line`. */
 export type AnyRow = Record<string, unknown> & { line: number };
 
-const TABLE_FIELD: Record<TableName, keyof Release> = {
-  systems: 'systems',
-  parallax: 'parallax',
-  main_sequence: 'mainSequence',
-  cepheids: 'cepheids',
-  sn_calibrators: 'snCalibrators',
-  sn_hubble_flow: 'snHubbleFlow',
-};
 
 /** Property of Release holding a table's rows. */
 export function tableField(table: TableName): keyof Release {
-  return TABLE_FIELD[table];
+  return TABLE_SPECS[table].releaseField;
 }
 
 export function tableRows(release: Release, table: TableName): AnyRow[] {
-  return release[TABLE_FIELD[table]] as unknown as AnyRow[];
+  return release[TABLE_SPECS[table].releaseField] as unknown as AnyRow[];
 }
 
 export function columnsOf(table: TableName): ColumnSpec[] {
@@ -50,14 +42,7 @@ export function rowSystem(table: TableName, row: AnyRow): string | null {
 }
 
 /** What the rows of a table are called in a summary line. */
-export const ROW_NOUN: Record<TableName, string> = {
-  systems: 'systems',
-  parallax: 'stars',
-  main_sequence: 'stars',
-  cepheids: 'stars',
-  sn_calibrators: 'supernovae',
-  sn_hubble_flow: 'supernovae',
-};
+export const ROW_NOUN: Record<TableName, string> = Object.fromEntries(TABLE_NAMES.map((t) => [t, TABLE_SPECS[t].rowNoun])) as Record<TableName, string>;
 
 /**
  * Columns describing a measurement's uncertainty: every *_err column and the light-curve

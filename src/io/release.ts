@@ -11,7 +11,7 @@ import { TABLE_NAMES, type InputFile, type Release, type TableName } from '../ty
 import { classifyFolder, MANIFEST_FILE, NOTES_FILE, type EntryKind, type FolderEntry } from './folder.ts';
 import { finishFileIssues, newFileIssues, shown, type FileIssues, type Problem } from './issues.ts';
 import { parseManifestBytes, readManifestFile, type ManifestRead } from './manifest.ts';
-import { TABLE_SPECS, type TableRows } from './schema.ts';
+import { TABLE_SPECS, type TableRows } from '../registry/tables.ts';
 import { nearest } from './suggest.ts';
 import { parseTable, type TableRead } from './table.ts';
 import { decodeUtf8, sha256Hex } from './text.ts';

@@ -9,7 +9,7 @@ import { readEcsv } from './ecsv.ts';
 import type { Problem } from './issues.ts';
 import { lightCurveCovarianceProblems } from './lightCurveCovariance.ts';
 import type { ParsedTable } from './raw-table.ts';
-import { TABLE_SPECS, type TableRows } from './schema.ts';
+import { TABLE_SPECS, type TableRows } from '../registry/tables.ts';
 import { sha256Hex } from './text.ts';
 import { validateTable } from './validate.ts';
 import { readVotable } from './votable.ts';

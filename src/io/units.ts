@@ -6,9 +6,9 @@
  * the IVOA and astropy unit grammars (`Mas` or `MAS` is not a unit).
  */
 import { ARCSEC_PER_RADIAN } from '../constants/index.ts';
+import type { ContractUnit } from '../registry/tables.ts';
 
-/** Units the contract stores values in; '' means dimensionless. */
-export type ContractUnit = 'mas' | 'deg' | 'd' | 'Gyr' | 'mag' | 'mag2' | 'dex' | '';
+export type { ContractUnit };
 
 /** value in the family's base unit = x * mul / div (kept as a fraction so exact factors stay exact). */
 interface Factor {

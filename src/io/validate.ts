@@ -7,7 +7,7 @@
 import type { Problem } from './issues.ts';
 import { shown } from './issues.ts';
 import type { RawColumn, RawTable } from './raw-table.ts';
-import type { ColumnSpec, TableSpec } from './schema.ts';
+import type { ColumnSpec, TableSpec } from '../registry/tables.ts';
 import { nearest } from './suggest.ts';
 import { checkUnit } from './units.ts';
 import { CONTROL_CHARACTER } from './text.ts';

@@ -28,25 +28,19 @@ import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
 import { systematicSources } from './budget.ts';
 import { chiSquarePValue } from '../math/special.ts';
 import type { CalibrateOptions } from './calibrate.ts';
+import { HIDDEN_WHEN_BLINDED, parameterSpec } from '../registry/rungs.ts';
 
 /** chi2/dof outside this band gets a warning (common practice, no source). */
 const CHI2_PER_DOF_WARN: readonly [number, number] = [0.7, 1.5];
 
-const PARAMETER_INFO: Record<string, { unit: string; description: string }> = {
-  M_W: { unit: 'mag', description: 'Cepheid Wesenheit absolute magnitude at the pivot period' },
-  b_W: { unit: 'mag/dex', description: 'slope of the period-luminosity relation in log10 P' },
-  Z_W: { unit: 'mag/dex', description: 'metallicity term of the period-luminosity relation ([O/H])' },
-  M_B: { unit: 'mag', description: 'absolute peak magnitude of a standardised type Ia supernova' },
-  a_B: { unit: '', description: 'intercept of the Hubble-flow magnitude-redshift relation' },
-  delta_M_host: { unit: 'mag', description: 'host-mass step: added to the standardised magnitude of supernovae in hosts above the step mass' },
-  alpha: { unit: '', description: 'supernova stretch coefficient (Tripp)' },
-  beta: { unit: '', description: 'supernova colour coefficient (Tripp)' },
-  sigma_int_cepheid: { unit: 'mag', description: 'intrinsic scatter of the Cepheid Wesenheit relation (estimated)' },
-  sigma_int_sn: { unit: 'mag', description: 'intrinsic scatter of standardised supernovae (estimated)' },
-  parallax_zero_point: { unit: 'mas', description: 'parallax zero point after the global fit (prior: release value)' },
-};
+/** Unit and meaning of a published parameter, as the rung that adds it states them (src/registry/rungs.ts). */
+function parameterInfo(name: string): { unit: string; description: string } {
+  const spec = parameterSpec(name);
+  if (!spec) throw new Error(`internal: parameter ${name} is added by no rung of src/registry/rungs.ts`);
+  return { unit: spec.unit, description: spec.meaning };
+}
 
-const BLINDED_PARAMS = new Set(['M_B', 'a_B']);
+const BLINDED_PARAMS = new Set(HIDDEN_WHEN_BLINDED);
 
 function sha256(text: string): string {
   return createHash('sha256').update(text).digest('hex');
@@ -80,7 +74,7 @@ export function assembleResults(
   const value = (name: string) => fit!.q[idx(name)];
   const err = (name: string) => Math.sqrt(fit!.cov[idx(name) * p + idx(name)]);
   const put = (name: string, v: number, e: number, extra: Partial<ParameterResult> = {}) => {
-    parameters[name] = { value: v, err: e, ...PARAMETER_INFO[name], ...extra };
+    parameters[name] = { value: v, err: e, ...parameterInfo(name), ...extra };
     if (blinded && BLINDED_PARAMS.has(name)) parameters[name].blinded = true;
   };
   if (fit) {

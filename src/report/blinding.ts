@@ -4,9 +4,10 @@
  * calibration marks them `blinded`) are shown with a visible BLINDED mark; M_B
  * and a_B are always marked, since readers compare them with H0.
  */
+import { HIDDEN_WHEN_BLINDED } from '../registry/rungs.ts';
 import type { Results } from '../types/results.ts';
 
-export const ALWAYS_MARKED_PARAMETERS: readonly string[] = ['M_B', 'a_B'];
+export const ALWAYS_MARKED_PARAMETERS: readonly string[] = HIDDEN_WHEN_BLINDED;
 
 export function parameterBlinded(r: Results, name: string): boolean {
   if (!r.blinded) return false;

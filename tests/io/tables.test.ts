@@ -6,7 +6,7 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, test } from 'vitest';
-import { TABLE_SPECS } from '../../src/io/schema.ts';
+import { TABLE_SPECS } from '../../src/registry/tables.ts';
 import { TABLE_NAMES, type TableName } from '../../src/types/release.ts';
 import { REL_1E15, relErr } from '../tolerances.ts';
 import {
