@@ -1,5 +1,5 @@
 /**
- * The in-memory form of one data release (see shared design: release-format.md).
+ * The in-memory form of one data release (the input contract: content/guide/input-format.md).
  * Readers in src/io produce it; the rungs in src/ladder consume it. Every value
  * is already converted to the units named in the field (mas, deg, days, mag, dex).
  * `line` is the 1-based line of the row in its file, as an editor shows it,

@@ -31,7 +31,7 @@ const demo = generateDemoReleases(DEMO_SEED, 1);
 const byId = new Map(demo.map((r) => [r.truth.releaseId, r.files]));
 const files = (id: string): Record<string, string> => byId.get(id)!;
 
-/** Columns of each table in the release format (release-format.md). */
+/** Columns of each table in the release format (the contract as agreed, content/guide/input-format.md; kept by hand, independent of the registry). */
 const CONTRACT_COLUMNS: Record<string, string[]> = {
   systems: ['system', 'kind', 'feh', 'feh_err', 'ebv', 'ebv_err', 'age_gyr'],
   parallax: ['star', 'system', 'parallax', 'parallax_err', 'ra', 'dec'],

@@ -225,7 +225,7 @@ describe('supernovae [statistics]', () => {
 
 describe('kinematic luminosity distance [reference]', () => {
   it('agrees with astropy flat Lambda-CDM (Omega_m = 0.3) to the series truncation, < 2e-4 mag up to z = 0.15', () => {
-    // Truncation of the z^2 series: -1.1e-4 mag at z = 0.15 (methods.md section g); 2e-4 allows for it.
+    // Truncation of the z^2 series: -1.1e-4 mag at z = 0.15 (the series' truncation, checked against astropy in tests/reference/kinematics.test.ts); 2e-4 allows for it.
     const TRUNCATION_BOUND_MAG = 2e-4;
     const z = [0.01, 0.0233, 0.05, 0.1, 0.15];
     const ref = astropyFlatLcdmLuminosityDistances(70, 0.3, z);

@@ -41,15 +41,15 @@ const POSITIVE = TABLE_NAMES.flatMap((t) => fixtureColumns(t).filter((c) => spec
 describe('the contract itself, as the schema encodes it', () => {
   test('every *_err column, the period and the Hubble-flow redshift must be > 0, and nothing else', () => {
     const positive = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => c.positive).map((c) => `${t}.${c.name}`));
-    // The redshift: the model's Hubble-flow modulus is 5 log10(c z f(z)), defined for z > 0 only (release-format.md, the model).
+    // The redshift: the model's Hubble-flow modulus is 5 log10(c z f(z)), defined for z > 0 only (content/guide/input-format.md, the model).
     const expected = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => c.name.endsWith('_err') || c.name === 'period' || (t === 'sn_hubble_flow' && c.name === 'z')).map((c) => `${t}.${c.name}`));
     expect(positive).toEqual(expected);
-    // Counted by hand in release-format.md: systems 2, parallax 1, main_sequence 2,
+    // Counted by hand from the contract as agreed (content/guide/input-format.md), independently of the registry: systems 2, parallax 1, main_sequence 2,
     // cepheids 4 (period and three *_err), sn_calibrators 3, sn_hubble_flow 5 (z and four *_err).
     expect(positive.length).toBe(17);
   });
 
-  test('optional columns are exactly those marked opt. in release-format.md', () => {
+  test('optional columns are exactly those optional in the contract as agreed (list kept by hand, independent of the registry)', () => {
     const optional = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => !c.required).map((c) => `${t}.${c.name}`));
     expect(optional).toEqual([
       'systems.feh', 'systems.feh_err', 'systems.ebv', 'systems.ebv_err', 'systems.age_gyr',

@@ -1,6 +1,6 @@
 // The structured GLS against a plain dense solve of the same problem, and the exactness
 // of the error budget split. Kinds: comparison with an independent computation (the dense
-// textbook GLS formula q = (X^T C^-1 X)^-1 X^T C^-1 y, methods.md h); edge cases.
+// textbook GLS formula q = (X^T C^-1 X)^-1 X^T C^-1 y, Aitken 1935, Proc. R. Soc. Edinburgh 55, 42); edge cases.
 import { describe, expect, it } from 'vitest';
 import { solveGls, varianceBySource, SingularFitError, type GlsProblem, type RowBlock } from '../../src/ladder/gls.ts';
 import { solveGlsDense } from '../reference/denseGls.ts';

@@ -117,7 +117,7 @@ describe('noiseless data [recovery]', () => {
 
 // ---------------------------------------------------------------- metallicity
 
-describe('metallicity sign [reference: Twarog et al. 2009 slope 0.98 mag/dex; model of release-format.md]', () => {
+describe('metallicity sign [reference: Twarog et al. 2009 slope 0.98 mag/dex; model of content/guide/input-format.md]', () => {
   it('the same photometry with [Fe/H] higher by 0.1 dex gives mu larger by 0.098 mag', () => {
     // A metal-rich main sequence is brighter at fixed colour, so the same apparent
     // brightness means a larger distance: delta mu = +s delta[Fe/H] = 0.98 * 0.1.

@@ -75,7 +75,7 @@ describe('EDSD posterior mode [reference: Bailer-Jones 2015, PASP 127, 994, the 
     }
   });
 
-  it('sigma -> 0 gives 1/parallax and sigma -> infinity gives the prior mode 2L [Alg, methods.md b]', () => {
+  it('sigma -> 0 gives 1/parallax and sigma -> infinity gives the prior mode 2L [algebra; mode 2L of the exponentially decreasing space density prior, Bailer-Jones 2015, PASP 127, 994]', () => {
     for (const w of [0.1, 1, 25]) {
       expect(relErr(edsdPosteriorMode(w, w * 1e-7, L).modeKpc, 1 / w)).toBeLessThan(REL_1E9);
     }
@@ -188,7 +188,7 @@ describe('geometric anchors', () => {
   const an = analysis({ parallax_zero_point: -0.03, parallax_zero_point_err: 0.01, parallax_floor: 0.004 });
   const res = fitParallaxRung(rel, an);
 
-  it('weighted mean of the corrected parallaxes, floor in quadrature, mu = 10 - 5 log10(mean) [reference: methods.md b]', () => {
+  it('weighted mean of the corrected parallaxes, floor in quadrature, mu = 10 - 5 log10(mean) [reference: content/methods/parallax.md]', () => {
     // kestrel: weights 100, 25, 100; corrected = measured + 0.03.
     const mean = (100 * 10.03 + 25 * 10.13 + 100 * 9.93) / 225;
     const chi2 = 100 * (10.03 - mean) ** 2 + 25 * (10.13 - mean) ** 2 + 100 * (9.93 - mean) ** 2;

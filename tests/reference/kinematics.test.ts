@@ -7,8 +7,8 @@
  *
  * For Omega_m = 0.3, q0 = 3 Omega_m / 2 - 1 = -0.55 and j0 = 1. The series is
  * truncated after z^2, so it differs from the exact distance by a term of order
- * z^3: methods.md section g gives -3e-6, -3e-5 and -1.1e-4 mag at z = 0.05,
- * 0.10 and 0.15.
+ * z^3: about -3e-6, -3e-5 and -1.1e-4 mag at z = 0.05, 0.10 and 0.15 (our own
+ * earlier computation, kept as numbers; the astropy comparison below checks them).
  *
  * astropy missing is a failure (with the fix in the message), never a skip.
  */
@@ -29,7 +29,7 @@ const Q0 = (3 * OMEGA_M) / 2 - 1;
 const J0 = 1;
 const REDSHIFTS = [0.01, 0.023, 0.05, 0.08, 0.1, 0.12, 0.15];
 
-/** Truncation error of the series, mag, from methods.md section g (Omega_m = 0.3). */
+/** Truncation error of the series, mag (Omega_m = 0.3; see the header: our earlier computation). */
 const DOCUMENTED_TRUNCATION_MAG = new Map<number, number>([
   [0.05, -3e-6],
   [0.1, -3e-5],
@@ -43,7 +43,7 @@ function truncationBoundMag(z: number): number {
   return TRUNCATION_BOUND_MAG_AT_015 * (z / 0.15) ** 3;
 }
 
-/** Number of Simpson intervals (even); methods.md g asks >= 1e3 steps. */
+/** Number of Simpson intervals (even); at least 1e3 steps (common practice, no source). */
 const SIMPSON_INTERVALS = 4000;
 
 /**
@@ -102,7 +102,7 @@ describe('reference: kinematic d_L against astropy FlatLambdaCDM(H0=70, Om0=0.3,
   });
 });
 
-describe('reference: Hubble-flow intercept and velocity error (methods.md g, follows from the formulas)', () => {
+describe('reference: Hubble-flow intercept and velocity error (follows from the formulas; content/methods/hubble-flow.md quotes them)', () => {
   // Riess et al. 2016 form of a_B (from memory): a_B = log10{c z [...]} - 0.2 m_B, and
   // log10 H0 = (M_B + 5 a_B + 25) / 5 returns the H0 that placed the supernova.
   it('a_B built from a supernova at the kinematic distance returns its H0', () => {
@@ -115,7 +115,7 @@ describe('reference: Hubble-flow intercept and velocity error (methods.md g, fol
     }
   });
 
-  // methods.md g: sigma_v = 250 km/s at c z = 7000 km/s gives 0.078 mag.
+  // (5 / ln 10) sigma_v / (c z): sigma_v = 250 km/s at c z = 7000 km/s gives 0.078 mag (content/methods/hubble-flow.md).
   it('sigma_mu = (5 / ln 10) sigma_v / (c z): 0.078 mag for 250 km/s at c z = 7000 km/s', () => {
     expect(absErr(peculiarVelocityModulusErrorMag(7000 / C_KM_S, 250), 0.078)).toBeLessThanOrEqual(HALF_UNIT_3RD_DECIMAL);
   });
