@@ -4,7 +4,7 @@
  * O(n^3) loops are the right tool. Every function returns a new array and
  * never mutates its inputs.
  */
-import { choleskyOfRows, NotPositiveDefiniteError } from './cholesky.ts';
+import { choleskyOfRows, NotPositiveDefiniteError, solveCholesky } from './cholesky.ts';
 
 export type Matrix = number[][];
 
@@ -93,22 +93,10 @@ export function cholesky(a: Matrix): Matrix | null {
   return Array.from({ length: n }, (_, i) => Array.from(flat.subarray(i * n, (i + 1) * n)));
 }
 
-/** Solve (L L^T) x = b by forward and back substitution. Cost n^2. */
+/** Solve (L L^T) x = b by forward and back substitution (the core's, src/math/cholesky.ts). Cost n^2. */
 export function choleskySolve(l: Matrix, b: readonly number[]): number[] {
   const n = l.length;
-  const y = new Array<number>(n).fill(0);
-  for (let i = 0; i < n; i++) {
-    let s = b[i];
-    for (let k = 0; k < i; k++) s -= l[i][k] * y[k];
-    y[i] = s / l[i][i];
-  }
-  const x = new Array<number>(n).fill(0);
-  for (let i = n - 1; i >= 0; i--) {
-    let s = y[i];
-    for (let k = i + 1; k < n; k++) s -= l[k][i] * x[k];
-    x[i] = s / l[i][i];
-  }
-  return x;
+  return Array.from(solveCholesky(Float64Array.from(l.flat()), n, b));
 }
 
 /** Inverse of a symmetric positive definite matrix via Cholesky, or null if not SPD. Cost n^3. */
