@@ -2,6 +2,8 @@
  * The comparison as text (for a terminal) and as Markdown (a short message ready to paste
  * into an email or a chat, with absolute links to the report). Both read only the DiffReport;
  * JSON output is the report itself. Long lists are capped here (all rows are in the JSON).
+ * What they state (the headline on H0, the sigma wording, the rankings) comes from the
+ * comparison's one vocabulary (vocabulary.ts), which the report's comparison page uses too.
  */
 import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';

@@ -6,7 +6,10 @@
  *
  * Nothing here is computed anew: every number is the comparison's, formatted.
  * While a release is blinded the comparison has already withheld what must not
- * be shown (src/diff/blinding.ts); this module only marks what remains.
+ * be shown (src/diff/blinding.ts); this module only marks what remains. What
+ * the memo states (the headline on H0, the sigma wording, the rankings) comes
+ * from the comparison's one vocabulary (src/diff/vocabulary.ts), as the command
+ * line's does.
  */
 import { objectLink, systemPagePath } from '../../layout/anchors.ts';
 import { renderMarkdown, tableLine, unitSuffix } from '../../diff/render.ts';
