@@ -9,7 +9,7 @@ import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';
 import type { ColumnSummary, DiffReport, ObjectInfluence, ParameterShift, SystemShift, TableChange } from './types.ts';
 import { objectLink, systemPagePath } from '../layout/anchors.ts';
-import { h0Headline, MESSAGE, PLAIN, rankedContributions, rankedInputChanges, sigmaWords, signedNumber, type RankedInputChange } from './vocabulary.ts';
+import { GROUP_NAME_IN_TEXT, h0Headline, MESSAGE, PLAIN, rankedContributions, rankedInputChanges, sigmaWords, signedNumber, type RankedInputChange } from './vocabulary.ts';
 
 export { rankedContributions };
 
@@ -22,15 +22,6 @@ export const MARKDOWN_CONTRIBUTIONS_MAX = 3;
 export const MARKDOWN_INPUTS_MAX = 4;
 export const MARKDOWN_OBJECTS_MAX = 5;
 
-const GROUP_LABEL: Record<string, string> = {
-  parallax: 'parallaxes',
-  main_sequence: 'main-sequence photometry',
-  cepheids: 'Cepheids',
-  sn_calibrators: 'supernova calibrators',
-  sn_hubble_flow: 'Hubble-flow supernovae',
-  systems: 'systems table',
-  analysis: 'analysis choices',
-};
 
 /** x with a sign and `digits` decimals, as plain text ("+0.12", "-0.03", "0.00" for an exact zero). */
 export function signed(x: number, digits: number): string {
@@ -308,7 +299,7 @@ export function renderMarkdown(r: DiffReport): string {
   if (top.length && h && h.delta !== null) {
     L.push('');
     L.push(cancelling ? 'What moved it (partly cancelling):' : 'What moved it:');
-    for (const e of top) L.push(`- ${GROUP_LABEL[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
+    for (const e of top) L.push(`- ${GROUP_NAME_IN_TEXT[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
     const objs = r.top_objects.slice(0, MARKDOWN_OBJECTS_MAX);
     if (objs.length) {
       const named = (o: ObjectInfluence) => {

@@ -9,7 +9,7 @@
  * (a terminal line, a sentence of the message, a sentence of the page).
  */
 import { tableTouched } from './inputs.ts';
-import type { AnalysisChange, AttributionEntry, DiffReport, TableChange, VariantChange } from './types.ts';
+import type { AnalysisChange, AttributionEntry, DiffReport, GroupName, TableChange, VariantChange } from './types.ts';
 
 /** How a comparison's text is set. */
 export interface Typography {
@@ -107,6 +107,32 @@ export function h0Headline(r: DiffReport, t: Typography): H0Headline {
     flagged: h.flagged,
   };
 }
+
+/** The input groups as titles (table rows, figure labels on the page; the JSON keeps the keys). */
+export const GROUP_TITLE: Record<GroupName, string> = {
+  parallax: 'Parallaxes',
+  main_sequence: 'Main-sequence photometry',
+  cepheids: 'Cepheids',
+  sn_calibrators: 'Calibrator supernovae',
+  sn_hubble_flow: 'Hubble-flow supernovae',
+  systems: 'Systems table',
+  analysis: 'Analysis choices',
+};
+
+/**
+ * The input groups inside a sentence of the message to paste. (Its "supernova calibrators"
+ * and the page's "Calibrator supernovae" name one group in two ways; both are kept here,
+ * side by side, as long as the published words may not change.)
+ */
+export const GROUP_NAME_IN_TEXT: Record<GroupName, string> = {
+  parallax: 'parallaxes',
+  main_sequence: 'main-sequence photometry',
+  cepheids: 'Cepheids',
+  sn_calibrators: 'supernova calibrators',
+  sn_hubble_flow: 'Hubble-flow supernovae',
+  systems: 'systems table',
+  analysis: 'analysis choices',
+};
 
 /**
  * The groups that differ, largest contribution first, and whether they pull in opposite

@@ -1,19 +1,12 @@
 /**
- * Words and number forms shared by the comparison page and its figures.
+ * Words and number forms shared by the comparison page and its figures: the comparison's one
+ * vocabulary (src/diff/vocabulary.ts, which the command line uses too) in the page's typography,
+ * and the page's words for a row's change.
  */
-import type { GroupName, RowStatus } from '../../diff/types.ts';
+import type { RowStatus } from '../../diff/types.ts';
 import { sigmaWords, signedNumber, TYPOGRAPHIC } from '../../diff/vocabulary.ts';
 
-/** Plain titles of the attribution groups (the JSON keeps the table names). */
-export const GROUP_TITLE: Record<GroupName, string> = {
-  parallax: 'Parallaxes',
-  main_sequence: 'Main-sequence photometry',
-  cepheids: 'Cepheids',
-  sn_calibrators: 'Calibrator supernovae',
-  sn_hubble_flow: 'Hubble-flow supernovae',
-  systems: 'Systems table',
-  analysis: 'Analysis choices',
-};
+export { GROUP_TITLE } from '../../diff/vocabulary.ts';
 
 export const STATUS_TEXT: Record<RowStatus, string> = {
   same: 'unchanged',
