@@ -386,26 +386,26 @@ function priorWeights(snap: FitSnapshot, side: PreparedSide, z: ArrayLike<number
   return out;
 }
 
-/**
- * One side's estimates for the changed rows of the fit tables and the parallax table.
- * `self` is this side's release, `other` the other side's; `otherSnap` tells which rows the
- * other side's fit uses. Rows the side cannot estimate are left out.
- */
-export function sideRowEstimates(
-  side: PreparedSide,
-  self: Release,
-  other: Release,
-  otherSnap: FitSnapshot,
-  changed: { table: TableName; id: string }[],
-): RowEstimate[] {
+/** What one side's estimates share: its fit, the gradient of log10 H0, and lazily built indexes. */
+interface SideEstimator {
+  snap: FitSnapshot;
+  otherSnap: FitSnapshot;
+  g: ArrayLike<number>;
+  std: StandardisationResponse | null;
+  /** Kind of each system of this side's release. */
+  kindSelf: Map<string, string>;
+  fieldSystems: Set<string>;
+  /** This side's parallax rows of a system, in file order. */
+  parallaxOf: (system: string) => ParallaxRow[];
+  /** d log10 H0 / d mu of an anchor, through the prior moduli (and the main-sequence targets it calibrates). */
+  anchorDerivative: (system: string) => number;
+  /** An anchor's parallax modulus from these rows, null when they do not give one. */
+  anchorMu: (system: string, rows: ParallaxRow[]) => number | null;
+}
+
+function sideEstimator(side: PreparedSide, self: Release, otherSnap: FitSnapshot, g: ArrayLike<number>): SideEstimator {
   const snap = side.snap;
-  const g = log10H0Gradient(snap);
-  if (!g) return [];
   const z = covTimes(snap, g);
-  const std = standardisationResponse(snap, self, g);
-  const out: RowEstimate[] = [];
-  const kindSelf = new Map(self.systems.map((s) => [s.system, s.kind]));
-  const fieldSystems = new Set(self.systems.filter((s) => s.kind === 'field').map((s) => s.system));
   let parallaxBySystem: Map<string, ParallaxRow[]> | null = null;
   const parallaxOf = (system: string): ParallaxRow[] => {
     if (!parallaxBySystem) {
@@ -417,16 +417,6 @@ export function sideRowEstimates(
       }
     }
     return parallaxBySystem.get(system) ?? [];
-  };
-  const selfIndex = new Map<TableName, Map<string, AnyRow>>();
-  const otherIndex = new Map<TableName, Map<string, AnyRow>>();
-  const idx = (m: Map<TableName, Map<string, AnyRow>>, r: Release, t: TableName) => {
-    let x = m.get(t);
-    if (!x) {
-      x = indexById(t, tableRows(r, t));
-      m.set(t, x);
-    }
-    return x;
   };
   let wPrior: Map<string, number> | null = null;
   const anchorDerivative = (system: string): number => {
@@ -445,75 +435,117 @@ export function sideRowEstimates(
       throw e;
     }
   };
+  return {
+    snap,
+    otherSnap,
+    g,
+    std: standardisationResponse(snap, self, g),
+    kindSelf: new Map(self.systems.map((s) => [s.system, s.kind])),
+    fieldSystems: new Set(self.systems.filter((s) => s.kind === 'field').map((s) => s.system)),
+    parallaxOf,
+    anchorDerivative,
+    anchorMu,
+  };
+}
 
+/**
+ * A row of a fit table (Cepheids, supernovae) swapped in the fit: its old version out, the
+ * other side's in when that side's fit uses it. Undefined when the new version cannot be built
+ * here (no estimate), null when the swap has no linear response.
+ */
+function fitRowEffect(e: SideEstimator, fitTable: RowTable, id: string, mine: AnyRow | undefined, theirs: AnyRow | undefined): number | null | undefined {
+  const oldRow = mine ? rowInFit(e.snap, fitTable, id) : null;
+  const newRow = theirs && usedInFit(e.otherSnap, fitTable, id) ? buildFitRow(e.snap, e.fieldSystems, fitTable, theirs) : null;
+  if (theirs && usedInFit(e.otherSnap, fitTable, id) && !newRow) return undefined; // cannot take the new version here
+  const isSn = fitTable !== 'cepheids';
+  return swapEffect(
+    e.snap,
+    e.g,
+    e.std,
+    oldRow,
+    newRow,
+    isSn && oldRow ? (mine as unknown as SupernovaLightCurve) : null,
+    isSn && newRow ? (theirs as unknown as SupernovaLightCurve) : null,
+  );
+}
+
+/** A field star's parallax: the star enters the fit with its own parallax (only Cepheids do). */
+function fieldStarEffect(e: SideEstimator, system: string, id: string, pm: ParallaxRow | undefined, pt: ParallaxRow | undefined): number | null {
+  const oldRow = pm && pm.system === system ? rowInFit(e.snap, 'field_parallax', id) : null;
+  const newRow = pt && pt.system === system && usedInFit(e.otherSnap, 'field_parallax', id) ? buildFitRow(e.snap, e.fieldSystems, 'field_parallax', pt as unknown as AnyRow) : null;
+  if (pt && pt.system === system && usedInFit(e.otherSnap, 'field_parallax', id) && !newRow) return null;
+  return swapEffect(e.snap, e.g, e.std, oldRow, newRow, null, null);
+}
+
+/** A geometric anchor's parallax: its modulus recomputed with the row swapped, through the anchor's derivative. */
+function anchorEffect(e: SideEstimator, system: string, id: string, pt: ParallaxRow | undefined): number | null {
+  const rows = e.parallaxOf(system);
+  const swapped = rows.filter((r) => r.star !== id);
+  if (pt && pt.system === system) {
+    const at = rows.findIndex((r) => r.star === id);
+    if (at >= 0) swapped.splice(at, 0, pt);
+    else swapped.push(pt);
+  }
+  const before = e.anchorMu(system, rows);
+  const after = e.anchorMu(system, swapped);
+  if (before === null || after === null) return null;
+  return e.anchorDerivative(system) * (after - before);
+}
+
+/** A parallax row: summed over the systems it belongs to on either side; null when any cannot be estimated. */
+function parallaxRowEffect(e: SideEstimator, id: string, pm: ParallaxRow | undefined, pt: ParallaxRow | undefined): { dLog10: number; kind: RowEstimate['kind'] } | null {
+  const systems = new Set([pm?.system, pt?.system].filter((s): s is string => s !== undefined));
+  let total = 0;
+  let kind: RowEstimate['kind'] = 'linear';
+  for (const s of systems) {
+    const k = e.kindSelf.get(s);
+    if (k === undefined) return null;
+    if (k !== 'field') kind = 'anchor';
+    const d = k === 'field' ? fieldStarEffect(e, s, id, pm, pt) : anchorEffect(e, s, id, pt);
+    if (d === null) return null;
+    total += d;
+  }
+  return { dLog10: total, kind };
+}
+
+/**
+ * One side's estimates for the changed rows of the fit tables and the parallax table.
+ * `self` is this side's release, `other` the other side's; `otherSnap` tells which rows the
+ * other side's fit uses. Rows the side cannot estimate are left out.
+ */
+export function sideRowEstimates(
+  side: PreparedSide,
+  self: Release,
+  other: Release,
+  otherSnap: FitSnapshot,
+  changed: { table: TableName; id: string }[],
+): RowEstimate[] {
+  const g = log10H0Gradient(side.snap);
+  if (!g) return [];
+  const e = sideEstimator(side, self, otherSnap, g);
+  const out: RowEstimate[] = [];
+  const selfIndex = new Map<TableName, Map<string, AnyRow>>();
+  const otherIndex = new Map<TableName, Map<string, AnyRow>>();
+  const idx = (m: Map<TableName, Map<string, AnyRow>>, r: Release, t: TableName) => {
+    let x = m.get(t);
+    if (!x) {
+      x = indexById(t, tableRows(r, t));
+      m.set(t, x);
+    }
+    return x;
+  };
   for (const { table, id } of changed) {
     const mine = idx(selfIndex, self, table).get(id);
     const theirs = idx(otherIndex, other, table).get(id);
     const fitTable = FIT_TABLE[table];
     if (fitTable) {
-      const oldRow = mine ? rowInFit(snap, fitTable, id) : null;
-      const newRow = theirs && usedInFit(otherSnap, fitTable, id) ? buildFitRow(snap, fieldSystems, fitTable, theirs) : null;
-      if (theirs && usedInFit(otherSnap, fitTable, id) && !newRow) continue; // cannot take the new version here
-      const isSn = fitTable !== 'cepheids';
-      const d = swapEffect(
-        snap,
-        g,
-        std,
-        oldRow,
-        newRow,
-        isSn && oldRow ? (mine as unknown as SupernovaLightCurve) : null,
-        isSn && newRow ? (theirs as unknown as SupernovaLightCurve) : null,
-      );
-      if (d !== null) out.push({ table, id, dLog10: d, kind: 'linear' });
+      const d = fitRowEffect(e, fitTable, id, mine, theirs);
+      if (d !== null && d !== undefined) out.push({ table, id, dLog10: d, kind: 'linear' });
       continue;
     }
     if (table !== 'parallax') continue;
-    const pm = mine as unknown as ParallaxRow | undefined;
-    const pt = theirs as unknown as ParallaxRow | undefined;
-    const systems = new Set([pm?.system, pt?.system].filter((s): s is string => s !== undefined));
-    let total = 0;
-    let ok = true;
-    let kind: RowEstimate['kind'] = 'linear';
-    for (const s of systems) {
-      const k = kindSelf.get(s);
-      if (k === undefined) {
-        ok = false;
-        break;
-      }
-      if (k === 'field') {
-        // a field star enters the fit with its own parallax (only Cepheids do)
-        const oldRow = pm && pm.system === s ? rowInFit(snap, 'field_parallax', id) : null;
-        const newRow = pt && pt.system === s && usedInFit(otherSnap, 'field_parallax', id) ? buildFitRow(snap, fieldSystems, 'field_parallax', theirs!) : null;
-        if (pt && pt.system === s && usedInFit(otherSnap, 'field_parallax', id) && !newRow) {
-          ok = false;
-          break;
-        }
-        const d = swapEffect(snap, g, std, oldRow, newRow, null, null);
-        if (d === null) {
-          ok = false;
-          break;
-        }
-        total += d;
-        continue;
-      }
-      // geometric anchor: recompute its modulus with the row swapped
-      kind = 'anchor';
-      const rows = parallaxOf(s);
-      const swapped = rows.filter((r) => r.star !== id);
-      if (pt && pt.system === s) {
-        const at = rows.findIndex((r) => r.star === id);
-        if (at >= 0) swapped.splice(at, 0, pt);
-        else swapped.push(pt);
-      }
-      const before = anchorMu(s, rows);
-      const after = anchorMu(s, swapped);
-      if (before === null || after === null) {
-        ok = false;
-        break;
-      }
-      total += anchorDerivative(s) * (after - before);
-    }
-    if (ok) out.push({ table, id, dLog10: total, kind });
+    const p = parallaxRowEffect(e, id, mine as unknown as ParallaxRow | undefined, theirs as unknown as ParallaxRow | undefined);
+    if (p) out.push({ table, id, dLog10: p.dLog10, kind: p.kind });
   }
   return out;
 }

@@ -81,17 +81,6 @@ function message(e: unknown): { error: string; hint: string | null } {
   throw e;
 }
 
-/**
- * The rung cache a job reads (see runJob): side a and the swaps (which reuse a's parallax rung)
- * that of a, side b its own, a hybrid that of its earlyRungKey. A worker that ran a job with
- * the same key has the early rungs already (src/diff/pool.ts sends it such jobs first).
- */
-export function jobCacheKey(job: DiffJob): number {
-  if (job.kind === 'side') return job.side === 'a' ? 0 : -1;
-  if (job.kind === 'hybrid') return earlyRungKey(job.mask);
-  return 0;
-}
-
 export function runJob(ctx: JobContext, job: DiffJob): DiffJobResult {
   switch (job.kind) {
     case 'side': {

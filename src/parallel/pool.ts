@@ -1,6 +1,6 @@
 /**
  * A small generic pool of worker threads for independent, pure tasks (systematic variants,
- * recovery seeds). A task module exports
+ * recovery seeds, a comparison's recalibrations). A task module exports
  *   setup(data): context          -- once per worker, with the data every task shares
  *   handle(context, task): result -- one task; must depend only on (data, task)
  * and the pool returns the results in the order of the tasks, so the outcome is the same with

@@ -35,27 +35,22 @@ interface Step {
   kind: 'group' | 'total';
 }
 
-function waterfall(r: DiffReport): FigureSpec | null {
-  const detail = r.attribution_detail;
-  if (!detail || r.attribution.length === 0) return null;
-  const id = compareFigureId('attribution');
-  // Start at H0 of release a when values may be shown; at 0 (a shift) when they are hidden.
-  const h0a = r.h0 && r.h0.a !== null ? r.h0.a : null;
-  const origin = h0a ?? 0;
+/** The bars: each differing group from where the previous one ended, then the total from the origin. */
+function waterfallSteps(r: DiffReport, origin: number, total: number): Step[] {
   const steps: Step[] = [];
   let at = origin;
   for (const e of r.attribution.filter((x) => x.differs)) {
     steps.push({ label: GROUP_TITLE[e.group], start: at, end: at + e.delta_h0, delta: e.delta_h0, kind: 'group' });
     at += e.delta_h0;
   }
-  steps.push({ label: 'Total shift', start: origin, end: origin + detail.total, delta: detail.total, kind: 'total' });
-  const labels = steps.map((s) => s.label);
-  const sigma = r.h0?.sigma_diff ?? null;
-  const blinded = r.blinding.a || r.blinding.b;
-  const unit = 'km/s/Mpc';
-  const xLabel = h0a !== null ? `H₀ (${unit})` : `Shift of H₀ from release ${r.a} (${unit}${blinded ? ', blinded scale' : ''})`;
+  steps.push({ label: 'Total shift', start: origin, end: origin + total, delta: total, kind: 'total' });
+  return steps;
+}
 
-  const rows = steps.map((s) => ({ y: s.label, x1: r5(Math.min(s.start, s.end)), x2: r5(Math.max(s.start, s.end)), up: s.delta >= 0, total: s.kind === 'total', text: signedText(s.delta, 2), tx: r5(Math.max(s.start, s.end)) }));
+type WaterfallRow = { y: string; x1: number; x2: number; up: boolean; total: boolean; text: string; tx: number };
+
+/** Bars, value labels, the origin's line, the sigma bar under the total, the stamp and the legend. */
+function waterfallMarks(rows: WaterfallRow[], origin: number, total: number, sigma: number | null, blinded: boolean): { marks: Plot.Markish[]; marginTop: number } {
   const items: LegendItem[] = [
     { label: 'raises H₀', kind: 'band', fill: INK },
     { label: 'lowers H₀', kind: 'band', fill: 'white' },
@@ -66,16 +61,49 @@ function waterfall(r: DiffReport): FigureSpec | null {
   const marks: Plot.Markish[] = [
     Plot.gridX({ stroke: GREY, strokeOpacity: 0.2 }),
     Plot.ruleX([origin], { stroke: INK, strokeDasharray: '4,3' }),
-    Plot.barX(rows.filter((d) => !d.total), { y: 'y', x1: 'x1', x2: 'x2', fill: (d: (typeof rows)[number]) => (d.up ? INK : 'white'), stroke: INK, strokeWidth: 1, insetTop: 6, insetBottom: 6 }),
+    Plot.barX(rows.filter((d) => !d.total), { y: 'y', x1: 'x1', x2: 'x2', fill: (d: WaterfallRow) => (d.up ? INK : 'white'), stroke: INK, strokeWidth: 1, insetTop: 6, insetBottom: 6 }),
     Plot.barX(rows.filter((d) => d.total), { y: 'y', x1: 'x1', x2: 'x2', fill: LIGHT, stroke: INK, strokeWidth: 1, insetTop: 4, insetBottom: 4 }),
     Plot.text(rows, { y: 'y', x: 'tx', text: 'text', dx: 6, textAnchor: 'start', fill: INK }),
   ];
   if (sigma !== null && sigma > 0) {
-    const end = origin + detail.total;
+    const end = origin + total;
     marks.push(Plot.ruleY([{ y: 'Total shift', x1: r5(end - sigma), x2: r5(end + sigma) }], { y: 'y', x1: 'x1', x2: 'x2', stroke: INK, strokeWidth: 1.5, dy: 12 }));
   }
   if (blinded) marks.push(blindedStamp());
   marks.push(...leg.marks);
+  return { marks, marginTop: leg.marginTop };
+}
+
+/** The attribution as data (one row per input group, as in the comparison's JSON). */
+function attributionCsv(r: DiffReport, unit: string): FigureSpec['csv'] {
+  return {
+    columns: [
+      col('group', 'string', undefined, 'input group (table of the release, or analysis for the choices in release.yaml)'),
+      col('differs', 'bool', undefined, 'the group differs between the releases'),
+      col('delta_h0', 'float64', unit, 'Shapley contribution to the H0 shift'),
+      col('fraction', 'float64', '', 'share of the total shift'),
+      col('rows_sum', 'float64', unit, 'sum of the per-row estimates of this group'),
+    ],
+    rows: r.attribution.map((e) => ({ group: e.group, differs: e.differs, delta_h0: e.delta_h0, fraction: e.fraction, rows_sum: e.rows_sum })),
+  };
+}
+
+function waterfall(r: DiffReport): FigureSpec | null {
+  const detail = r.attribution_detail;
+  if (!detail || r.attribution.length === 0) return null;
+  const id = compareFigureId('attribution');
+  // Start at H0 of release a when values may be shown; at 0 (a shift) when they are hidden.
+  const h0a = r.h0 && r.h0.a !== null ? r.h0.a : null;
+  const origin = h0a ?? 0;
+  const steps = waterfallSteps(r, origin, detail.total);
+  const labels = steps.map((s) => s.label);
+  const sigma = r.h0?.sigma_diff ?? null;
+  const blinded = r.blinding.a || r.blinding.b;
+  const unit = 'km/s/Mpc';
+  const xLabel = h0a !== null ? `H₀ (${unit})` : `Shift of H₀ from release ${r.a} (${unit}${blinded ? ', blinded scale' : ''})`;
+
+  const rows: WaterfallRow[] = steps.map((s) => ({ y: s.label, x1: r5(Math.min(s.start, s.end)), x2: r5(Math.max(s.start, s.end)), up: s.delta >= 0, total: s.kind === 'total', text: signedText(s.delta, 2), tx: r5(Math.max(s.start, s.end)) }));
+  const { marks, marginTop } = waterfallMarks(rows, origin, detail.total, sigma, blinded);
   // Room on the right for the value labels.
   const xs = rows.flatMap((d) => [d.x1, d.x2]).concat(sigma ? [origin + detail.total - sigma, origin + detail.total + sigma] : []);
   const lo = Math.min(...xs);
@@ -84,8 +112,8 @@ function waterfall(r: DiffReport): FigureSpec | null {
   const out = renderSvg({
     id,
     label: `Attribution of the H0 shift between releases ${r.a} and ${r.b}`,
-    height: 60 + 40 * rows.length + leg.marginTop,
-    marginTop: leg.marginTop,
+    height: 60 + 40 * rows.length + marginTop,
+    marginTop,
     marginLeft: 170,
     marginRight: 30,
     y: { label: null, domain: labels, tickFormat: (s: string) => clip(s, 26) },
@@ -109,16 +137,7 @@ function waterfall(r: DiffReport): FigureSpec | null {
         .join('; ') +
       (blinded ? '. Blinded: shifts are in blinded km/s/Mpc (the true shifts times the common hidden factor).' : '.'),
     ...out,
-    csv: {
-      columns: [
-        col('group', 'string', undefined, 'input group (table of the release, or analysis for the choices in release.yaml)'),
-        col('differs', 'bool', undefined, 'the group differs between the releases'),
-        col('delta_h0', 'float64', unit, 'Shapley contribution to the H0 shift'),
-        col('fraction', 'float64', '', 'share of the total shift'),
-        col('rows_sum', 'float64', unit, 'sum of the per-row estimates of this group'),
-      ],
-      rows: r.attribution.map((e) => ({ group: e.group, differs: e.differs, delta_h0: e.delta_h0, fraction: e.fraction, rows_sum: e.rows_sum })),
-    },
+    csv: attributionCsv(r, unit),
     thinned: null,
     blinded,
   };
@@ -138,19 +157,13 @@ const AXIS: Record<Overlay['id'], { x: string; y: string }> = {
   'ladder-diagram': { x: 'Distance (log scale)', y: '' },
 };
 
-function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): FigureSpec | null {
-  const id = compareFigureId(figure);
-  const all: Drawn[] = [...o.a.points.map((p) => ({ side: 'a' as const, p })), ...o.b.points.map((p) => ({ side: 'b' as const, p }))];
-  if (all.length === 0) return null;
-  // Thin each side on its own (changed points always kept), so both stay visible.
-  const ta = thin(all.filter((d) => d.side === 'a'), (d) => d.p.changed);
-  const tb = thin(all.filter((d) => d.side === 'b'), (d) => d.p.changed);
-  const ladder = o.id === 'ladder-diagram';
-  const cats = o.x_categories ?? [];
-  // The ladder is drawn as the release pages draw it: rungs as rows, distance across; a above b in each row.
-  const pos = (d: Drawn) =>
-    ladder ? { x: r5(d.p.y), y: r5(d.p.x + (d.side === 'a' ? -0.17 : 0.17)) } : { x: r5(d.p.x), y: r5(d.p.y) };
-  const rows = [...ta.rows, ...tb.rows].map((d) => ({ ...pos(d), side: d.side, changed: d.p.changed, rejected: d.p.rejected }));
+type OverlayRow = { x: number; y: number; side: 'a' | 'b'; changed: boolean; rejected: boolean };
+
+/**
+ * Points of both releases (a: open grey, b: black; a changed row a grey cross on a's side and an
+ * open triangle on b's), each side's fit line, the stamp and the legend.
+ */
+function overlayMarks(r: DiffReport, o: Overlay, rows: OverlayRow[], ladder: boolean, marginLeft: number): { marks: Plot.Markish[]; marginTop: number } {
   const marks: Plot.Markish[] = [Plot.gridY({ stroke: GREY, strokeOpacity: 0.15 })];
   if (ladder) marks.push(Plot.gridX({ stroke: GREY, strokeOpacity: 0.15 }));
   const pick = (side: 'a' | 'b', changed: boolean) => rows.filter((d) => d.side === side && d.changed === changed);
@@ -172,14 +185,70 @@ function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): Figure
     items.push({ label: `fit ${side === 'a' ? r.a : r.b}`, kind: 'line', width: side === 'a' ? 2 : 1.5, dash: side === 'a' ? '6,4' : undefined });
   }
   if (o.blinded) marks.push(blindedStamp());
-  const marginLeft = ladder ? 110 : 60;
   const leg = legend(items, FIGURE_WIDTH, marginLeft);
   marks.push(...leg.marks);
+  return { marks, marginTop: leg.marginTop };
+}
+
+/** Every point of both releases as data (not thinned): the ladder by rung and distance, the others by x and y. */
+function overlayCsv(r: DiffReport, o: Overlay, all: Drawn[], cats: string[]): FigureSpec['csv'] {
+  if (o.id === 'ladder-diagram') {
+    return {
+      columns: [
+        col('release', 'string'),
+        col('id', 'string', undefined, 'system, or Hubble-flow supernova'),
+        col('rung', 'string'),
+        col('distance', 'float64', 'Mpc'),
+        col('distance_err', 'float64', 'Mpc', 'first order from the error of the distance modulus'),
+        col('status', 'string', undefined, 'same, or corrected when any input row of the system changed; added or removed for supernovae'),
+      ],
+      rows: all.map((d) => ({ release: d.side === 'a' ? r.a : r.b, id: d.p.id, rung: cats[d.p.x] ?? String(d.p.x), distance: d.p.y, distance_err: d.p.y_err, status: d.p.status })),
+    };
+  }
+  return {
+    columns: [
+      col('release', 'string'),
+      col('id', 'string', undefined, 'row id (star or supernova)'),
+      col('system', 'string'),
+      col(o.id === 'pl-relation' ? 'log_period' : 'z', 'float64', '', o.x_label),
+      col(o.id === 'pl-relation' ? 'abs_w' : 'mu', 'float64', 'mag', o.y_label),
+      col('err', 'float64', 'mag'),
+      col('rejected', 'bool'),
+      col('status', 'string', undefined, 'same, corrected, remeasured, added or removed between the releases'),
+    ],
+    rows: all.map((d) => ({
+      release: d.side === 'a' ? r.a : r.b,
+      id: d.p.id,
+      system: d.p.system,
+      [o.id === 'pl-relation' ? 'log_period' : 'z']: d.p.x,
+      [o.id === 'pl-relation' ? 'abs_w' : 'mu']: d.p.y,
+      err: d.p.y_err,
+      rejected: d.p.rejected,
+      status: d.p.status,
+    })),
+  };
+}
+
+function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): FigureSpec | null {
+  const id = compareFigureId(figure);
+  const all: Drawn[] = [...o.a.points.map((p) => ({ side: 'a' as const, p })), ...o.b.points.map((p) => ({ side: 'b' as const, p }))];
+  if (all.length === 0) return null;
+  // Thin each side on its own (changed points always kept), so both stay visible.
+  const ta = thin(all.filter((d) => d.side === 'a'), (d) => d.p.changed);
+  const tb = thin(all.filter((d) => d.side === 'b'), (d) => d.p.changed);
+  const ladder = o.id === 'ladder-diagram';
+  const cats = o.x_categories ?? [];
+  // The ladder is drawn as the release pages draw it: rungs as rows, distance across; a above b in each row.
+  const pos = (d: Drawn) =>
+    ladder ? { x: r5(d.p.y), y: r5(d.p.x + (d.side === 'a' ? -0.17 : 0.17)) } : { x: r5(d.p.x), y: r5(d.p.y) };
+  const rows: OverlayRow[] = [...ta.rows, ...tb.rows].map((d) => ({ ...pos(d), side: d.side, changed: d.p.changed, rejected: d.p.rejected }));
+  const marginLeft = ladder ? 110 : 60;
+  const { marks, marginTop } = overlayMarks(r, o, rows, ladder, marginLeft);
   const out = renderSvg({
     id,
     label: o.title,
-    height: (ladder ? 300 : 420) + leg.marginTop,
-    marginTop: leg.marginTop,
+    height: (ladder ? 300 : 420) + marginTop,
+    marginTop,
     marginLeft,
     x: ladder
       ? { type: 'log', label: AXIS[o.id].x, tickFormat: distanceTickText }
@@ -203,40 +272,7 @@ function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): Figure
       `${int(count('a'))} points of release ${r.a} (${int(count('a', true))} changed or removed) and ${int(count('b'))} of release ${r.b} (${int(count('b', true))} changed or added).` +
       (o.blinded ? ' Blinded: the Hubble-flow values carry the hidden offset.' : ''),
     ...out,
-    csv: ladder
-      ? {
-          columns: [
-            col('release', 'string'),
-            col('id', 'string', undefined, 'system, or Hubble-flow supernova'),
-            col('rung', 'string'),
-            col('distance', 'float64', 'Mpc'),
-            col('distance_err', 'float64', 'Mpc', 'first order from the error of the distance modulus'),
-            col('status', 'string', undefined, 'same, or corrected when any input row of the system changed; added or removed for supernovae'),
-          ],
-          rows: all.map((d) => ({ release: d.side === 'a' ? r.a : r.b, id: d.p.id, rung: cats[d.p.x] ?? String(d.p.x), distance: d.p.y, distance_err: d.p.y_err, status: d.p.status })),
-        }
-      : {
-          columns: [
-            col('release', 'string'),
-            col('id', 'string', undefined, 'row id (star or supernova)'),
-            col('system', 'string'),
-            col(o.id === 'pl-relation' ? 'log_period' : 'z', 'float64', '', o.x_label),
-            col(o.id === 'pl-relation' ? 'abs_w' : 'mu', 'float64', 'mag', o.y_label),
-            col('err', 'float64', 'mag'),
-            col('rejected', 'bool'),
-            col('status', 'string', undefined, 'same, corrected, remeasured, added or removed between the releases'),
-          ],
-          rows: all.map((d) => ({
-            release: d.side === 'a' ? r.a : r.b,
-            id: d.p.id,
-            system: d.p.system,
-            [o.id === 'pl-relation' ? 'log_period' : 'z']: d.p.x,
-            [o.id === 'pl-relation' ? 'abs_w' : 'mu']: d.p.y,
-            err: d.p.y_err,
-            rejected: d.p.rejected,
-            status: d.p.status,
-          })),
-        },
+    csv: overlayCsv(r, o, all, cats),
     thinned,
     blinded: o.blinded,
   };

@@ -6,11 +6,15 @@
  *
  * Nothing here is computed anew: every number is the comparison's, formatted.
  * While a release is blinded the comparison has already withheld what must not
- * be shown (src/diff/blinding.ts); this module only marks what remains.
+ * be shown (src/diff/blinding.ts); this module only marks what remains. What
+ * the memo states (the headline on H0, the sigma wording, the rankings) comes
+ * from the comparison's one vocabulary (src/diff/vocabulary.ts), as the command
+ * line's does.
  */
 import { objectLink, systemPagePath } from '../../layout/anchors.ts';
-import { rankedContributions, renderMarkdown, tableLine, unitSuffix } from '../../diff/render.ts';
+import { renderMarkdown, tableLine, unitSuffix } from '../../diff/render.ts';
 import { tableTouched } from '../../diff/inputs.ts';
+import { h0Headline, rankedContributions, rankedInputChanges, TYPOGRAPHIC, type RankedInputChange } from '../../diff/vocabulary.ts';
 import type { DiffReport, ParameterShift, Shift, SystemShift } from '../../diff/types.ts';
 import { analysisValueText, fixed, int, sig } from '../format.ts';
 import { ANALYSIS_UNITS } from '../../types/analysis.ts';
@@ -46,21 +50,23 @@ function paramDecimals(p: ParameterShift): number {
   return Math.min(6, Math.max(2, 1 - Math.floor(Math.log10(ref))));
 }
 
+/** The memo's opening sentence on H0 (src/diff/vocabulary.ts decides what it states). */
 function headlineText(r: DiffReport): { text: string; flagged: boolean } {
-  const h = r.h0;
   if (r.identical) return { text: `Nothing changed: releases ${r.a} and ${r.b} have identical inputs and analysis choices, and every result is the same.`, flagged: false };
-  if (!h) return { text: `H₀ is not measured in both releases (${r.a}: ${r.releases.a.reached}; ${r.b}: ${r.releases.b.reached}); the other results are compared below.`, flagged: false };
+  const hl = h0Headline(r, TYPOGRAPHIC);
+  if (hl.case === 'not-measured') return { text: `H₀ is not measured in both releases (${r.a}: ${r.releases.a.reached}; ${r.b}: ${r.releases.b.reached}); the other results are compared below.`, flagged: false };
   // the blinding sentence itself stands in its own marked line below the headline
-  if (h.delta === null) return { text: 'H₀ and its shift are withheld because of blinding. Everything that does not follow from H₀ is compared below.', flagged: false };
-  const size = `${signedText(h.delta, 2)} ${H0_UNIT}`;
-  const values = h.a !== null && h.b !== null ? `, from ${fixed(h.a, 2)} to ${fixed(h.b, 2)}` : ' (a shift of blinded values: the true shift times the common hidden factor)';
-  const sigma = h.deterministic
-    ? 'The shift has no statistical spread: it comes from changed choices, or changed values at fixed noise.'
-    : h.sigma_diff !== null
-      ? `That is ${sigmaText(h.delta_sigma)} of the uncertainty of the difference (σ = ${fixed(h.sigma_diff, 2)} ${H0_UNIT}; the naive quadrature sum of both errors would say ${h.sigma_naive === null ? '—' : fixed(h.sigma_naive, 2)}).`
-      : 'The uncertainty of the difference could not be estimated.';
-  const flag = h.flagged ? ` Flagged: above ${r.flag_threshold_sigma} σ of the difference.` : '';
-  return { text: `H₀ moved by ${size}${values}. ${sigma}${flag}`, flagged: h.flagged };
+  if (hl.case === 'withheld') return { text: 'H₀ and its shift are withheld because of blinding. Everything that does not follow from H₀ is compared below.', flagged: false };
+  const size = `${hl.shift} ${H0_UNIT}`;
+  const values = hl.values ? `, from ${hl.values.a} to ${hl.values.b}` : ' (a shift of blinded values: the true shift times the common hidden factor)';
+  const sigma =
+    hl.spread === 'no-spread'
+      ? 'The shift has no statistical spread: it comes from changed choices, or changed values at fixed noise.'
+      : hl.spread === 'sigma'
+        ? `That is ${hl.sigma} of the uncertainty of the difference (σ = ${hl.sigmaDiff} ${H0_UNIT}; the naive quadrature sum of both errors would say ${hl.naive ?? '—'}).`
+        : 'The uncertainty of the difference could not be estimated.';
+  const flag = hl.flagged ? ` Flagged: above ${r.flag_threshold_sigma} σ of the difference.` : '';
+  return { text: `H₀ moved by ${size}${values}. ${sigma}${flag}`, flagged: hl.flagged };
 }
 
 function contributionsText(r: DiffReport): string | null {
@@ -73,11 +79,19 @@ function contributionsText(r: DiffReport): string | null {
   return `What moved it: ${parts.join(', ')}${rest} ${H0_UNIT}${cancelling ? ', partly cancelling' : ''}.`;
 }
 
+/** One input change of the memo's opening (variants are listed with the inputs, not here). */
+function openingInputChange(x: Exclude<RankedInputChange, { kind: 'variant' }>): string {
+  if (x.kind === 'table') return tableLine(x.change).replaceAll(' -> ', ' → ');
+  const c = x.change;
+  return `release.yaml: ${c.key} ${analysisValueText(c.a)} → ${analysisValueText(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}`;
+}
+
+/** The largest input changes, in the comparison's one ranking (src/diff/vocabulary.ts). */
 function largestInputs(r: DiffReport): string[] {
-  const out: { weight: number; text: string }[] = [];
-  for (const t of r.inputs.filter(tableTouched)) out.push({ weight: t.added + t.removed + t.changed + (t.column_changes.length ? 1e6 : 0), text: tableLine(t).replaceAll(' -> ', ' → ') });
-  for (const c of r.input_changes.analysis) out.push({ weight: Infinity, text: `release.yaml: ${c.key} ${analysisValueText(c.a)} → ${analysisValueText(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}` });
-  return out.sort((x, y) => y.weight - x.weight).slice(0, OPENING_INPUTS_MAX).map((x) => x.text);
+  return rankedInputChanges(r)
+    .filter((x): x is Exclude<RankedInputChange, { kind: 'variant' }> => x.kind !== 'variant')
+    .slice(0, OPENING_INPUTS_MAX)
+    .map(openingInputChange);
 }
 
 function keyValues(r: DiffReport): KeyValue[] {
@@ -177,8 +191,9 @@ function objectsTable(r: DiffReport): TableView | null {
   );
 }
 
-function inputTables(r: DiffReport): ComparisonView['inputs'] {
-  const tables = tableView(
+/** One row per input table: rows before and after, added, removed, changed, and what else differs. */
+function tablesTable(r: DiffReport): TableView {
+  return tableView(
     'input-tables',
     'Tables',
     [
@@ -208,6 +223,10 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
     ]),
     { marks: r.inputs.map((t) => (tableTouched(t) ? 'flagged' : null)) },
   );
+}
+
+/** The columns whose values changed: how many rows, the median and largest change. Null when none. */
+function columnsTable(r: DiffReport): TableView | null {
   const colRows: string[][] = [];
   for (const t of r.inputs) {
     for (const c of t.columns) {
@@ -222,7 +241,7 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
       ]);
     }
   }
-  const columns = colRows.length
+  return colRows.length
     ? tableView(
         'input-columns',
         'Columns that changed',
@@ -239,9 +258,12 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
         { caption: 'Changes are new minus old, in the unit of the column; a text column lists how many rows differ.' },
       )
     : null;
-  const columnChanges = r.inputs.flatMap((t) => t.column_changes.map((c) => `${t.table}: ${c.detail}`));
+}
+
+/** The analysis choices of release.yaml that differ, each side's value (and whether it is the default). Null when none. */
+function analysisTable(r: DiffReport): TableView | null {
   const ic = r.input_changes;
-  const analysis = ic.analysis.length
+  return ic.analysis.length
     ? tableView(
         'analysis-changes',
         'Analysis choices (release.yaml)',
@@ -254,13 +276,23 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
         ic.analysis.map((c) => [c.key, ANALYSIS_UNITS[c.key] || '—', `${analysisValueText(c.a)}${c.set_a ? '' : ' (default)'}`, `${analysisValueText(c.b)}${c.set_b ? '' : ' (default)'}`]),
       )
     : null;
-  const other: string[] = [
+}
+
+/** Changes that are no table's: choices set on one side only, variants, release.yaml fields, the notes. */
+function otherChanges(r: DiffReport): string[] {
+  const ic = r.input_changes;
+  return [
     ...ic.analysis_set_only.map((k) => `release.yaml: ${k} keeps its value but is set explicitly on one side only.`),
     ...ic.variants.map((v) => `Systematic variant "${v.name}" ${v.kind}.`),
     ...ic.manifest.map((m) => `release.yaml ${m.field}: ${analysisValueText(m.a)} → ${analysisValueText(m.b)}.`),
     ...(ic.notes_changed ? ['The release notes (notes.md) changed.'] : []),
   ];
-  const cells = ic.cells.length
+}
+
+/** The changed values themselves, up to PAGE_CELLS_MAX. Null when none. */
+function cellsTable(r: DiffReport): TableView | null {
+  const ic = r.input_changes;
+  return ic.cells.length
     ? tableView(
         'changed-values',
         'Changed values',
@@ -276,7 +308,11 @@ function inputTables(r: DiffReport): ComparisonView['inputs'] {
         { limit: PAGE_CELLS_MAX, caption: `All ${int(ic.cells.length)} changed values are in the output of \`rungbook diff --format json\` on the two release folders.` },
       )
     : null;
-  return { tables, columns, columnChanges, analysis, other, cells };
+}
+
+function inputTables(r: DiffReport): ComparisonView['inputs'] {
+  const columnChanges = r.inputs.flatMap((t) => t.column_changes.map((c) => `${t.table}: ${c.detail}`));
+  return { tables: tablesTable(r), columns: columnsTable(r), columnChanges, analysis: analysisTable(r), other: otherChanges(r), cells: cellsTable(r) };
 }
 
 function decimalsFor(...xs: (number | null)[]): number {

@@ -1,19 +1,12 @@
 /**
- * Words and number forms shared by the comparison page and its figures.
+ * Words and number forms shared by the comparison page and its figures: the comparison's one
+ * vocabulary (src/diff/vocabulary.ts, which the command line uses too) in the page's typography,
+ * and the page's words for a row's change.
  */
-import type { GroupName, RowStatus } from '../../diff/types.ts';
-import { fixed } from '../format.ts';
+import type { RowStatus } from '../../diff/types.ts';
+import { sigmaWords, signedNumber, TYPOGRAPHIC } from '../../diff/vocabulary.ts';
 
-/** Plain titles of the attribution groups (the JSON keeps the table names). */
-export const GROUP_TITLE: Record<GroupName, string> = {
-  parallax: 'Parallaxes',
-  main_sequence: 'Main-sequence photometry',
-  cepheids: 'Cepheids',
-  sn_calibrators: 'Calibrator supernovae',
-  sn_hubble_flow: 'Hubble-flow supernovae',
-  systems: 'Systems table',
-  analysis: 'Analysis choices',
-};
+export { GROUP_TITLE } from '../../diff/vocabulary.ts';
 
 export const STATUS_TEXT: Record<RowStatus, string> = {
   same: 'unchanged',
@@ -23,13 +16,12 @@ export const STATUS_TEXT: Record<RowStatus, string> = {
   removed: 'removed',
 };
 
-/** "+0.31", "−0.05" (typographic minus), "0.00" for an exact zero. */
+/** "+0.31", "−0.05" (typographic minus), "0.00" for zero or a number that rounds to it (the comparison's vocabulary, src/diff/vocabulary.ts). */
 export function signedText(x: number, decimals: number): string {
-  if (x === 0 || Number(x.toFixed(decimals)) === 0) return fixed(0, decimals);
-  return x > 0 ? `+${fixed(x, decimals)}` : fixed(x, decimals);
+  return signedNumber(x, decimals, TYPOGRAPHIC);
 }
 
-/** Shift in units of the uncertainty of the difference: "+1.3 σ". */
+/** Shift in units of the uncertainty of the difference: "+1.3 σ" (the comparison's sigma wording, src/diff/vocabulary.ts). */
 export function sigmaText(x: number | null): string {
-  return x === null ? '—' : `${signedText(x, 1)} σ`;
+  return sigmaWords(x, TYPOGRAPHIC);
 }
