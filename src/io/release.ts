@@ -15,7 +15,7 @@ import { TABLE_SPECS, type TableRows } from './schema.ts';
 import { nearest } from './suggest.ts';
 import { parseTable, type TableRead } from './table.ts';
 import { decodeUtf8, sha256Hex } from './text.ts';
-import { verifyPublishedFolder } from '../publish/record.ts';
+import { verifyPublishedFolder } from './publishedRecord.ts';
 
 /** Tables whose `system` column must name a row of `systems`. */
 const REFERENCING_TABLES = TABLE_NAMES.filter((t) => TABLE_SPECS[t].systemRef !== undefined);
@@ -99,7 +99,7 @@ export function loadRelease(dir: string): Release {
   }
 
   // A published release is frozen: refuse it at once if a file changed since publication
-  // (src/publish/record.ts), before anything is read from the changed files.
+  // (src/io/publishedRecord.ts), before anything is read from the changed files.
   const frozen = verifyPublishedFolder(dir);
   if (frozen.length > 0) throw new InputError(frozen);
 

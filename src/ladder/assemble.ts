@@ -17,7 +17,7 @@ import type {
   VariantResult,
 } from '../types/results.ts';
 import { RESULTS_SCHEMA } from '../types/results.ts';
-import type { LadderRun } from './calibrate.ts';
+import type { LadderRun } from './ladderRun.ts';
 import { PARAM, systemParam } from './globalModel.ts';
 import { wesenheitMagnitude } from './cepheids.ts';
 import { correctedMagnitude, correctedMagnitudeVariance } from './supernovae.ts';
@@ -27,7 +27,7 @@ import { massStepIndicator } from './massStep.ts';
 import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
 import { systematicSources } from './budget.ts';
 import { chiSquarePValue } from '../math/special.ts';
-import type { CalibrateOptions } from './calibrate.ts';
+import type { CalibrateOptions } from './ladderRun.ts';
 
 /** chi2/dof outside this band gets a warning (common practice, no source). */
 const CHI2_PER_DOF_WARN: readonly [number, number] = [0.7, 1.5];

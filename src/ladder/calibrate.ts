@@ -10,7 +10,8 @@ import { RESULTS_SCHEMA } from '../types/results.ts';
 import { AnalysisError, type AnalysisProblem } from '../types/issues.ts';
 import type { DistancePriorBlock } from './types.ts';
 import { fitParallaxRung } from './parallax.ts';
-import { fitMainSequenceRung, buildDistancePriors } from './mainSequence.ts';
+import { fitMainSequenceRung } from './mainSequence.ts';
+import { buildDistancePriors } from './mainSequencePriors.ts';
 import { emptySampleProblem, selectHubbleFlow, log10H0 } from './hubbleFlow.ts';
 import { cepheidChecks } from './cepheids.ts';
 import { fitGlobal } from './globalFit.ts';
@@ -20,20 +21,10 @@ import { errorBudget, systematicError } from './budget.ts';
 import { changesData, netShift, sourceOfVariant, variantAnalysis, variantNoiseH0 } from './variants.ts';
 import { massStepProblem } from './massStep.ts';
 import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
+import type { CalibrateOptions, LadderRun } from './ladderRun.ts';
 
-/** Everything one pass of the ladder produces (before variants). */
-export interface LadderRun {
-  analysis: AnalysisChoices;
-  parallax: ReturnType<typeof fitParallaxRung>;
-  mainSequence: ReturnType<typeof fitMainSequenceRung>;
-  priors: DistancePriorBlock;
-  hubbleFlow: ReturnType<typeof selectHubbleFlow>;
-  fit: ReturnType<typeof fitGlobal> | null;
-  /** log10 H0 and its statistical variance, when the Hubble flow is reached. */
-  log10H0: { value: number; variance: number; gradient: Float64Array } | null;
-  checks: CheckResult[];
-  reached: Results['reached'];
-}
+// The run's shape lives below the modules that read it (assemble, budget, variants): no import cycle.
+export type { CalibrateOptions, LadderRun } from './ladderRun.ts';
 
 /** Analysis keys each early rung depends on: variants that leave them alone reuse the rung. */
 const PARALLAX_KEYS = ['parallax_zero_point', 'parallax_zero_point_err', 'parallax_floor'] as const;
@@ -178,10 +169,6 @@ export function checkLadder(release: Release): AnalysisProblem[] {
     throw e;
   }
   return [];
-}
-
-export interface CalibrateOptions {
-  codeVersion: string;
 }
 
 /**

@@ -17,8 +17,6 @@ import { fitTarget, type ReddeningPrior, type TargetFit } from './mainSequenceTa
 import { mainSequenceChecks, type CheckInputs } from './mainSequenceChecks.ts';
 import type { ParallaxRungResult } from './parallax.ts';
 
-export { buildDistancePriors } from './mainSequencePriors.ts';
-
 /** Locus stars needed per polynomial coefficient (the mixture also fits a fraction and a scatter). */
 export const MIN_LOCUS_STARS_PER_COEFF = 5;
 /** Stars needed in a target's colour range: two parameters and a binary fraction, with margin. */
