@@ -737,46 +737,27 @@ function standardisationJacobian(prep: PreparedModel, state: FitState, name: 'al
   return Array.from(qp, (x, i) => (x - qm[i]) / (2 * h));
 }
 
-/**
- * Sandwich covariance of (alpha, beta): A^-1 B A^-1 with A = half the Hessian of the profile
- * chi-square and B = sum over rows of the outer products of each row's efficient score
- * (its score in theta minus the part explained by the linear parameters),
- *   s_i = psi_theta,i - A_theta,q F^-1 psi_q,i,
- * with residuals inflated by 1/sqrt(1 - h_i) (leverage correction). Without the row-wise B the
- * curvature alone understates the errors, because x1 and c are measured with noise.
- * The supernova scatter is estimated with alpha and beta: its equation is a third estimating
- * function (row terms r^2/v - (1 - h)), and A gains its cross derivatives, so that beta's error
- * includes how beta moves with the fitted scatter (measured: beta's pulls had an SD of 1.06
- * over 400 simulated releases without this, 1.00 with it; content/methods/global-fit.md).
- */
-function sandwichCovariance(
+/** One row of a diagonal block as the sandwich sees it: residual, variance, leverage, d r / d theta, d v / d theta. */
+interface SandwichRow {
+  sn: boolean;
+  x: { idx: number[]; coef: number[] };
+  r: number;
+  v: number;
+  h: number;
+  dr: number[];
+  dv: number[];
+}
+
+/** The per-row quantities of the diagonal blocks (derivatives in the free parameters `which` only). */
+function sandwichRows(
   input: GlobalFitInput,
-  params: ParameterIndex,
-  prep: PreparedModel,
   state: FitState,
   model: BuiltModel,
   sol: GlsSolution,
   fInv: CovarianceAccess,
-  free: [boolean, boolean],
-  hessian: [[number, number], [number, number]],
-): number[][] {
-  const p = params.size;
-  const which = ([0, 1] as const).filter((k) => free[k]);
-  const m = which.length;
-  // the supernova scatter is estimated jointly with alpha and beta (its equation is the third
-  // estimating function): with it zero there is nothing to couple
-  const coupled = state.scatterSupernova > 0;
-  // collect per-row quantities of the diagonal blocks
-  interface RowTerm {
-    sn: boolean;
-    x: { idx: number[]; coef: number[] };
-    r: number;
-    v: number;
-    h: number;
-    dr: number[];
-    dv: number[];
-  }
-  const rows: RowTerm[] = [];
+  which: readonly (0 | 1)[],
+): SandwichRow[] {
+  const rows: SandwichRow[] = [];
   model.problem.blocks.forEach((block, b) => {
     if (!block.diagonal) return; // prior rows carry no alpha/beta; their q-scores are small and omitted
     const r = blockResiduals(block, sol.q);
@@ -794,6 +775,20 @@ function sandwichCovariance(
       rows.push({ sn, x: block.rows[i], r: r[i], v: v[i], h: h[i], dr: which.map((k) => dr[k]), dv: which.map((k) => dv[k]) });
     });
   });
+  return rows;
+}
+
+/**
+ * The meat of the sandwich, B = sum of the outer products of the rows' efficient scores (the
+ * scatter equation's row term last when coupled), and sum (1 - h)/v of the supernova rows.
+ */
+function scoreOuterProducts(
+  rows: readonly SandwichRow[],
+  sol: GlsSolution,
+  p: number,
+  m: number,
+  coupled: boolean,
+): { bMat: number[][]; sumOneMinusHOverV: number } {
   // A_theta,q = sum_i d psi_theta,i / d q
   const aTq = Array.from({ length: m }, () => new Float64Array(p));
   for (const t of rows) {
@@ -826,18 +821,27 @@ function sandwichCovariance(
     }
     for (let a = 0; a < mm; a++) for (let b = 0; b < mm; b++) bMat[a][b] += s[a] * s[b];
   }
-  // A = half the profile Hessian, restricted to the free parameters
-  const aMat = which.map((i) => which.map((j) => hessian[i][j] / 2));
-  if (!coupled) {
-    const aInv = invertSmall(aMat);
-    const tmp = aInv.map((row) => bMat[0].map((_, j) => row.reduce((s, x, k) => s + x * bMat[k][j], 0)));
-    return tmp.map((row) => aInv[0].map((_, j) => row.reduce((s, x, k) => s + x * aInv[k][j], 0)));
-  }
-  invertSmall(aMat); // refuses, with its message, when alpha and beta are not determined
-  // Coupling with the supernova scatter s2 = sigma_int_sn^2 (the derivatives by central differences):
-  //   A_theta,s2 = d psi_theta / d s2 = (1/2) d^2 chi2 / d theta d s2,
-  //   A_s2,theta = d psi_s / d theta = d chi2_sn / d theta at the profile q,   A_s2,s2 = -sum (1 - h)/v.
-  // Without them the error of beta came out 15-20 % small (its estimate moves with the fitted scatter).
+  return { bMat, sumOneMinusHOverV };
+}
+
+/**
+ * The bread A of the sandwich with the supernova scatter s2 = sigma_int_sn^2 as a third
+ * estimating function (the derivatives by central differences):
+ *   A_theta,s2 = d psi_theta / d s2 = (1/2) d^2 chi2 / d theta d s2,
+ *   A_s2,theta = d psi_s / d theta = d chi2_sn / d theta at the profile q,   A_s2,s2 = -sum (1 - h)/v.
+ * Without them the error of beta came out 15-20 % small (its estimate moves with the fitted scatter).
+ */
+function breadWithScatter(
+  prep: PreparedModel,
+  state: FitState,
+  model: BuiltModel,
+  free: [boolean, boolean],
+  which: readonly (0 | 1)[],
+  aMat: number[][],
+  sumOneMinusHOverV: number,
+): number[][] {
+  const m = which.length;
+  const mm = m + 1;
   const st = glsStructure(model.problem);
   const s2 = state.scatterSupernova ** 2;
   const hS2 = 0.05 * s2;
@@ -858,7 +862,49 @@ function sandwichCovariance(
         : (snChi2(state.alpha, state.beta + h) - snChi2(state.alpha, state.beta - h)) / (2 * h);
   });
   full[m][m] = -sumOneMinusHOverV;
-  const aInv = invertGeneral(full);
+  return full;
+}
+
+/**
+ * Sandwich covariance of (alpha, beta): A^-1 B A^-1 with A = half the Hessian of the profile
+ * chi-square and B = sum over rows of the outer products of each row's efficient score
+ * (its score in theta minus the part explained by the linear parameters),
+ *   s_i = psi_theta,i - A_theta,q F^-1 psi_q,i,
+ * with residuals inflated by 1/sqrt(1 - h_i) (leverage correction). Without the row-wise B the
+ * curvature alone understates the errors, because x1 and c are measured with noise.
+ * The supernova scatter is estimated with alpha and beta: its equation is a third estimating
+ * function (row terms r^2/v - (1 - h)), and A gains its cross derivatives, so that beta's error
+ * includes how beta moves with the fitted scatter (measured: beta's pulls had an SD of 1.06
+ * over 400 simulated releases without this, 1.00 with it; content/methods/global-fit.md).
+ */
+function sandwichCovariance(
+  input: GlobalFitInput,
+  params: ParameterIndex,
+  prep: PreparedModel,
+  state: FitState,
+  model: BuiltModel,
+  sol: GlsSolution,
+  fInv: CovarianceAccess,
+  free: [boolean, boolean],
+  hessian: [[number, number], [number, number]],
+): number[][] {
+  const p = params.size;
+  const which = ([0, 1] as const).filter((k) => free[k]);
+  const m = which.length;
+  // the supernova scatter is estimated jointly with alpha and beta (its equation is the third
+  // estimating function): with it zero there is nothing to couple
+  const coupled = state.scatterSupernova > 0;
+  const rows = sandwichRows(input, state, model, sol, fInv, which);
+  const { bMat, sumOneMinusHOverV } = scoreOuterProducts(rows, sol, p, m, coupled);
+  // A = half the profile Hessian, restricted to the free parameters
+  const aMat = which.map((i) => which.map((j) => hessian[i][j] / 2));
+  if (!coupled) {
+    const aInv = invertSmall(aMat);
+    const tmp = aInv.map((row) => bMat[0].map((_, j) => row.reduce((s, x, k) => s + x * bMat[k][j], 0)));
+    return tmp.map((row) => aInv[0].map((_, j) => row.reduce((s, x, k) => s + x * aInv[k][j], 0)));
+  }
+  invertSmall(aMat); // refuses, with its message, when alpha and beta are not determined
+  const aInv = invertGeneral(breadWithScatter(prep, state, model, free, which, aMat, sumOneMinusHOverV));
   const tmp = aInv.map((row) => bMat[0].map((_, j) => row.reduce((s, x, k) => s + x * bMat[k][j], 0)));
   const cov = tmp.map((row) => aInv.map((col) => row.reduce((s, x, k) => s + x * col[k], 0)));
   return cov.slice(0, m).map((row) => row.slice(0, m));
