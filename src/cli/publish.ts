@@ -2,7 +2,7 @@
  * `rungbook publish <release-dir> [--by NAME] [--date YYYY-MM-DD]`: freeze the
  * release's results as circulated. Calibrates the release and writes
  * `<release-dir>/published.json` (results, code version, date, publisher and the
- * SHA-256 of every file; src/publish/record.ts). Afterwards `check`, `calibrate`
+ * SHA-256 of every file; src/io/publishedRecord.ts). Afterwards `check`, `calibrate`
  * and `build` refuse the folder if any of its files changes, and the report
  * shows the published numbers, with a notice if the current code moves any.
  * The date defaults to today (UTC). Exit 0 published, 1 refused, 2 usage.
@@ -10,7 +10,7 @@
 import { join } from 'node:path';
 import { normaliseDate } from '../io/manifest.ts';
 import { publishRelease } from '../publish/publish.ts';
-import { PUBLISHED_FILE } from '../publish/record.ts';
+import { PUBLISHED_FILE } from '../io/publishedRecord.ts';
 import { parseArgs, UsageError, type CliIO } from './output.ts';
 
 const USAGE = 'usage: rungbook publish <release-dir> [--by NAME] [--date YYYY-MM-DD]';

@@ -44,120 +44,87 @@ function tableMeta(label: string): Record<string, string> {
   return { source: `${COLLABORATION}, ${label}`, note: 'Synthetic demonstration data; every object is invented.' };
 }
 
-/** Observe `universe` as the release described by `spec`. Pure: same inputs, same bytes. */
-export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: number = universe.seed): ObservedRelease {
-  const cat = spec.catalogues;
-  const omit = new Set(spec.omitTables ?? []);
-  const rows: Record<string, number> = {};
-  const files: Record<string, string> = {};
-  const put = (table: TableName, label: string, data: TableRow[]): void => {
-    if (omit.has(table)) {
-      rows[table] = 0;
-      return;
-    }
-    if (data.length === 0) throw new RangeError(`table ${table} would have no rows (a table file needs at least one)`);
-    files[TABLE_FILES[table]] = writeEcsv(TABLE_COLUMNS[table], data, tableMeta(label));
-    rows[table] = data.length;
-  };
+type Catalogues = ReleaseSpec['catalogues'];
 
-  // systems ---------------------------------------------------------------------
-  {
-    const rng = createRng(seed, 'observe', 'systems', cat.systems.version);
-    put(
-      'systems',
-      cat.systems.label,
-      universe.systems.map((s) => {
-        const feh = s.fehPrior && s.feh !== null ? statedPrior(rng, s.feh, s.fehPrior.err, 2) : null;
-        const ebv = s.ebvPrior && s.ebv !== null ? statedPrior(rng, s.ebv, s.ebvPrior.err, 3) : null;
-        return {
-          system: s.id,
-          kind: s.kind,
-          feh,
-          feh_err: feh !== null ? s.fehPrior!.err : null,
-          ebv,
-          ebv_err: ebv !== null ? s.ebvPrior!.err : null,
-          age_gyr: s.ageGyr,
-        };
-      }),
-    );
-  }
+/** The systems table: each system's stated [Fe/H] and E(B-V) priors drawn about the truth. */
+function observeSystems(universe: Universe, cat: Catalogues, seed: number): TableRow[] {
+  const rng = createRng(seed, 'observe', 'systems', cat.systems.version);
+  return universe.systems.map((s) => {
+    const feh = s.fehPrior && s.feh !== null ? statedPrior(rng, s.feh, s.fehPrior.err, 2) : null;
+    const ebv = s.ebvPrior && s.ebv !== null ? statedPrior(rng, s.ebv, s.ebvPrior.err, 3) : null;
+    return {
+      system: s.id,
+      kind: s.kind,
+      feh,
+      feh_err: feh !== null ? s.fehPrior!.err : null,
+      ebv,
+      ebv_err: ebv !== null ? s.ebvPrior!.err : null,
+      age_gyr: s.ageGyr,
+    };
+  });
+}
 
-  // parallax --------------------------------------------------------------------
-  const pc = cat.parallax;
-  const statedZeroPointMas = statedZeroPoint(seed, pc);
-  {
-    const rng = createRng(seed, 'observe', 'parallax', pc.version);
-    put(
-      'parallax',
-      pc.label,
-      universe.parallaxStars.map((s) => {
-        const err = Math.max(0.0001, roundTo(s.errBaseMas * pc.errorScale, 4));
-        return {
-          star: s.star,
-          system: s.system,
-          parallax: roundTo(s.parallaxTrueMas + pc.zeroPointMas + rng.gauss(0, err), 4),
-          parallax_err: err,
-          ra: s.raDeg,
-          dec: s.decDeg,
-        };
-      }),
-    );
-  }
+/** The parallax table: true parallax plus the catalogue's zero point and noise at its error scale. */
+function observeParallax(universe: Universe, pc: ParallaxCatalogue, seed: number): TableRow[] {
+  const rng = createRng(seed, 'observe', 'parallax', pc.version);
+  return universe.parallaxStars.map((s) => {
+    const err = Math.max(0.0001, roundTo(s.errBaseMas * pc.errorScale, 4));
+    return {
+      star: s.star,
+      system: s.system,
+      parallax: roundTo(s.parallaxTrueMas + pc.zeroPointMas + rng.gauss(0, err), 4),
+      parallax_err: err,
+      ra: s.raDeg,
+      dec: s.decDeg,
+    };
+  });
+}
 
-  // main sequence -----------------------------------------------------------------
-  {
-    const rng = createRng(seed, 'observe', 'main-sequence', cat.mainSequence.version);
-    put(
-      'main_sequence',
-      cat.mainSequence.label,
-      universe.mainSequence.map((s) => ({
-        star: s.star,
-        system: s.system,
-        color: roundTo(s.colorTrue + rng.gauss(0, s.colorErr), 4),
-        color_err: s.colorErr,
-        mag: roundTo(s.magTrue + rng.gauss(0, s.magErr), 4),
-        mag_err: s.magErr,
-      })),
-    );
-  }
+/** The main-sequence table: colour and magnitude with their noise. */
+function observeMainSequence(universe: Universe, cat: Catalogues, seed: number): TableRow[] {
+  const rng = createRng(seed, 'observe', 'main-sequence', cat.mainSequence.version);
+  return universe.mainSequence.map((s) => ({
+    star: s.star,
+    system: s.system,
+    color: roundTo(s.colorTrue + rng.gauss(0, s.colorErr), 4),
+    color_err: s.colorErr,
+    mag: roundTo(s.magTrue + rng.gauss(0, s.magErr), 4),
+    mag_err: s.magErr,
+  }));
+}
 
-  // Cepheids ------------------------------------------------------------------------
+/** The Cepheid table: magnitudes with their noise, m_h with the catalogue's offset of the host. */
+function observeCepheids(universe: Universe, cat: Catalogues, seed: number): TableRow[] {
   const systemIds = new Set(universe.systems.map((s) => s.id));
   for (const host of Object.keys(cat.cepheids.mhOffsetsMag)) {
     if (!systemIds.has(host)) throw new RangeError(`cepheid catalogue ${cat.cepheids.version}: unknown system "${host}" in mhOffsetsMag`);
   }
-  {
-    const rng = createRng(seed, 'observe', 'cepheids', cat.cepheids.version);
-    put(
-      'cepheids',
-      cat.cepheids.label,
-      universe.cepheids.map((c) => {
-        const mh = c.mhTrue + rng.gauss(0, c.mhErr) + (cat.cepheids.mhOffsetsMag[c.system] ?? 0);
-        return {
-          star: c.star,
-          system: c.system,
-          period: c.periodDays,
-          m_h: roundTo(mh, 3),
-          m_h_err: c.mhErr,
-          m_v: roundTo(c.mvTrue + rng.gauss(0, c.mvErr), 3),
-          m_v_err: c.mvErr,
-          m_i: roundTo(c.miTrue + rng.gauss(0, c.miErr), 3),
-          m_i_err: c.miErr,
-          oh: c.oh,
-        };
-      }),
-    );
-  }
+  const rng = createRng(seed, 'observe', 'cepheids', cat.cepheids.version);
+  return universe.cepheids.map((c) => {
+    const mh = c.mhTrue + rng.gauss(0, c.mhErr) + (cat.cepheids.mhOffsetsMag[c.system] ?? 0);
+    return {
+      star: c.star,
+      system: c.system,
+      period: c.periodDays,
+      m_h: roundTo(mh, 3),
+      m_h_err: c.mhErr,
+      m_v: roundTo(c.mvTrue + rng.gauss(0, c.mvErr), 3),
+      m_v_err: c.mvErr,
+      m_i: roundTo(c.miTrue + rng.gauss(0, c.miErr), 3),
+      m_i_err: c.miErr,
+      oh: c.oh,
+    };
+  });
+}
 
-  // supernovae --------------------------------------------------------------------------
-  {
-    const rng = createRng(seed, 'observe', 'sn-calibrators', cat.snCalibrators.version);
-    put(
-      'sn_calibrators',
-      cat.snCalibrators.label,
-      universe.snCalibrators.map((sn) => ({ sn: sn.sn, system: sn.system, ...lightCurve(rng, sn) })),
-    );
-  }
+/** The calibrator supernovae's light-curve parameters with their correlated noise. */
+function observeCalibrators(universe: Universe, cat: Catalogues, seed: number): TableRow[] {
+  const rng = createRng(seed, 'observe', 'sn-calibrators', cat.snCalibrators.version);
+  return universe.snCalibrators.map((sn) => ({ sn: sn.sn, system: sn.system, ...lightCurve(rng, sn) }));
+}
+
+/** The Hubble-flow supernovae the catalogue observes (a slice of the pool): redshift and light curve. */
+function observeHubbleFlow(universe: Universe, cat: Catalogues, seed: number): TableRow[] {
   const hf = cat.snHubbleFlow;
   const hfFirst = hf.first ?? 0;
   const hfAvailable = universe.snHubbleFlow.length - hfFirst;
@@ -168,28 +135,24 @@ export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: numb
   if (!Number.isInteger(hfCount) || hfCount < 1 || hfCount > hfAvailable) {
     throw new RangeError(`Hubble-flow count must be an integer in 1..${hfAvailable}, found ${hfCount}`);
   }
-  {
-    const rng = createRng(seed, 'observe', 'sn-hubble-flow', hf.version);
-    put(
-      'sn_hubble_flow',
-      hf.label,
-      universe.snHubbleFlow.slice(hfFirst, hfFirst + hfCount).map((sn) => {
-        // Order of draws fixed per supernova, so a longer sample extends a shorter one row for row.
-        const z = roundTo(sn.zPeculiar! + rng.gauss(0, sn.zErr!), 6);
-        return { sn: sn.sn, z, z_err: sn.zErr, ...lightCurve(rng, sn) };
-      }),
-    );
-  }
+  const rng = createRng(seed, 'observe', 'sn-hubble-flow', hf.version);
+  return universe.snHubbleFlow.slice(hfFirst, hfFirst + hfCount).map((sn) => {
+    // Order of draws fixed per supernova, so a longer sample extends a shorter one row for row.
+    const z = roundTo(sn.zPeculiar! + rng.gauss(0, sn.zErr!), 6);
+    return { sn: sn.sn, z, z_err: sn.zErr, ...lightCurve(rng, sn) };
+  });
+}
 
-  files['release.yaml'] = releaseYaml(spec, statedZeroPointMas, pc.statedZeroPointErrMas);
-  if (spec.notes !== null) {
-    const text =
-      typeof spec.notes === 'string'
-        ? spec.notes
-        : spec.notes({ statedZeroPointMas, statedZeroPointErrMas: pc.statedZeroPointErrMas, rows });
-    files['notes.md'] = text.endsWith('\n') ? text : text + '\n';
-  }
-
+/** What the release was drawn from (never written beside it): for recovery tests and the demo's own checks. */
+function releaseTruth(
+  universe: Universe,
+  spec: ReleaseSpec,
+  seed: number,
+  statedZeroPointMas: number,
+  rows: Record<string, number>,
+): ReleaseTruth {
+  const pc = spec.catalogues.parallax;
+  const omit = new Set(spec.omitTables ?? []);
   const systems: SystemTruth[] = universe.systems.map((s) => ({
     id: s.id,
     kind: s.kind,
@@ -201,7 +164,7 @@ export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: numb
     ohMean: s.ohMean,
   }));
   const fieldIds = new Set(universe.systems.filter((s) => s.group === 'field').map((s) => s.id));
-  const truth: ReleaseTruth = {
+  return {
     releaseId: spec.id,
     seed,
     scale: universe.scale,
@@ -218,10 +181,45 @@ export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: numb
       .filter((s) => fieldIds.has(s.system))
       .map((s) => ({ star: s.star, system: s.system, mu: distanceModulusFromPc(s.distancePc), distancePc: s.distancePc })),
     blendedCepheids: omit.has('cepheids') ? [] : universe.cepheids.filter((c) => c.blended).map((c) => c.star),
-    mhOffsetsMag: { ...cat.cepheids.mhOffsetsMag },
+    mhOffsetsMag: { ...spec.catalogues.cepheids.mhOffsetsMag },
     rows,
   };
-  return { files, truth, blindForPublication: spec.blindForPublication ?? null };
+}
+
+/** Observe `universe` as the release described by `spec`. Pure: same inputs, same bytes. */
+export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: number = universe.seed): ObservedRelease {
+  const cat = spec.catalogues;
+  const omit = new Set(spec.omitTables ?? []);
+  const rows: Record<string, number> = {};
+  const files: Record<string, string> = {};
+  const put = (table: TableName, label: string, data: TableRow[]): void => {
+    if (omit.has(table)) {
+      rows[table] = 0;
+      return;
+    }
+    if (data.length === 0) throw new RangeError(`table ${table} would have no rows (a table file needs at least one)`);
+    files[TABLE_FILES[table]] = writeEcsv(TABLE_COLUMNS[table], data, tableMeta(label));
+    rows[table] = data.length;
+  };
+  const pc = cat.parallax;
+  // each table from its catalogue's own random stream, in this order (files and row counts keep it)
+  put('systems', cat.systems.label, observeSystems(universe, cat, seed));
+  const statedZeroPointMas = statedZeroPoint(seed, pc);
+  put('parallax', pc.label, observeParallax(universe, pc, seed));
+  put('main_sequence', cat.mainSequence.label, observeMainSequence(universe, cat, seed));
+  put('cepheids', cat.cepheids.label, observeCepheids(universe, cat, seed));
+  put('sn_calibrators', cat.snCalibrators.label, observeCalibrators(universe, cat, seed));
+  put('sn_hubble_flow', cat.snHubbleFlow.label, observeHubbleFlow(universe, cat, seed));
+
+  files['release.yaml'] = releaseYaml(spec, statedZeroPointMas, pc.statedZeroPointErrMas);
+  if (spec.notes !== null) {
+    const text =
+      typeof spec.notes === 'string'
+        ? spec.notes
+        : spec.notes({ statedZeroPointMas, statedZeroPointErrMas: pc.statedZeroPointErrMas, rows });
+    files['notes.md'] = text.endsWith('\n') ? text : text + '\n';
+  }
+  return { files, truth: releaseTruth(universe, spec, seed, statedZeroPointMas, rows), blindForPublication: spec.blindForPublication ?? null };
 }
 
 /** The zero point the team states for a parallax catalogue: Z0 = Z_cat + N(0, stated error), rounded to 1 uas. */

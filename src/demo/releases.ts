@@ -104,6 +104,84 @@ function hubbleFlowCount(universe: Universe, atScale1: number): number {
   return Math.min(universe.snHubbleFlow.length, Math.max(1, Math.round(atScale1 * universe.scale)));
 }
 
+/** The notes of 2026.1: what the first release contains. */
+function notes2026_1(nHosts: number): (ctx: NotesContext) => string {
+  return (ctx: NotesContext) =>
+    [
+      '# Release 2026.1',
+      '',
+      `First internal release of the ${COLLABORATION}'s distance-ladder data.`,
+      '',
+      `- Parallaxes: ${ctx.rows.parallax} stars in five nearby clusters and in the ${FIELD_NAME} Cepheid group,`,
+      `  from astrometric catalogue A. We adopt a zero point of ${fmt(ctx.statedZeroPointMas)} mas, uncertain by ${fmt(ctx.statedZeroPointErrMas)} mas.`,
+      `- Main-sequence photometry: ${ctx.rows.main_sequence} stars in the five parallax clusters, three more distant clusters`,
+      `  and the galaxy ${GALAXY_NAME}.`,
+      `- Cepheids: ${ctx.rows.cepheids}, from the ${FIELD_NAME} group out to ${nHosts} supernova hosts.`,
+      `- Supernovae: ${ctx.rows.sn_calibrators} in Cepheid hosts and ${ctx.rows.sn_hubble_flow} in the Hubble flow;`,
+      '  the analysis keeps 0.0233 ≤ z ≤ 0.15.',
+      '',
+      'Synthetic demonstration data: every object, name and number is invented.',
+    ].join('\n');
+}
+
+/** The notes of 2026.2: the new parallax catalogue and its zero point. */
+function notes2026_2(zpA: number): (ctx: NotesContext) => string {
+  return (ctx: NotesContext) =>
+    [
+      '# Release 2026.2',
+      '',
+      "Parallaxes now come from astrometric catalogue B, whose errors are about 40 % smaller than catalogue A's.",
+      `The zero point was re-derived for the new catalogue: ${fmt(ctx.statedZeroPointMas)} mas, uncertain by ${fmt(ctx.statedZeroPointErrMas)} mas`,
+      `(catalogue A: ${fmt(zpA)} mas, uncertain by ${fmt(PARALLAX_A.statedZeroPointErrMas)} mas).`,
+      '',
+      'Every other table is unchanged from 2026.1.',
+      '',
+      'Synthetic demonstration data: every object, name and number is invented.',
+    ].join('\n');
+}
+
+/** The notes of 2026.3: the larger Hubble-flow sample, the recalibrated H photometry, the new variant. */
+function notes2026_3(nFlow1: number, nFlow2: number, hosts: readonly string[]): (ctx: NotesContext) => string {
+  return (ctx: NotesContext) =>
+    [
+      '# Release 2026.3',
+      '',
+      `- Hubble flow: ${nFlow2 - nFlow1} more supernovae, ${ctx.rows.sn_hubble_flow} in all; the first ${nFlow1} are unchanged.`,
+      ...(hosts.length > 0
+        ? [
+            `- Cepheids: the H-band photometry of ${hosts.join(' and ')} was recalibrated. A zero-point error in`,
+            `  the near-infrared reduction had made their m_h ${fmt(MH_OFFSET_MAG)} mag too faint in 2026.1 and 2026.2.`,
+            '  All other Cepheid measurements are unchanged.',
+          ]
+        : []),
+      `- New systematic variant: supernova alpha and beta fixed at ${fmt(FIXED_ALPHA_BETA.sn_alpha!)} and ${fmt(FIXED_ALPHA_BETA.sn_beta!)}.`,
+      '',
+      'Parallaxes (catalogue B), main-sequence photometry and calibrator supernovae are unchanged from 2026.2.',
+      '',
+      'Synthetic demonstration data: every object, name and number is invented.',
+    ].join('\n');
+}
+
+/** The notes of 2026.4: the second season, analysed blind. */
+function notes2026_4(nFlow2: number): (ctx: NotesContext) => string {
+  return (ctx: NotesContext) =>
+    [
+      '# Release 2026.4 (blinded)',
+      '',
+      `- Hubble flow: the second observing season, ${ctx.rows.sn_hubble_flow} supernovae that no earlier release contains.`,
+      `  The ${nFlow2} first-season supernovae of 2026.1 to 2026.3 are left out of this release: the same supernova in an`,
+      '  unblinded and a blinded release would reveal the blinding offset as the difference of its two magnitudes.',
+      '  The two seasons will be combined after unblinding.',
+      '- This release is **blinded**: its Hubble-flow magnitudes carry one hidden offset, so H0, the intercept a_B and',
+      '  the H0 of every variant are hidden until the collaboration unblinds. Every other result is the true one.',
+      '',
+      'Parallaxes, main-sequence photometry, Cepheids and calibrator supernovae are unchanged from 2026.3.',
+      '',
+      'Synthetic demonstration data: every object, name and number is invented. The demonstration key that',
+      'blinded this release is public (see the README), so anyone can try unblinding a copy of it.',
+    ].join('\n');
+}
+
 /** The four demo releases, in date order. */
 export function demoReleaseSpecs(universe: Universe): ReleaseSpec[] {
   const hosts = offsetHosts(universe);
@@ -137,22 +215,7 @@ export function demoReleaseSpecs(universe: Universe): ReleaseSpec[] {
     },
     analysis: { ...DEMO_ANALYSIS },
     variants: BASE_VARIANTS,
-    notes: (ctx: NotesContext) =>
-      [
-        '# Release 2026.1',
-        '',
-        `First internal release of the ${COLLABORATION}'s distance-ladder data.`,
-        '',
-        `- Parallaxes: ${ctx.rows.parallax} stars in five nearby clusters and in the ${FIELD_NAME} Cepheid group,`,
-        `  from astrometric catalogue A. We adopt a zero point of ${fmt(ctx.statedZeroPointMas)} mas, uncertain by ${fmt(ctx.statedZeroPointErrMas)} mas.`,
-        `- Main-sequence photometry: ${ctx.rows.main_sequence} stars in the five parallax clusters, three more distant clusters`,
-        `  and the galaxy ${GALAXY_NAME}.`,
-        `- Cepheids: ${ctx.rows.cepheids}, from the ${FIELD_NAME} group out to ${nHosts} supernova hosts.`,
-        `- Supernovae: ${ctx.rows.sn_calibrators} in Cepheid hosts and ${ctx.rows.sn_hubble_flow} in the Hubble flow;`,
-        '  the analysis keeps 0.0233 ≤ z ≤ 0.15.',
-        '',
-        'Synthetic demonstration data: every object, name and number is invented.',
-      ].join('\n'),
+    notes: notes2026_1(nHosts),
   };
 
   const r2: ReleaseSpec = {
@@ -162,18 +225,7 @@ export function demoReleaseSpecs(universe: Universe): ReleaseSpec[] {
     date: '2026-06-15',
     previous: '2026.1',
     catalogues: { ...r1.catalogues, parallax: PARALLAX_B },
-    notes: (ctx: NotesContext) =>
-      [
-        '# Release 2026.2',
-        '',
-        "Parallaxes now come from astrometric catalogue B, whose errors are about 40 % smaller than catalogue A's.",
-        `The zero point was re-derived for the new catalogue: ${fmt(ctx.statedZeroPointMas)} mas, uncertain by ${fmt(ctx.statedZeroPointErrMas)} mas`,
-        `(catalogue A: ${fmt(zpA)} mas, uncertain by ${fmt(PARALLAX_A.statedZeroPointErrMas)} mas).`,
-        '',
-        'Every other table is unchanged from 2026.1.',
-        '',
-        'Synthetic demonstration data: every object, name and number is invented.',
-      ].join('\n'),
+    notes: notes2026_2(zpA),
   };
 
   const r3: ReleaseSpec = {
@@ -184,24 +236,7 @@ export function demoReleaseSpecs(universe: Universe): ReleaseSpec[] {
     previous: '2026.2',
     catalogues: { ...r2.catalogues, cepheids: cepheidsV2, snHubbleFlow: flow2 },
     variants: [...BASE_VARIANTS, FIXED_ALPHA_BETA],
-    notes: (ctx: NotesContext) =>
-      [
-        '# Release 2026.3',
-        '',
-        `- Hubble flow: ${nFlow2 - nFlow1} more supernovae, ${ctx.rows.sn_hubble_flow} in all; the first ${nFlow1} are unchanged.`,
-        ...(hosts.length > 0
-          ? [
-              `- Cepheids: the H-band photometry of ${hosts.join(' and ')} was recalibrated. A zero-point error in`,
-              `  the near-infrared reduction had made their m_h ${fmt(MH_OFFSET_MAG)} mag too faint in 2026.1 and 2026.2.`,
-              '  All other Cepheid measurements are unchanged.',
-            ]
-          : []),
-        `- New systematic variant: supernova alpha and beta fixed at ${fmt(FIXED_ALPHA_BETA.sn_alpha!)} and ${fmt(FIXED_ALPHA_BETA.sn_beta!)}.`,
-        '',
-        'Parallaxes (catalogue B), main-sequence photometry and calibrator supernovae are unchanged from 2026.2.',
-        '',
-        'Synthetic demonstration data: every object, name and number is invented.',
-      ].join('\n'),
+    notes: notes2026_3(nFlow1, nFlow2, hosts),
   };
   // Second season: pool entries after the first season's, redrawn with their own light-curve fits.
   const nFlow4 = Math.max(0, Math.min(universe.snHubbleFlow.length - nFlow2, Math.round(150 * universe.scale)));
@@ -215,22 +250,7 @@ export function demoReleaseSpecs(universe: Universe): ReleaseSpec[] {
     blinded: false,
     blindForPublication: { ...DEMO_BLINDING },
     catalogues: { ...r3.catalogues, snHubbleFlow: flow4 },
-    notes: (ctx: NotesContext) =>
-      [
-        '# Release 2026.4 (blinded)',
-        '',
-        `- Hubble flow: the second observing season, ${ctx.rows.sn_hubble_flow} supernovae that no earlier release contains.`,
-        `  The ${nFlow2} first-season supernovae of 2026.1 to 2026.3 are left out of this release: the same supernova in an`,
-        '  unblinded and a blinded release would reveal the blinding offset as the difference of its two magnitudes.',
-        '  The two seasons will be combined after unblinding.',
-        '- This release is **blinded**: its Hubble-flow magnitudes carry one hidden offset, so H0, the intercept a_B and',
-        '  the H0 of every variant are hidden until the collaboration unblinds. Every other result is the true one.',
-        '',
-        'Parallaxes, main-sequence photometry, Cepheids and calibrator supernovae are unchanged from 2026.3.',
-        '',
-        'Synthetic demonstration data: every object, name and number is invented. The demonstration key that',
-        'blinded this release is public (see the README), so anyone can try unblinding a copy of it.',
-      ].join('\n'),
+    notes: notes2026_4(nFlow2),
   };
   return [r1, r2, r3, r4];
 }

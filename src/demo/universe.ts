@@ -150,24 +150,31 @@ export interface UniverseOptions {
   parameters?: Partial<DemoParameters>;
 }
 
-/** Generate the demo universe. Pure: same (seed, scale, options) give the same universe. */
-export function generateUniverse(seed: number, scale = 1, options: UniverseOptions = {}): Universe {
-  if (!(scale > 0) || !Number.isFinite(scale)) throw new RangeError(`scale must be a positive number, found ${scale}`);
-  const p: DemoParameters = { ...DEMO_PARAMETERS, ...options.parameters, locusCoeffs: [...(options.parameters?.locusCoeffs ?? DEMO_PARAMETERS.locusCoeffs)] };
-  const n = (x: number): number => Math.max(1, Math.round(x * scale));
+/** The universe while it is drawn: what every population adds to, in a fixed order. */
+interface UniverseDraft {
+  seed: number;
+  p: DemoParameters;
+  /** A count at scale 1, scaled (at least 1). */
+  n: (x: number) => number;
+  systems: UniverseSystem[];
+  parallaxStars: ParallaxStar[];
+  mainSequence: MainSequenceStar[];
+  cepheids: Cepheid[];
+  snCalibrators: Supernova[];
+  snHubbleFlow: Supernova[];
+}
 
-  const systems: UniverseSystem[] = [];
-  const parallaxStars: ParallaxStar[] = [];
-  const mainSequence: MainSequenceStar[] = [];
-  const cepheids: Cepheid[] = [];
-  const snCalibrators: Supernova[] = [];
-  const snHubbleFlow: Supernova[] = [];
-
-  const place = (rng: Rng): { raDeg: number; decDeg: number } => ({
+/** A position uniform on the sphere. */
+function place(rng: Rng): { raDeg: number; decDeg: number } {
+  return {
     raDeg: rng.between(0, 360),
     decDeg: (Math.asin(rng.between(-1, 1)) * 180) / Math.PI,
-  });
+  };
+}
 
+/** The geometric anchor clusters: their members with parallaxes and main-sequence photometry. */
+function addAnchors(u: UniverseDraft): void {
+  const { seed, p, n, systems, parallaxStars, mainSequence } = u;
   // ---- anchors --------------------------------------------------------------
   const anchorFeh = [0.14, 0.0, -0.06, 0.03, -0.12];
   const anchorAge = [0.65, 0.12, 0.8, 1.4, 0.35];
@@ -210,7 +217,11 @@ export function generateUniverse(seed: number, scale = 1, options: UniverseOptio
       });
     }
   });
+}
 
+/** Field Cepheids of the Milky Way, each with its own parallax. */
+function addFieldCepheids(u: UniverseDraft): void {
+  const { seed, p, n, systems, parallaxStars, cepheids } = u;
   // ---- field Cepheids with their own parallaxes ---------------------------------
   const fieldRng = createRng(seed, 'universe', 'field');
   const field: UniverseSystem = {
@@ -254,7 +265,11 @@ export function generateUniverse(seed: number, scale = 1, options: UniverseOptio
       }),
     );
   }
+}
 
+/** Cepheids that are members of an anchor cluster (distance from the cluster mean). */
+function addAnchorCepheids(u: UniverseDraft): void {
+  const { seed, p, n, systems, cepheids } = u;
   // Anchors hosting one Cepheid each (the star is a member, anchored by the cluster mean).
   for (const k of [2, 4]) {
     const sys = systems[k]!;
@@ -274,7 +289,11 @@ export function generateUniverse(seed: number, scale = 1, options: UniverseOptio
       );
     }
   }
+}
 
+/** The main-sequence target clusters (distance by main-sequence fitting) and their Cepheids. */
+function addMainSequenceTargets(u: UniverseDraft): void {
+  const { seed, p, n, systems, mainSequence, cepheids } = u;
   // ---- main-sequence target clusters ---------------------------------------------
   const targetRng = createRng(seed, 'universe', 'ms-targets');
   MS_TARGET_NAMES.forEach((id, k) => {
@@ -314,46 +333,52 @@ export function generateUniverse(seed: number, scale = 1, options: UniverseOptio
       );
     }
   });
+}
 
+/** The nearby galaxy: a complete Cepheid sample and main-sequence photometry at one distance. */
+function addNearbyGalaxy(u: UniverseDraft): void {
+  const { seed, p, n, systems, mainSequence, cepheids } = u;
   // ---- the nearby galaxy -----------------------------------------------------------
-  {
-    const rng = createRng(seed, 'universe', 'galaxy');
-    const mu = rng.between(18.4, 18.6);
-    const sys: UniverseSystem = {
-      id: GALAXY_NAME,
-      kind: 'galaxy',
-      group: 'galaxy',
-      mu,
-      distancePc: distancePcFromModulus(mu),
-      ebv: roundTo(rng.between(0.06, 0.1), 3),
-      feh: -0.3,
-      fehPrior: { err: 0.08 },
-      ebvPrior: { err: 0.02 },
-      ageGyr: null,
-      ...place(rng),
-      ohMean: -0.3,
-    };
-    systems.push(sys);
-    const members = n(200);
-    for (let i = 1; i <= members; i++) {
-      mainSequence.push(mainSequenceStar(rng, p, `${GALAXY_NAME}-S${pad(i, 4)}`, sys, 0.3, 1.05));
-    }
-    const nCep = n(300);
-    for (let i = 1; i <= nCep; i++) {
-      // Short periods dominate a complete nearby sample: log P = 0.3 + 1.4 u^1.5.
-      cepheids.push(
-        cepheid(rng, p, `${GALAXY_NAME}-C${pad(i, 4)}`, sys, mu, {
-          logP: 0.3 + 1.4 * rng.uniform() ** 1.5,
-          oh: -0.3 + rng.gauss(0, 0.05),
-          eVI: EBV_TO_EVI * sys.ebv! + Math.abs(rng.gauss(0, 0.05)),
-          mhErr: 'galaxy',
-          optErr: [0.02, 0.04],
-          blendable: true,
-        }),
-      );
-    }
+  const rng = createRng(seed, 'universe', 'galaxy');
+  const mu = rng.between(18.4, 18.6);
+  const sys: UniverseSystem = {
+    id: GALAXY_NAME,
+    kind: 'galaxy',
+    group: 'galaxy',
+    mu,
+    distancePc: distancePcFromModulus(mu),
+    ebv: roundTo(rng.between(0.06, 0.1), 3),
+    feh: -0.3,
+    fehPrior: { err: 0.08 },
+    ebvPrior: { err: 0.02 },
+    ageGyr: null,
+    ...place(rng),
+    ohMean: -0.3,
+  };
+  systems.push(sys);
+  const members = n(200);
+  for (let i = 1; i <= members; i++) {
+    mainSequence.push(mainSequenceStar(rng, p, `${GALAXY_NAME}-S${pad(i, 4)}`, sys, 0.3, 1.05));
   }
+  const nCep = n(300);
+  for (let i = 1; i <= nCep; i++) {
+    // Short periods dominate a complete nearby sample: log P = 0.3 + 1.4 u^1.5.
+    cepheids.push(
+      cepheid(rng, p, `${GALAXY_NAME}-C${pad(i, 4)}`, sys, mu, {
+        logP: 0.3 + 1.4 * rng.uniform() ** 1.5,
+        oh: -0.3 + rng.gauss(0, 0.05),
+        eVI: EBV_TO_EVI * sys.ebv! + Math.abs(rng.gauss(0, 0.05)),
+        mhErr: 'galaxy',
+        optErr: [0.02, 0.04],
+        blendable: true,
+      }),
+    );
+  }
+}
 
+/** The supernova host galaxies: their Cepheids and calibrator supernovae. */
+function addSupernovaHosts(u: UniverseDraft): void {
+  const { seed, p, n, systems, cepheids, snCalibrators } = u;
   // ---- supernova hosts -----------------------------------------------------------------
   const hostRng = createRng(seed, 'universe', 'hosts');
   const nHosts = n(9);
@@ -401,10 +426,14 @@ export function generateUniverse(seed: number, scale = 1, options: UniverseOptio
       );
     }
   }
+}
 
+/** The Hubble-flow supernovae, a pool in a fixed order (a release observes a prefix). */
+function addHubbleFlow(u: UniverseDraft, hubbleFlowPool: number | undefined, scale: number): void {
+  const { seed, p, snHubbleFlow } = u;
   // ---- Hubble flow -------------------------------------------------------------------------
   const flowRng = createRng(seed, 'universe', 'hubble-flow');
-  const pool = Math.max(1, Math.round((options.hubbleFlowPool ?? 250) * scale));
+  const pool = Math.max(1, Math.round((hubbleFlowPool ?? 250) * scale));
   for (let i = 1; i <= pool; i++) {
     const zCos = flowRng.between(0.01, 0.16);
     const vPec = flowRng.gauss(0, p.sigmaPecKmS);
@@ -418,7 +447,24 @@ export function generateUniverse(seed: number, scale = 1, options: UniverseOptio
       }),
     );
   }
+}
 
+/** Generate the demo universe. Pure: same (seed, scale, options) give the same universe. */
+export function generateUniverse(seed: number, scale = 1, options: UniverseOptions = {}): Universe {
+  if (!(scale > 0) || !Number.isFinite(scale)) throw new RangeError(`scale must be a positive number, found ${scale}`);
+  const p: DemoParameters = { ...DEMO_PARAMETERS, ...options.parameters, locusCoeffs: [...(options.parameters?.locusCoeffs ?? DEMO_PARAMETERS.locusCoeffs)] };
+  const n = (x: number): number => Math.max(1, Math.round(x * scale));
+
+  const u: UniverseDraft = { seed, p, n, systems: [], parallaxStars: [], mainSequence: [], cepheids: [], snCalibrators: [], snHubbleFlow: [] };
+  // in this order: each population draws from its own named random stream, and the lists keep this order
+  addAnchors(u);
+  addFieldCepheids(u);
+  addAnchorCepheids(u);
+  addMainSequenceTargets(u);
+  addNearbyGalaxy(u);
+  addSupernovaHosts(u);
+  addHubbleFlow(u, options.hubbleFlowPool, scale);
+  const { systems, parallaxStars, mainSequence, cepheids, snCalibrators, snHubbleFlow } = u;
   return { seed, scale, parameters: p, systems, parallaxStars, mainSequence, cepheids, snCalibrators, snHubbleFlow };
 }
 

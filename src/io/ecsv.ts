@@ -5,7 +5,7 @@
  * description, and the body delimiter (',' or ' '; ECSV's default is ' ').
  * Line numbers count every line of the file, header lines included.
  */
-import { isMap, isScalar, isSeq, LineCounter, parseDocument, type Node as YamlNode } from 'yaml';
+import { isMap, isScalar, isSeq, LineCounter, parseDocument, type Node as YamlNode, type YAMLMap } from 'yaml';
 import { parseDelimited } from './delimited.ts';
 import type { Problem } from './issues.ts';
 import { shown } from './issues.ts';
@@ -36,36 +36,33 @@ const ECSV_DATATYPES: Record<string, TypeClass> = {
   string: 'string',
 };
 
-export function readEcsv(bytes: Uint8Array): ParsedTable {
-  const decoded = decodeUtf8(bytes);
-  if ('problem' in decoded) return { problems: [decoded.problem] };
-  const lines = decoded.text.split('\n').map((l) => (l.endsWith('\r') ? l.slice(0, -1) : l));
-  const problems: Problem[] = [];
-
-  const signature = SIGNATURE.exec(lines[0]);
+/** The signature line's problem (not ECSV, or a later version), or null. */
+function signatureProblem(first: string): Problem | null {
+  const signature = SIGNATURE.exec(first);
   if (!signature) {
-    problems.push({
+    return {
       code: 'not-ecsv',
       line: 1,
       message: 'the first line is not an ECSV signature',
       expected: '"# %ECSV 1.0"',
-      found: shown(lines[0]),
+      found: shown(first),
       hint: 'an .ecsv file starts with "# %ECSV 1.0"; a plain CSV file should be named .csv',
-    });
-    return { problems };
+    };
   }
   if (Number(signature[1]) > 1) {
-    problems.push({
+    return {
       code: 'ecsv-version',
       line: 1,
       message: 'unsupported ECSV version',
       expected: 'version 1.0 or earlier',
       found: `${signature[1]}.${signature[2]}`,
-    });
-    return { problems };
+    };
   }
+  return null;
+}
 
-  // The header is the run of '#' lines at the top.
+/** The header is the run of '#' lines at the top: its YAML text, line by line, without the "# ". */
+function headerYamlLines(lines: readonly string[], problems: Problem[]): { headerCount: number; yamlLines: string[] } {
   let headerCount = 1;
   while (headerCount < lines.length && lines[headerCount].startsWith('#')) headerCount++;
   const yamlLines: string[] = [];
@@ -84,22 +81,27 @@ export function readEcsv(bytes: Uint8Array): ParsedTable {
       yamlLines.push(l.slice(1));
     }
   }
+  return { headerCount, yamlLines };
+}
+
+type LineOf = (node: YamlNode | null | undefined, fallback: number) => number;
+
+/** The header's YAML mapping with a file-line locator for its nodes, or null (problems pushed). */
+function parseHeader(yamlLines: string[], secondLine: string, problems: Problem[]): { header: YAMLMap; lineOf: LineOf } | null {
   if (yamlLines[0]?.trim() !== '---') {
     problems.push({
       code: 'bad-header',
       line: 2,
       message: 'the ECSV header must open its YAML block with "# ---" on the second line',
       expected: '"# ---"',
-      found: shown(lines[1] ?? ''),
+      found: shown(secondLine),
     });
-    return { problems };
+    return null;
   }
-
   // YAML line k (1-based) is file line k + 1.
   const lineCounter = new LineCounter();
   const doc = parseDocument(yamlLines.join('\n'), { lineCounter, uniqueKeys: true, prettyErrors: true });
-  const lineOf = (node: YamlNode | null | undefined, fallback: number): number =>
-    node?.range ? lineCounter.linePos(node.range[0]).line + 1 : fallback;
+  const lineOf: LineOf = (node, fallback) => (node?.range ? lineCounter.linePos(node.range[0]).line + 1 : fallback);
   if (doc.errors.length > 0) {
     for (const e of doc.errors) {
       problems.push({
@@ -108,36 +110,77 @@ export function readEcsv(bytes: Uint8Array): ParsedTable {
         message: `the ECSV header is not valid YAML: ${yamlProblemText(e.message)}`,
       });
     }
-    return { problems };
+    return null;
   }
   const header = doc.contents;
   if (!isMap(header)) {
     problems.push({ code: 'bad-header', line: 2, message: 'the ECSV header is not a YAML mapping', expected: 'keys datatype, delimiter, meta', found: shown(doc.toJS()) });
-    return { problems };
+    return null;
   }
+  return { header, lineOf };
+}
 
-  let delimiter: ',' | ' ' = ' ';
-  let delimiterDeclared = false;
+/** The body delimiter: declared (',' or ' ') or ECSV's default, a space; a problem when unsupported. */
+function headerDelimiter(header: YAMLMap, lineOf: LineOf): { delimiter: ',' | ' '; declared: boolean } | { problem: Problem } {
   const delimNode = header.get('delimiter', true);
-  if (delimNode !== undefined) {
-    const value: unknown = isScalar(delimNode) ? delimNode.value : undefined;
-    if (value === ',' || value === ' ') {
-      delimiter = value;
-      delimiterDeclared = true;
-    } else {
-      problems.push({
-        code: 'bad-delimiter',
-        line: lineOf(delimNode as YamlNode, 2),
-        message: 'unsupported ECSV delimiter',
-        expected: "',' or ' '",
-        found: shown(isScalar(delimNode) ? delimNode.value : delimNode),
-      });
-      return { problems };
+  if (delimNode === undefined) return { delimiter: ' ', declared: false };
+  const value: unknown = isScalar(delimNode) ? delimNode.value : undefined;
+  if (value === ',' || value === ' ') return { delimiter: value, declared: true };
+  return {
+    problem: {
+      code: 'bad-delimiter',
+      line: lineOf(delimNode as YamlNode, 2),
+      message: 'unsupported ECSV delimiter',
+      expected: "',' or ' '",
+      found: shown(isScalar(delimNode) ? delimNode.value : delimNode),
+    },
+  };
+}
+
+/** One entry of the header's datatype list: name, datatype, unit; null when it has no usable name. */
+function headerColumn(item: unknown, lineOf: LineOf, problems: Problem[]): RawColumn | null {
+  const itemLine = lineOf(item as YamlNode, 2);
+  if (!isMap(item)) {
+    problems.push({ code: 'bad-header', line: itemLine, message: 'a column entry of the ECSV header is not a mapping', expected: '{name: ..., datatype: ...}', found: shown((item as { toJSON?: () => unknown })?.toJSON?.()) });
+    return null;
+  }
+  const nameNode = item.get('name', true);
+  const name = isScalar(nameNode) ? nameNode.value : undefined;
+  if (typeof name !== 'string' || name === '') {
+    problems.push({ code: 'bad-header', line: itemLine, message: 'a column entry of the ECSV header has no name', expected: 'a non-empty name', found: shown(name) });
+    return null;
+  }
+  const column: RawColumn = { name, line: itemLine };
+  const datatypeValue = item.get('datatype', true);
+  const datatype = isScalar(datatypeValue) ? datatypeValue.value : undefined;
+  if (typeof datatype !== 'string' || !(datatype in ECSV_DATATYPES)) {
+    problems.push({
+      code: 'bad-datatype',
+      line: lineOf(item.get('datatype', true) as YamlNode | undefined, itemLine),
+      column: name,
+      message: 'unknown or missing ECSV datatype',
+      expected: 'one of ' + Object.keys(ECSV_DATATYPES).join(', '),
+      found: shown(datatype),
+    });
+  } else {
+    column.datatype = datatype;
+    column.typeClass = ECSV_DATATYPES[datatype];
+  }
+  const unitNode = item.get('unit', true);
+  if (unitNode !== undefined) {
+    const unit = isScalar(unitNode) ? unitNode.value : undefined;
+    column.unitLine = lineOf(unitNode as YamlNode, itemLine);
+    if (typeof unit === 'string') column.unit = unit;
+    else if (unit !== null) {
+      problems.push({ code: 'bad-unit', line: column.unitLine, column: name, message: 'a unit must be written as text', expected: 'a unit name such as "mas"', found: shown(unit) });
     }
   }
+  return column;
+}
 
+/** The columns the header declares, or null when it has no datatype list (problem pushed). */
+function headerColumns(header: YAMLMap, lineOf: LineOf, problems: Problem[]): RawColumn[] | null {
   const datatypeNode = header.get('datatype', true);
-  const columns: RawColumn[] = [];
   if (!isSeq(datatypeNode)) {
     problems.push({
       code: 'bad-header',
@@ -146,47 +189,52 @@ export function readEcsv(bytes: Uint8Array): ParsedTable {
       expected: 'a "datatype:" list with one entry per column',
       found: datatypeNode === undefined ? 'no "datatype" key' : 'something else',
     });
-    return { problems };
+    return null;
   }
+  const columns: RawColumn[] = [];
   for (const item of datatypeNode.items) {
-    const itemLine = lineOf(item as YamlNode, 2);
-    if (!isMap(item)) {
-      problems.push({ code: 'bad-header', line: itemLine, message: 'a column entry of the ECSV header is not a mapping', expected: '{name: ..., datatype: ...}', found: shown((item as { toJSON?: () => unknown })?.toJSON?.()) });
-      continue;
-    }
-    const nameNode = item.get('name', true);
-    const name = isScalar(nameNode) ? nameNode.value : undefined;
-    if (typeof name !== 'string' || name === '') {
-      problems.push({ code: 'bad-header', line: itemLine, message: 'a column entry of the ECSV header has no name', expected: 'a non-empty name', found: shown(name) });
-      continue;
-    }
-    const column: RawColumn = { name, line: itemLine };
-    const datatypeValue = item.get('datatype', true);
-    const datatype = isScalar(datatypeValue) ? datatypeValue.value : undefined;
-    if (typeof datatype !== 'string' || !(datatype in ECSV_DATATYPES)) {
-      problems.push({
-        code: 'bad-datatype',
-        line: lineOf(item.get('datatype', true) as YamlNode | undefined, itemLine),
-        column: name,
-        message: 'unknown or missing ECSV datatype',
-        expected: 'one of ' + Object.keys(ECSV_DATATYPES).join(', '),
-        found: shown(datatype),
-      });
-    } else {
-      column.datatype = datatype;
-      column.typeClass = ECSV_DATATYPES[datatype];
-    }
-    const unitNode = item.get('unit', true);
-    if (unitNode !== undefined) {
-      const unit = isScalar(unitNode) ? unitNode.value : undefined;
-      column.unitLine = lineOf(unitNode as YamlNode, itemLine);
-      if (typeof unit === 'string') column.unit = unit;
-      else if (unit !== null) {
-        problems.push({ code: 'bad-unit', line: column.unitLine, column: name, message: 'a unit must be written as text', expected: 'a unit name such as "mas"', found: shown(unit) });
-      }
-    }
-    columns.push(column);
+    const column = headerColumn(item, lineOf, problems);
+    if (column) columns.push(column);
   }
+  return columns;
+}
+
+/** The column-name row's problem when it does not repeat the header's columns (with a hint for a comma file read with the default space). */
+function columnNamesProblem(namesRow: { cells: string[]; line: number }, columns: readonly RawColumn[], delimiter: ',' | ' ', delimiterDeclared: boolean): Problem | null {
+  const declared = columns.map((c) => c.name);
+  if (namesRow.cells.join('\u0000') === declared.join('\u0000')) return null;
+  const commaHint =
+    !delimiterDeclared && namesRow.cells.length === 1 && namesRow.cells[0].includes(',')
+      ? 'the header declares no delimiter, so the ECSV default (a space) applies; add "# delimiter: \',\'" to the header'
+      : 'the first line after the header must list the columns of the header, in the same order';
+  return {
+    code: 'column-names-mismatch',
+    line: namesRow.line,
+    message: 'the column-name row does not match the columns declared in the header',
+    expected: declared.join(delimiter),
+    found: namesRow.cells.join(delimiter),
+    hint: commaHint,
+  };
+}
+
+export function readEcsv(bytes: Uint8Array): ParsedTable {
+  const decoded = decodeUtf8(bytes);
+  if ('problem' in decoded) return { problems: [decoded.problem] };
+  const lines = decoded.text.split('\n').map((l) => (l.endsWith('\r') ? l.slice(0, -1) : l));
+  const problems: Problem[] = [];
+
+  const bad = signatureProblem(lines[0]);
+  if (bad) return { problems: [bad] };
+  const { headerCount, yamlLines } = headerYamlLines(lines, problems);
+  const parsed = parseHeader(yamlLines, lines[1] ?? '', problems);
+  if (!parsed) return { problems };
+  const { header, lineOf } = parsed;
+  const delim = headerDelimiter(header, lineOf);
+  if ('problem' in delim) return { problems: [...problems, delim.problem] };
+  const { delimiter, declared: delimiterDeclared } = delim;
+  const columns = headerColumns(header, lineOf, problems);
+  if (!columns) return { problems };
+
   // The body: bytes after the header lines.
   const body = stripBom(bytes);
   let offset = 0;
@@ -209,22 +257,8 @@ export function readEcsv(bytes: Uint8Array): ParsedTable {
     }
     return { problems };
   }
-  const declared = columns.map((c) => c.name);
-  if (namesRow.cells.join('\u0000') !== declared.join('\u0000')) {
-    const commaHint =
-      !delimiterDeclared && namesRow.cells.length === 1 && namesRow.cells[0].includes(',')
-        ? 'the header declares no delimiter, so the ECSV default (a space) applies; add "# delimiter: \',\'" to the header'
-        : 'the first line after the header must list the columns of the header, in the same order';
-    problems.push({
-      code: 'column-names-mismatch',
-      line: namesRow.line,
-      message: 'the column-name row does not match the columns declared in the header',
-      expected: declared.join(delimiter),
-      found: namesRow.cells.join(delimiter),
-      hint: commaHint,
-    });
-    return { problems };
-  }
+  const mismatch = columnNamesProblem(namesRow, columns, delimiter, delimiterDeclared);
+  if (mismatch) return { problems: [...problems, mismatch] };
   return {
     table: { columns, headerLine: namesRow.line, rows: records.slice(1) },
     problems,

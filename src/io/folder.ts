@@ -88,6 +88,67 @@ function nearestTable(stem: string): { table: TableName; distance: number } | un
   return best && best.distance <= MISSPELLING_DISTANCE ? best : undefined;
 }
 
+/** A table's file: recorded in the layout, or the problem of a second file for the table or of an entry that is no file. */
+function addTableFile(layout: FolderLayout, name: string, kind: EntryKind, table: TableName, format: TableFormat): void {
+  if (kind !== 'file') {
+    layout.notFiles.push(name);
+    layout.problems.push(notAFile(name, `the file of the table "${table}"`, kind, 'replace it with the table file, or remove it if the release does not provide this table'));
+    return;
+  }
+  const already = layout.tables[table];
+  if (already) {
+    layout.problems.push({
+      fileName: name,
+      problem: {
+        code: 'duplicate-table',
+        message: `the table "${table}" is given twice`,
+        expected: `one file for "${table}"`,
+        found: `${already.fileName} and ${name}`,
+        hint: 'keep one format of each table',
+      },
+    });
+  } else layout.tables[table] = { fileName: name, format };
+}
+
+/**
+ * The problem of a file that is nearly one of the release's files: a misspelt table name, a
+ * table in a format that is not read, a misspelt manifest name; null for any other file.
+ */
+function nearMissProblem(name: string, stem: string, ext: string): Problem | null {
+  const stemN = stem.toLowerCase().replace(/[-\s]/g, '_');
+  const extN = ext.toLowerCase();
+  const near = nearestTable(stemN);
+  if (near && EXT_FORMAT.has(extN)) {
+    const right = `${near.table}.${extN}`;
+    return {
+      code: 'misspelt-file-name',
+      message: 'the file name looks like a misspelt table name, so the table would be ignored',
+      expected: `a table name (${TABLE_NAMES.join(', ')})`,
+      found: JSON.stringify(name),
+      hint: `did you mean "${right}"?`,
+    };
+  }
+  if (near && near.distance === 0) {
+    return {
+      code: 'unsupported-table-format',
+      message: `the file has the name of the table "${near.table}" but a format that is not read`,
+      expected: `${near.table} with extension ${EXT_LIST}`,
+      found: JSON.stringify(name),
+      hint: `convert it to ${near.table}.ecsv`,
+    };
+  }
+  if ((extN === 'yaml' || extN === 'yml') && editDistance(stemN, 'release') <= MISSPELLING_DISTANCE) {
+    return {
+      code: 'misspelt-file-name',
+      message: 'the file name looks like a misspelt manifest name',
+      expected: JSON.stringify(MANIFEST_FILE),
+      found: JSON.stringify(name),
+      hint: `did you mean "${MANIFEST_FILE}"?`,
+    };
+  }
+  return null;
+}
+
 /** Entries of a folder (plain names count as regular files). */
 export function classifyFolder(entries: readonly (string | FolderEntry)[]): FolderLayout {
   const layout: FolderLayout = { tables: {}, hasManifest: false, hasNotes: false, ignored: [], notFiles: [], problems: [] };
@@ -120,65 +181,11 @@ export function classifyFolder(entries: readonly (string | FolderEntry)[]): Fold
     const ext = dot < 0 ? '' : name.slice(dot + 1);
     const format = EXT_FORMAT.get(ext);
     if ((TABLE_NAMES as readonly string[]).includes(stem) && format) {
-      const table = stem as TableName;
-      if (kind !== 'file') {
-        layout.notFiles.push(name);
-        layout.problems.push(notAFile(name, `the file of the table "${table}"`, kind, 'replace it with the table file, or remove it if the release does not provide this table'));
-        continue;
-      }
-      const already = layout.tables[table];
-      if (already) {
-        layout.problems.push({
-          fileName: name,
-          problem: {
-            code: 'duplicate-table',
-            message: `the table "${table}" is given twice`,
-            expected: `one file for "${table}"`,
-            found: `${already.fileName} and ${name}`,
-            hint: 'keep one format of each table',
-          },
-        });
-      } else layout.tables[table] = { fileName: name, format };
+      addTableFile(layout, name, kind, stem as TableName, format);
       continue;
     }
-    const stemN = stem.toLowerCase().replace(/[-\s]/g, '_');
-    const extN = ext.toLowerCase();
-    const near = nearestTable(stemN);
-    if (near && EXT_FORMAT.has(extN)) {
-      const right = `${near.table}.${extN}`;
-      layout.problems.push({
-        fileName: name,
-        problem: {
-          code: 'misspelt-file-name',
-          message: 'the file name looks like a misspelt table name, so the table would be ignored',
-          expected: `a table name (${TABLE_NAMES.join(', ')})`,
-          found: JSON.stringify(name),
-          hint: `did you mean "${right}"?`,
-        },
-      });
-    } else if (near && near.distance === 0) {
-      layout.problems.push({
-        fileName: name,
-        problem: {
-          code: 'unsupported-table-format',
-          message: `the file has the name of the table "${near.table}" but a format that is not read`,
-          expected: `${near.table} with extension ${EXT_LIST}`,
-          found: JSON.stringify(name),
-          hint: `convert it to ${near.table}.ecsv`,
-        },
-      });
-    } else if ((extN === 'yaml' || extN === 'yml') && editDistance(stemN, 'release') <= MISSPELLING_DISTANCE) {
-      layout.problems.push({
-        fileName: name,
-        problem: {
-          code: 'misspelt-file-name',
-          message: 'the file name looks like a misspelt manifest name',
-          expected: JSON.stringify(MANIFEST_FILE),
-          found: JSON.stringify(name),
-          hint: `did you mean "${MANIFEST_FILE}"?`,
-        },
-      });
-    }
+    const problem = nearMissProblem(name, stem, ext);
+    if (problem) layout.problems.push({ fileName: name, problem });
   }
   return layout;
 }

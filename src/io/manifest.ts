@@ -139,6 +139,114 @@ function jsOf(node: unknown): unknown {
 
 // ---- the reader ----------------------------------------------------------------------------
 
+type LineOf = (node: unknown, fallback?: number) => number | undefined;
+
+/** The top-level keys of release.yaml and how to report a problem at one of them. */
+interface ManifestKeys {
+  pairs: Map<string, Pair>;
+  bad(key: string, code: string, message: string, expected: string, found: string, hint?: string): void;
+  missing(key: string, expected: string): void;
+}
+
+function manifestKeys(root: YAMLMap, lineOf: LineOf, problems: Problem[]): ManifestKeys {
+  const pairs = new Map<string, Pair>();
+  for (const pair of root.items) {
+    const key = isScalar(pair.key) ? String(pair.key.value) : String(jsOf(pair.key));
+    if (!(MANIFEST_KEYS as readonly string[]).includes(key)) {
+      problems.push(unknownKeyProblem(key, MANIFEST_KEYS, lineOf(pair.key, 1)!, ''));
+      continue;
+    }
+    pairs.set(key, pair);
+  }
+  const valueLine = (key: string): number | undefined => {
+    const p = pairs.get(key);
+    return p ? (lineOf(p.value) ?? lineOf(p.key)) : undefined;
+  };
+  return {
+    pairs,
+    bad: (key, code, message, expected, found, hint) => {
+      problems.push({ code, line: valueLine(key), column: key, message, expected, found, hint });
+    },
+    missing: (key, expected) => {
+      problems.push({ code: 'missing-key', column: key, message: `release.yaml has no "${key}"`, expected, found: 'no such key' });
+    },
+  };
+}
+
+/** id: a quoted string equal to the folder name. */
+function readId(k: ManifestKeys, folderName: string): string | undefined {
+  const idPair = k.pairs.get('id');
+  if (!idPair) {
+    k.missing('id', `id: "${folderName}"`);
+    return undefined;
+  }
+  const node = idPair.value;
+  const quoted = isScalar(node) && (node.type === 'QUOTE_DOUBLE' || node.type === 'QUOTE_SINGLE');
+  const value = jsOf(node);
+  if (typeof value !== 'string' || !quoted) {
+    k.bad('id', 'bad-id', 'the release id must be a quoted string', `"${folderName}" (in quotes)`, shown(value), `unquoted, 2026.10 would be read as the number 2026.1; write id: "${folderName}"`);
+  } else if (value !== folderName) {
+    k.bad('id', 'id-mismatch', 'the release id differs from the name of its folder', JSON.stringify(folderName), JSON.stringify(value), 'rename the folder or fix the id');
+  } else return value;
+  return undefined;
+}
+
+/** title: non-empty printable text. */
+function readTitle(k: ManifestKeys): string | undefined {
+  const titlePair = k.pairs.get('title');
+  if (!titlePair) {
+    k.missing('title', 'a title');
+    return undefined;
+  }
+  const value = jsOf(titlePair.value);
+  if (typeof value !== 'string' || value.trim() === '') k.bad('title', 'bad-title', 'the title must be non-empty text', 'text', shown(value), 'put the title in quotes');
+  else if (CONTROL_CHARACTER.test(value.trim())) k.bad('title', 'control-character', 'the title holds a control character', 'printable text on one line', shown(value));
+  else return value;
+  return undefined;
+}
+
+/** date: a calendar date YYYY-MM-DD. */
+function readDate(k: ManifestKeys): string | undefined {
+  const datePair = k.pairs.get('date');
+  if (!datePair) {
+    k.missing('date', 'a date YYYY-MM-DD');
+    return undefined;
+  }
+  const value = jsOf(datePair.value);
+  const date = normaliseDate(value);
+  if (date === undefined) k.bad('date', 'bad-date', 'the date is not a calendar date written YYYY-MM-DD', 'a date such as 2026-06-15', shown(value));
+  return date;
+}
+
+/** previous: the quoted id of an earlier release, or null (also when absent); undefined when wrong. */
+function readPrevious(k: ManifestKeys, folderName: string): string | null | undefined {
+  const previousPair = k.pairs.get('previous');
+  if (!previousPair) return null;
+  const value = jsOf(previousPair.value);
+  if (value === null) return null;
+  if (typeof value !== 'string' || value.trim() === '') {
+    k.bad('previous', 'bad-previous', 'previous must be the id of an earlier release, as a quoted string, or null', 'a quoted id such as "2026.1", or null', shown(value), 'quote the id');
+    return undefined;
+  }
+  if (value === folderName) {
+    k.bad('previous', 'bad-previous', 'a release cannot be its own previous release', 'the id of an earlier release', JSON.stringify(value));
+    return undefined;
+  }
+  return value;
+}
+
+/** blinded: true or false (false when absent); undefined when wrong. */
+function readBlinded(k: ManifestKeys): boolean | undefined {
+  const blindedPair = k.pairs.get('blinded');
+  if (!blindedPair) return false;
+  const value = jsOf(blindedPair.value);
+  if (typeof value !== 'boolean') {
+    k.bad('blinded', 'bad-value', 'blinded must be true or false', 'true or false', shown(value));
+    return undefined;
+  }
+  return value;
+}
+
 /**
  * Parse release.yaml text. `folderName` is the name of the release folder,
  * which the id must equal.
@@ -148,7 +256,7 @@ export function parseManifest(text: string, folderName: string): ManifestRead {
   const result: ManifestRead = { analysis: { ...DEFAULT_ANALYSIS, ms_color_range: [...DEFAULT_ANALYSIS.ms_color_range] }, analysisKeysSet: [], variants: [], problems };
   const lineCounter = new LineCounter();
   const doc = parseDocument(text, { lineCounter, uniqueKeys: true, prettyErrors: true });
-  const lineOf = (node: unknown, fallback?: number): number | undefined => {
+  const lineOf: LineOf = (node, fallback) => {
     const range = (node as YamlNode | null | undefined)?.range;
     return range ? lineCounter.linePos(range[0]).line : fallback;
   };
@@ -170,88 +278,18 @@ export function parseManifest(text: string, folderName: string): ManifestRead {
     return result;
   }
 
-  const pairs = new Map<string, Pair>();
-  for (const pair of root.items) {
-    const key = isScalar(pair.key) ? String(pair.key.value) : String(jsOf(pair.key));
-    if (!(MANIFEST_KEYS as readonly string[]).includes(key)) {
-      problems.push(unknownKeyProblem(key, MANIFEST_KEYS, lineOf(pair.key, 1)!, ''));
-      continue;
-    }
-    pairs.set(key, pair);
-  }
-  const valueLine = (key: string): number | undefined => {
-    const p = pairs.get(key);
-    return p ? (lineOf(p.value) ?? lineOf(p.key)) : undefined;
-  };
-  const bad = (key: string, code: string, message: string, expected: string, found: string, hint?: string): void => {
-    problems.push({ code, line: valueLine(key), column: key, message, expected, found, hint });
-  };
-  const missing = (key: string, expected: string): void => {
-    problems.push({ code: 'missing-key', column: key, message: `release.yaml has no "${key}"`, expected, found: 'no such key' });
-  };
+  const k = manifestKeys(root, lineOf, problems);
+  // in this order, so that the problems are listed in the order of the keys of the format
+  const id = readId(k, folderName);
+  const title = readTitle(k);
+  const date = readDate(k);
+  const previous = readPrevious(k, folderName);
+  const blinded = readBlinded(k);
 
-  // id: a quoted string equal to the folder name.
-  let id: string | undefined;
-  const idPair = pairs.get('id');
-  if (!idPair) missing('id', `id: "${folderName}"`);
-  else {
-    const node = idPair.value;
-    const quoted = isScalar(node) && (node.type === 'QUOTE_DOUBLE' || node.type === 'QUOTE_SINGLE');
-    const value = jsOf(node);
-    if (typeof value !== 'string' || !quoted) {
-      bad('id', 'bad-id', 'the release id must be a quoted string', `"${folderName}" (in quotes)`, shown(value), `unquoted, 2026.10 would be read as the number 2026.1; write id: "${folderName}"`);
-    } else if (value !== folderName) {
-      bad('id', 'id-mismatch', 'the release id differs from the name of its folder', JSON.stringify(folderName), JSON.stringify(value), 'rename the folder or fix the id');
-    } else id = value;
-  }
-
-  let title: string | undefined;
-  const titlePair = pairs.get('title');
-  if (!titlePair) missing('title', 'a title');
-  else {
-    const value = jsOf(titlePair.value);
-    if (typeof value !== 'string' || value.trim() === '') bad('title', 'bad-title', 'the title must be non-empty text', 'text', shown(value), 'put the title in quotes');
-    else if (CONTROL_CHARACTER.test(value.trim())) bad('title', 'control-character', 'the title holds a control character', 'printable text on one line', shown(value));
-    else title = value;
-  }
-
-  let date: string | undefined;
-  const datePair = pairs.get('date');
-  if (!datePair) missing('date', 'a date YYYY-MM-DD');
-  else {
-    const value = jsOf(datePair.value);
-    date = normaliseDate(value);
-    if (date === undefined) bad('date', 'bad-date', 'the date is not a calendar date written YYYY-MM-DD', 'a date such as 2026-06-15', shown(value));
-  }
-
-  let previous: string | null | undefined = null;
-  const previousPair = pairs.get('previous');
-  if (previousPair) {
-    const value = jsOf(previousPair.value);
-    if (value === null) previous = null;
-    else if (typeof value !== 'string' || value.trim() === '') {
-      previous = undefined;
-      bad('previous', 'bad-previous', 'previous must be the id of an earlier release, as a quoted string, or null', 'a quoted id such as "2026.1", or null', shown(value), 'quote the id');
-    } else if (value === folderName) {
-      previous = undefined;
-      bad('previous', 'bad-previous', 'a release cannot be its own previous release', 'the id of an earlier release', JSON.stringify(value));
-    } else previous = value;
-  }
-
-  let blinded: boolean | undefined = false;
-  const blindedPair = pairs.get('blinded');
-  if (blindedPair) {
-    const value = jsOf(blindedPair.value);
-    if (typeof value !== 'boolean') {
-      blinded = undefined;
-      bad('blinded', 'bad-value', 'blinded must be true or false', 'true or false', shown(value));
-    } else blinded = value;
-  }
-
-  const analysisPair = pairs.get('analysis');
+  const analysisPair = k.pairs.get('analysis');
   if (analysisPair && analysisPair.value !== null && !(isScalar(analysisPair.value) && analysisPair.value.value === null)) {
     if (!isMap(analysisPair.value)) {
-      bad('analysis', 'bad-value', 'analysis must be a mapping of analysis keys to values', 'a mapping', shown(jsOf(analysisPair.value)));
+      k.bad('analysis', 'bad-value', 'analysis must be a mapping of analysis keys to values', 'a mapping', shown(jsOf(analysisPair.value)));
     } else readAnalysis(analysisPair.value, result, lineOf);
   }
 
@@ -261,8 +299,11 @@ export function parseManifest(text: string, folderName: string): ManifestRead {
   return result;
 }
 
-/** The analysis block: values, then variants; fills `result` and adds problems. */
-function readAnalysis(map: YAMLMap, result: ManifestRead, lineOf: (n: unknown, f?: number) => number | undefined): void {
+/**
+ * The baseline values of the analysis block into `result` (problems added); whether they are
+ * sound, and where the variants list is.
+ */
+function readAnalysisValues(map: YAMLMap, result: ManifestRead, lineOf: LineOf): { valid: boolean; variantsNode: unknown; variantsLine: number | undefined } {
   const problems = result.problems;
   const knownHere = [...ANALYSIS_KEYS, VARIANTS_KEY];
   const lines: Partial<Record<AnalysisKey, number>> = {};
@@ -295,73 +336,103 @@ function readAnalysis(map: YAMLMap, result: ManifestRead, lineOf: (n: unknown, f
   }
   // A variant is checked against the baseline only when the baseline itself is sound.
   if (valid) valid = crossCheck(result.analysis, lines.z_max ?? lines.z_min, 'analysis', problems);
+  return { valid, variantsNode, variantsLine };
+}
 
+/** A variant's name: non-empty printable text, unique among the variants (`names`: name -> line). */
+function variantNameProblem(value: unknown, line: number | undefined, where: string, names: Map<string, number>, keyLine: number): Problem | null {
+  if (typeof value !== 'string' || value.trim() === '') {
+    return { code: 'bad-variant-name', line, column: `${where}.name`, message: 'a variant name must be non-empty text', expected: 'text', found: shown(value) };
+  }
+  if (CONTROL_CHARACTER.test(value)) {
+    return { code: 'control-character', line, column: `${where}.name`, message: 'a variant name holds a control character', expected: 'printable text on one line', found: shown(value) };
+  }
+  const first = names.get(value);
+  if (first !== undefined) {
+    return { code: 'duplicate-variant', line, column: `${where}.name`, message: 'two variants have the same name', expected: 'unique variant names', found: `${JSON.stringify(value)} (also at line ${first})` };
+  }
+  names.set(value, keyLine);
+  return null;
+}
+
+/** One entry of the variants list: its name and overrides when sound (problems added otherwise). */
+function readVariant(
+  item: unknown,
+  i: number,
+  variantsLine: number | undefined,
+  names: Map<string, number>,
+  problems: Problem[],
+  lineOf: LineOf,
+): { name: string; overrides: Partial<AnalysisChoices>; overrideLines: Partial<Record<AnalysisKey, number>>; itemLine: number } | null {
+  const where = `analysis.variants[${i + 1}]`;
+  const itemLine = lineOf(item, variantsLine)!;
+  if (!isMap(item)) {
+    problems.push({ code: 'bad-variant', line: itemLine, column: where, message: 'a variant must be a mapping', expected: '{ name: ..., <analysis key>: <value> }', found: shown(jsOf(item)) });
+    return null;
+  }
+  const knownInVariant = [VARIANT_NAME_KEY, ...ANALYSIS_KEYS];
+  let name: string | undefined;
+  let ok = true;
+  const overrides: Partial<AnalysisChoices> = {};
+  const overrideLines: Partial<Record<AnalysisKey, number>> = {};
+  for (const pair of item.items) {
+    const key = isScalar(pair.key) ? String(pair.key.value) : String(jsOf(pair.key));
+    const keyLine = lineOf(pair.key, itemLine)!;
+    const value = jsOf(pair.value);
+    if (key === VARIANT_NAME_KEY) {
+      const problem = variantNameProblem(value, lineOf(pair.value, keyLine), where, names, keyLine);
+      if (problem) {
+        ok = false;
+        problems.push(problem);
+        // a duplicate name is still the variant's name
+        if (problem.code === 'duplicate-variant') name = value as string;
+      } else name = value as string;
+      continue;
+    }
+    if (!(ANALYSIS_KEYS as readonly string[]).includes(key)) {
+      ok = false;
+      problems.push(unknownKeyProblem(key, knownInVariant, keyLine, where));
+      continue;
+    }
+    const k = key as AnalysisKey;
+    const rule = ANALYSIS_RULES[k](value);
+    if (!rule.ok) {
+      ok = false;
+      problems.push({ code: 'bad-analysis-value', line: lineOf(pair.value, keyLine), column: `${where}.${k}`, message: `invalid value for ${k} in a variant`, expected: rule.expected, found: shown(value) });
+      continue;
+    }
+    (overrides as Record<string, unknown>)[k] = value;
+    overrideLines[k] = keyLine;
+  }
+  if (name === undefined && ok) {
+    ok = false;
+    problems.push({ code: 'bad-variant-name', line: itemLine, column: `${where}.name`, message: 'a variant has no name', expected: 'name: <text>', found: 'no name' });
+  }
+  if (Object.keys(overrides).length === 0 && ok) {
+    ok = false;
+    problems.push({ code: 'empty-variant', line: itemLine, column: where, message: 'the variant overrides no analysis key, so it would repeat the baseline', expected: 'at least one analysis key', found: 'only a name' });
+  }
+  return ok ? { name: name!, overrides, overrideLines, itemLine } : null;
+}
+
+/** The analysis block: values, then variants; fills `result` and adds problems. */
+function readAnalysis(map: YAMLMap, result: ManifestRead, lineOf: LineOf): void {
+  const problems = result.problems;
+  const { valid, variantsNode, variantsLine } = readAnalysisValues(map, result, lineOf);
   if (variantsNode === undefined || variantsNode === null || (isScalar(variantsNode) && variantsNode.value === null)) return;
   if (!isSeq(variantsNode)) {
     problems.push({ code: 'bad-variants', line: lineOf(variantsNode, variantsLine), column: 'analysis.variants', message: 'variants must be a list', expected: 'a list of { name: ..., <analysis key>: <value> }', found: shown(jsOf(variantsNode)) });
     return;
   }
   const names = new Map<string, number>();
-  const knownInVariant = [VARIANT_NAME_KEY, ...ANALYSIS_KEYS];
   variantsNode.items.forEach((item, i) => {
+    const variant = readVariant(item, i, variantsLine, names, problems, lineOf);
+    if (!variant || !valid) return;
     const where = `analysis.variants[${i + 1}]`;
-    const itemLine = lineOf(item, variantsLine)!;
-    if (!isMap(item)) {
-      problems.push({ code: 'bad-variant', line: itemLine, column: where, message: 'a variant must be a mapping', expected: '{ name: ..., <analysis key>: <value> }', found: shown(jsOf(item)) });
-      return;
-    }
-    let name: string | undefined;
-    let ok = true;
-    const overrides: Partial<AnalysisChoices> = {};
-    const overrideLines: Partial<Record<AnalysisKey, number>> = {};
-    for (const pair of item.items) {
-      const key = isScalar(pair.key) ? String(pair.key.value) : String(jsOf(pair.key));
-      const keyLine = lineOf(pair.key, itemLine)!;
-      const value = jsOf(pair.value);
-      if (key === VARIANT_NAME_KEY) {
-        if (typeof value !== 'string' || value.trim() === '') {
-          ok = false;
-          problems.push({ code: 'bad-variant-name', line: lineOf(pair.value, keyLine), column: `${where}.name`, message: 'a variant name must be non-empty text', expected: 'text', found: shown(value) });
-        } else if (CONTROL_CHARACTER.test(value)) {
-          ok = false;
-          problems.push({ code: 'control-character', line: lineOf(pair.value, keyLine), column: `${where}.name`, message: 'a variant name holds a control character', expected: 'printable text on one line', found: shown(value) });
-        } else {
-          const first = names.get(value);
-          if (first !== undefined) {
-            ok = false;
-            problems.push({ code: 'duplicate-variant', line: lineOf(pair.value, keyLine), column: `${where}.name`, message: 'two variants have the same name', expected: 'unique variant names', found: `${JSON.stringify(value)} (also at line ${first})` });
-          } else names.set(value, keyLine);
-          name = value;
-        }
-        continue;
-      }
-      if (!(ANALYSIS_KEYS as readonly string[]).includes(key)) {
-        ok = false;
-        problems.push(unknownKeyProblem(key, knownInVariant, keyLine, where));
-        continue;
-      }
-      const k = key as AnalysisKey;
-      const rule = ANALYSIS_RULES[k](value);
-      if (!rule.ok) {
-        ok = false;
-        problems.push({ code: 'bad-analysis-value', line: lineOf(pair.value, keyLine), column: `${where}.${k}`, message: `invalid value for ${k} in a variant`, expected: rule.expected, found: shown(value) });
-        continue;
-      }
-      (overrides as Record<string, unknown>)[k] = value;
-      overrideLines[k] = keyLine;
-    }
-    if (name === undefined && ok) {
-      ok = false;
-      problems.push({ code: 'bad-variant-name', line: itemLine, column: `${where}.name`, message: 'a variant has no name', expected: 'name: <text>', found: 'no name' });
-    }
-    if (Object.keys(overrides).length === 0 && ok) {
-      ok = false;
-      problems.push({ code: 'empty-variant', line: itemLine, column: where, message: 'the variant overrides no analysis key, so it would repeat the baseline', expected: 'at least one analysis key', found: 'only a name' });
-    }
-    if (!ok || !valid) return;
+    const { name, overrides, overrideLines, itemLine } = variant;
     const merged = withOverrides(result.analysis, overrides);
     if (crossCheck(merged, overrideLines.z_min ?? overrideLines.z_max ?? itemLine, where, problems)) {
-      result.variants.push({ name: name!, overrides });
+      result.variants.push({ name, overrides });
     }
   });
 }

@@ -15,7 +15,7 @@ import { TABLE_SPECS, type TableRows } from '../registry/tables.ts';
 import { nearest } from './suggest.ts';
 import { parseTable, type TableRead } from './table.ts';
 import { decodeUtf8, sha256Hex } from './text.ts';
-import { verifyPublishedFolder } from '../publish/record.ts';
+import { verifyPublishedFolder } from './publishedRecord.ts';
 
 /** Tables whose `system` column must name a row of `systems`. */
 const REFERENCING_TABLES = TABLE_NAMES.filter((t) => TABLE_SPECS[t].systemRef !== undefined);
@@ -81,10 +81,11 @@ export function readManifest(dir: string): Pick<Release, 'manifest' | 'analysis'
   return { manifest: read.manifest, analysis: read.analysis, analysisKeysSet: read.analysisKeysSet, variants: read.variants };
 }
 
-/** Read and validate the release in `dir`; throws InputError listing every problem found. */
-export function loadRelease(dir: string): Release {
-  const abs = resolve(dir);
-  const folderName = basename(abs);
+type FolderLayout = ReturnType<typeof classifyFolder>;
+type IssuesOf = (fileName: string) => Problem[];
+
+/** Refuse a path that is not a folder. */
+function requireFolder(dir: string, abs: string): void {
   const stat = statSync(abs, { throwIfNoEntry: false });
   if (!stat?.isDirectory()) {
     throw new InputError([
@@ -97,35 +98,16 @@ export function loadRelease(dir: string): Release {
       },
     ]);
   }
+}
 
-  // A published release is frozen: refuse it at once if a file changed since publication
-  // (src/publish/record.ts), before anything is read from the changed files.
-  const frozen = verifyPublishedFolder(dir);
-  if (frozen.length > 0) throw new InputError(frozen);
-
-  const collectors = new Map<string, FileIssues>();
-  const issuesOf = (fileName: string): Problem[] => {
-    let c = collectors.get(fileName);
-    if (!c) {
-      c = newFileIssues(join(dir, fileName));
-      collectors.set(fileName, c);
-    }
-    return c.problems;
-  };
-  const inputs: InputFile[] = [];
-
-  const layout = classifyFolder(releaseFolderEntries(abs));
-  // Issues are listed per file in this order: release.yaml, the tables, then other files.
-  issuesOf(MANIFEST_FILE);
-  for (const table of TABLE_NAMES) issuesOf(layout.tables[table]?.fileName ?? `${table}.ecsv`);
-  for (const { fileName, problem } of layout.problems) issuesOf(fileName).push(problem);
-
-  // release.yaml
-  let manifest: ManifestRead | undefined;
+/** release.yaml: its content (with its own problems), the missing file, or the unreadable one. */
+function readManifestOf(layout: FolderLayout, abs: string, folderName: string, issuesOf: IssuesOf, inputs: InputFile[]): ManifestRead | undefined {
   const manifestBytes = layout.hasManifest ? readBytes(join(abs, MANIFEST_FILE)) : null;
   if (manifestBytes !== null && 'problem' in manifestBytes) {
     issuesOf(MANIFEST_FILE).push(manifestBytes.problem);
-  } else if (manifestBytes === null) {
+    return undefined;
+  }
+  if (manifestBytes === null) {
     // release.yaml that is there but no file has its problem already (layout.problems).
     if (!layout.notFiles.includes(MANIFEST_FILE)) issuesOf(MANIFEST_FILE).push({
       code: 'missing-file',
@@ -133,14 +115,16 @@ export function loadRelease(dir: string): Release {
       expected: 'release.yaml with id, title and date',
       found: 'no such file',
     });
-  } else {
-    const read = parseManifestBytes(manifestBytes.bytes, folderName);
-    manifest = read;
-    issuesOf(MANIFEST_FILE).push(...read.problems);
-    inputs.push({ table: 'release', file: MANIFEST_FILE, format: 'yaml', sha256: sha256Hex(read.bytes), rows: 0, extraColumns: [], columnUnits: {} });
+    return undefined;
   }
+  const read = parseManifestBytes(manifestBytes.bytes, folderName);
+  issuesOf(MANIFEST_FILE).push(...read.problems);
+  inputs.push({ table: 'release', file: MANIFEST_FILE, format: 'yaml', sha256: sha256Hex(read.bytes), rows: 0, extraColumns: [], columnUnits: {} });
+  return read;
+}
 
-  // tables
+/** Every table present, parsed and checked on its own; the absent ones listed (systems is required). */
+function readTables(layout: FolderLayout, abs: string, issuesOf: IssuesOf, inputs: InputFile[]): { reads: Reads; absentTables: TableName[] } {
   const reads: Reads = {};
   const absentTables: TableName[] = [];
   for (const table of TABLE_NAMES) {
@@ -167,10 +151,11 @@ export function loadRelease(dir: string): Release {
     issuesOf(ref.fileName).push(...read.problems);
     inputs.push(read.input);
   }
+  return { reads, absentTables };
+}
 
-  crossCheckTables(reads, layout.tables, issuesOf);
-
-  // notes.md
+/** notes.md as text (null when absent or not UTF-8). */
+function readNotes(layout: FolderLayout, abs: string, issuesOf: IssuesOf, inputs: InputFile[]): string | null {
   let notes: string | null = null;
   const notesBytes = layout.hasNotes ? readBytes(join(abs, NOTES_FILE)) : null;
   if (notesBytes !== null && 'problem' in notesBytes) issuesOf(NOTES_FILE).push(notesBytes.problem);
@@ -181,8 +166,11 @@ export function loadRelease(dir: string): Release {
     else notes = decoded.text;
     inputs.push({ table: 'notes', file: NOTES_FILE, format: 'markdown', sha256: sha256Hex(bytes), rows: 0, extraColumns: [], columnUnits: {} });
   }
+  return notes;
+}
 
-  // One error for the whole release.
+/** One error for the whole release: every file's issues, in the order the files were first named. */
+function throwCollectedIssues(collectors: Map<string, FileIssues>, manifest: ManifestRead | undefined): asserts manifest is ManifestRead & { manifest: NonNullable<ManifestRead['manifest']> } {
   const issues: InputIssue[] = [];
   let omitted = 0;
   for (const collector of collectors.values()) {
@@ -194,6 +182,40 @@ export function loadRelease(dir: string): Release {
     if (issues.length === 0) throw new Error('release.yaml was not read but no problem was recorded');
     throw new InputError(issues, omitted);
   }
+}
+
+/** Read and validate the release in `dir`; throws InputError listing every problem found. */
+export function loadRelease(dir: string): Release {
+  const abs = resolve(dir);
+  requireFolder(dir, abs);
+
+  // A published release is frozen: refuse it at once if a file changed since publication
+  // (src/io/publishedRecord.ts), before anything is read from the changed files.
+  const frozen = verifyPublishedFolder(dir);
+  if (frozen.length > 0) throw new InputError(frozen);
+
+  const collectors = new Map<string, FileIssues>();
+  const issuesOf: IssuesOf = (fileName) => {
+    let c = collectors.get(fileName);
+    if (!c) {
+      c = newFileIssues(join(dir, fileName));
+      collectors.set(fileName, c);
+    }
+    return c.problems;
+  };
+  const inputs: InputFile[] = [];
+
+  const layout = classifyFolder(releaseFolderEntries(abs));
+  // Issues are listed per file in this order: release.yaml, the tables, then other files.
+  issuesOf(MANIFEST_FILE);
+  for (const table of TABLE_NAMES) issuesOf(layout.tables[table]?.fileName ?? `${table}.ecsv`);
+  for (const { fileName, problem } of layout.problems) issuesOf(fileName).push(problem);
+
+  const manifest = readManifestOf(layout, abs, basename(abs), issuesOf, inputs);
+  const { reads, absentTables } = readTables(layout, abs, issuesOf, inputs);
+  crossCheckTables(reads, layout.tables, issuesOf);
+  const notes = readNotes(layout, abs, issuesOf, inputs);
+  throwCollectedIssues(collectors, manifest);
 
   return {
     manifest: manifest.manifest,

@@ -17,7 +17,7 @@ import type {
   VariantResult,
 } from '../types/results.ts';
 import { RESULTS_SCHEMA } from '../types/results.ts';
-import type { LadderRun } from './calibrate.ts';
+import type { LadderRun } from './ladderRun.ts';
 import { PARAM, systemParam } from './globalModel.ts';
 import { wesenheitMagnitude } from './cepheids.ts';
 import { correctedMagnitude, correctedMagnitudeVariance } from './supernovae.ts';
@@ -27,7 +27,7 @@ import { massStepIndicator } from './massStep.ts';
 import { cepheidHostHomogeneity, homogeneityCheck } from './fitQuality.ts';
 import { systematicSources } from './budget.ts';
 import { chiSquarePValue } from '../math/special.ts';
-import type { CalibrateOptions } from './calibrate.ts';
+import type { CalibrateOptions } from './ladderRun.ts';
 import { HIDDEN_WHEN_BLINDED, parameterSpec } from '../registry/rungs.ts';
 
 /** chi2/dof outside this band gets a warning (common practice, no source). */
@@ -56,23 +56,35 @@ export function canonicalJson(value: unknown): string {
   return JSON.stringify(value);
 }
 
-export function assembleResults(
-  release: Release,
-  run: LadderRun,
-  variants: VariantResult[],
-  sys: number,
-  budget: BudgetEntry[],
-  options: CalibrateOptions,
-): Results {
-  const { fit, analysis } = run;
-  const blinded = release.manifest.blinded;
-  const parameters: Record<string, ParameterResult> = {};
+type GlobalFit = NonNullable<LadderRun['fit']>;
+
+/** The fitted parameters by name: index (-1 when not fitted), value and error. */
+interface FittedParameters {
+  p: number;
+  idx(name: string): number;
+  value(name: string): number;
+  err(name: string): number;
+}
+
+function fittedParameters(fit: LadderRun['fit']): FittedParameters {
   const p = fit?.paramNames.length ?? 0;
   // a map, not indexOf: looked up once per Cepheid, which would make this quadratic
   const paramIndex = new Map(fit?.paramNames.map((name, i) => [name, i]) ?? []);
   const idx = (name: string) => paramIndex.get(name) ?? -1;
-  const value = (name: string) => fit!.q[idx(name)];
-  const err = (name: string) => Math.sqrt(fit!.cov[idx(name) * p + idx(name)]);
+  return {
+    p,
+    idx,
+    value: (name) => fit!.q[idx(name)],
+    err: (name) => Math.sqrt(fit!.cov[idx(name) * p + idx(name)]),
+  };
+}
+
+/** The global parameters of results.json, in their fixed order; blinded ones flagged. */
+function parameterResults(release: Release, run: LadderRun, fp: FittedParameters): Record<string, ParameterResult> {
+  const { fit, analysis } = run;
+  const blinded = release.manifest.blinded;
+  const parameters: Record<string, ParameterResult> = {};
+  const { idx, value, err } = fp;
   const put = (name: string, v: number, e: number, extra: Partial<ParameterResult> = {}) => {
     parameters[name] = { value: v, err: e, ...parameterInfo(name), ...extra };
     if (blinded && BLINDED_PARAMS.has(name)) parameters[name].blinded = true;
@@ -93,40 +105,54 @@ export function assembleResults(
       put('parallax_zero_point', analysis.parallax_zero_point + value(PARAM.zeta), err(PARAM.zeta));
     }
   }
+  return parameters;
+}
 
-  // systems
-  const priors = run.priors;
-  const priorIndex = new Map(priors.systems.map((s, i) => [s, i]));
-  const priorErr = (i: number) => {
-    let v = priors.zpLoading[i] ** 2 * analysis.parallax_zero_point_err ** 2;
-    for (const part of priors.parts) v += part.cov[i][i];
-    return Math.sqrt(v);
-  };
-  // rows per system, counted once per table (linear in the rows, not systems x rows)
+/** Rows per system of one table, counted once per table (linear in the rows, not systems x rows). */
+function rowCounter(): (rows: readonly { system: string }[], s: string) => number {
   const countsOf = (rows: readonly { system: string }[]) => {
     const m = new Map<string, number>();
     for (const r of rows) m.set(r.system, (m.get(r.system) ?? 0) + 1);
     return m;
   };
   const rowCounts = new Map<readonly { system: string }[], Map<string, number>>();
-  const count = (rows: readonly { system: string }[], s: string) => {
+  return (rows, s) => {
     let m = rowCounts.get(rows);
     if (!m) rowCounts.set(rows, (m = countsOf(rows)));
     return m.get(s) ?? 0;
   };
+}
+
+/** What a system is in the ladder, from the tables it has rows in. */
+function systemRoles(kind: string, rows: { parallax: number; main_sequence: number; cepheids: number; sn_calibrators: number }): SystemRole[] {
+  const roles: SystemRole[] = [];
+  if (rows.parallax > 0) roles.push(kind === 'field' ? 'field_star' : 'anchor');
+  if (rows.parallax === 0 && rows.main_sequence > 0) roles.push('main_sequence_target');
+  if (rows.cepheids > 0) roles.push('cepheid_system');
+  if (rows.sn_calibrators > 0) roles.push('sn_host');
+  return roles;
+}
+
+/** Every system's distance: from the global fit when it has a parameter there, else its prior. */
+function systemResults(release: Release, run: LadderRun, fp: FittedParameters): SystemResult[] {
+  const { fit, analysis, priors } = run;
+  const { p, idx } = fp;
+  const priorIndex = new Map(priors.systems.map((s, i) => [s, i]));
+  const priorErr = (i: number) => {
+    let v = priors.zpLoading[i] ** 2 * analysis.parallax_zero_point_err ** 2;
+    for (const part of priors.parts) v += part.cov[i][i];
+    return Math.sqrt(v);
+  };
+  const count = rowCounter();
   const targetBySystem = new Map(run.mainSequence.targets.map((t) => [t.system, t]));
-  const systems: SystemResult[] = release.systems.map((s) => {
+  return release.systems.map((s) => {
     const rows = {
       parallax: count(release.parallax, s.system),
       main_sequence: count(release.mainSequence, s.system),
       cepheids: count(release.cepheids, s.system),
       sn_calibrators: count(release.snCalibrators, s.system),
     };
-    const roles: SystemRole[] = [];
-    if (rows.parallax > 0) roles.push(s.kind === 'field' ? 'field_star' : 'anchor');
-    if (rows.parallax === 0 && rows.main_sequence > 0) roles.push('main_sequence_target');
-    if (rows.cepheids > 0) roles.push('cepheid_system');
-    if (rows.sn_calibrators > 0) roles.push('sn_host');
+    const roles = systemRoles(s.kind, rows);
     const pi = priorIndex.get(s.system);
     const fi = idx(systemParam(s.system));
     let mu: number | null = null;
@@ -157,19 +183,29 @@ export function assembleResults(
       ebv_err: target ? target.ebv_err : (s.ebvErr ?? null),
     };
   });
+}
 
-  // per-object rows
-  const residualByKey = new Map<string, { residual: number; variance: number; rejected: boolean; membership: number }>();
+type ResidualIndex = Map<string, { residual: number; variance: number; rejected: boolean; membership: number }>;
+
+/** The global fit's residual of every row (kept and rejected), keyed "table:id". */
+function residualIndex(fit: LadderRun['fit']): ResidualIndex {
+  const residualByKey: ResidualIndex = new Map();
   if (fit) {
     for (const r of [...fit.residuals, ...fit.rejected]) {
       residualByKey.set(`${r.ref.table}:${r.ref.id}`, { residual: r.residual, variance: r.variance, rejected: r.rejected, membership: r.membership });
     }
   }
+  return residualByKey;
+}
+
+/** Every Cepheid with a fitted distance: Wesenheit magnitude, absolute magnitude, residual. */
+function cepheidResults(release: Release, run: LadderRun, fp: FittedParameters, residualByKey: ResidualIndex): CepheidResult[] {
+  const { fit, analysis } = run;
   const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
-  const cepheids: CepheidResult[] = release.cepheids.map((c) => {
+  return release.cepheids.map((c) => {
     const wm = wesenheitMagnitude(c, analysis.wesenheit_r);
     const name = fieldSystems.has(c.system) ? `mu:${c.system}/${c.star}` : systemParam(c.system);
-    const mi = idx(name);
+    const mi = fp.idx(name);
     const mu = mi >= 0 ? fit!.q[mi] : NaN;
     const r = residualByKey.get(`cepheids:${c.star}`);
     return {
@@ -186,7 +222,17 @@ export function assembleResults(
       membership: r ? r.membership : 1,
     };
   }).filter((c) => Number.isFinite(c.abs_w));
+}
 
+/** The supernovae, calibrators and Hubble flow: standardised magnitude, distance modulus, residual. */
+function supernovaResults(
+  release: Release,
+  run: LadderRun,
+  fp: FittedParameters,
+  residualByKey: ResidualIndex,
+): { calibrators: SupernovaResult[]; hubble_flow: SupernovaResult[] } {
+  const { fit, analysis } = run;
+  const { idx, value } = fp;
   const alpha = fit?.alpha.value ?? 0;
   const beta = fit?.beta.value ?? 0;
   const mB = idx(PARAM.MB) >= 0 ? value(PARAM.MB) : NaN;
@@ -236,8 +282,12 @@ export function assembleResults(
         };
       })
     : [];
+  return { calibrators, hubble_flow: hubbleFlow };
+}
 
-  const rejected: Rejection[] = [
+/** Rows the global fit clipped or down-weighted as outliers. */
+function rejectedRows(fit: LadderRun['fit']): Rejection[] {
+  return [
     ...(fit?.rejected ?? []).map((r) => ({ r, treatment: 'clipped' as const })),
     ...(fit?.downweighted ?? []).map((r) => ({ r, treatment: 'downweighted' as const })),
   ].map(({ r, treatment }) => ({
@@ -249,13 +299,13 @@ export function assembleResults(
     treatment,
     membership: r.ref.table === 'cepheids' ? r.membership : null,
   }));
+}
 
-  const checks: CheckResult[] = [...run.checks];
-  // fit quality that can fail (fitQuality.ts): its check comes after the checks of the rungs
-  const quality = fit ? cepheidHostHomogeneity(fit) : null;
-  if (fit) {
-    const ratio = fit.chi2 / fit.dof;
-    checks.push({
+/** The checks of the global fit itself (chi2 per degree of freedom, outliers), after the rungs' checks. */
+function globalFitChecks(fit: GlobalFit, clipSigma: number | null, nRejected: number): CheckResult[] {
+  const ratio = fit.chi2 / fit.dof;
+  return [
+    {
       id: 'fit-quality',
       title: 'Global fit chi2 per degree of freedom (about 1 by construction)',
       passed: ratio >= CHI2_PER_DOF_WARN[0] && ratio <= CHI2_PER_DOF_WARN[1],
@@ -263,19 +313,23 @@ export function assembleResults(
       detail:
         `chi2/dof = ${ratio.toFixed(3)} (${fit.chi2.toFixed(1)} / ${fit.dof}): about 1 by construction, because the intrinsic scatters are fitted to make each group's chi2 match its degrees of freedom. ` +
         'It is not a test of the fit; the host-scatter check (Bartlett) is the one that can fail.',
-    });
-    checks.push({
+    },
+    {
       id: 'outliers',
       title: 'Outlier rejection',
-      passed: rejected.length <= 0.05 * fit.nData,
+      passed: nRejected <= 0.05 * fit.nData,
       severity: 'info',
       detail:
-        analysis.clip_sigma === null
+        clipSigma === null
           ? 'outlier rejection disabled (clip_sigma: null)'
-          : `${rejected.length} rows rejected beyond ${analysis.clip_sigma} sigma`,
-    });
-  }
+          : `${nRejected} rows rejected beyond ${clipSigma} sigma`,
+    },
+  ];
+}
 
+/** Correlation matrix of the main parameters of the global fit. */
+function mainCorrelation(fit: LadderRun['fit'], fp: FittedParameters): Results['correlation'] {
+  const { p, idx } = fp;
   const mainNames = [PARAM.MW, PARAM.bW, PARAM.ZW, PARAM.MB, PARAM.aB, PARAM.zeta].filter((n) => idx(n) >= 0);
   const corr = mainNames.map((a) =>
     mainNames.map((b) => {
@@ -284,14 +338,60 @@ export function assembleResults(
       return fit!.cov[i * p + j] / Math.sqrt(fit!.cov[i * p + i] * fit!.cov[j * p + j]);
     }),
   );
+  return { names: mainNames, matrix: corr };
+}
 
-  let h0: Results['h0'] = null;
-  if (run.log10H0) {
-    const value = 10 ** run.log10H0.value;
-    const stat = value * Math.LN10 * Math.sqrt(run.log10H0.variance);
-    h0 = { value, stat, sys, total: Math.sqrt(stat * stat + sys * sys) };
-  }
+/** H0 with its statistical, systematic and total errors (km/s/Mpc), when the Hubble flow is reached. */
+function h0Result(run: LadderRun, sys: number): Results['h0'] {
+  if (!run.log10H0) return null;
+  const value = 10 ** run.log10H0.value;
+  const stat = value * Math.LN10 * Math.sqrt(run.log10H0.variance);
+  return { value, stat, sys, total: Math.sqrt(stat * stat + sys * sys) };
+}
 
+/** The fit summary of results.json (zeros when the ladder stopped before the global fit). */
+function fitSummary(fit: LadderRun['fit'], p: number, nRejected: number, quality: ReturnType<typeof cepheidHostHomogeneity> | null): Results['fit'] {
+  return fit
+    ? {
+        chi2: fit.chi2,
+        dof: fit.dof,
+        p_value: chiSquarePValue(fit.chi2, fit.dof),
+        n_data: fit.nData,
+        n_parameters: p,
+        n_rejected: nRejected,
+        converged: fit.converged,
+        iterations: fit.iterations,
+        scatter: fit.scatter,
+        quality,
+      }
+    : {
+        chi2: 0,
+        dof: 0,
+        p_value: 1,
+        n_data: 0,
+        n_parameters: 0,
+        n_rejected: 0,
+        converged: true,
+        iterations: 0,
+        scatter: { cepheids: 0, supernovae: 0 },
+      };
+}
+
+export function assembleResults(
+  release: Release,
+  run: LadderRun,
+  variants: VariantResult[],
+  sys: number,
+  budget: BudgetEntry[],
+  options: CalibrateOptions,
+): Results {
+  const { fit } = run;
+  const fp = fittedParameters(fit);
+  const residualByKey = residualIndex(fit);
+  const rejected = rejectedRows(fit);
+  // fit quality that can fail (fitQuality.ts): its check comes after the checks of the rungs
+  const quality = fit ? cepheidHostHomogeneity(fit) : null;
+  const checks: CheckResult[] = [...run.checks, ...(fit ? globalFitChecks(fit, run.analysis.clip_sigma, rejected.length) : [])];
   const analysisHash = sha256(canonicalJson({ analysis: release.analysis, variants: release.variants }));
   const inputsHash = sha256(release.inputs.map((i) => `${i.file}:${i.sha256}`).join('\n'));
   return {
@@ -302,42 +402,19 @@ export function assembleResults(
       date: release.manifest.date,
       previous: release.manifest.previous,
     },
-    blinded,
+    blinded: release.manifest.blinded,
     unblinding: null,
     reached: run.reached,
-    h0,
-    parameters,
-    systems,
+    h0: h0Result(run, sys),
+    parameters: parameterResults(release, run, fp),
+    systems: systemResults(release, run, fp),
     budget,
     variants,
     systematics: systematicSources(variants),
-    fit: fit
-      ? {
-          chi2: fit.chi2,
-          dof: fit.dof,
-          p_value: chiSquarePValue(fit.chi2, fit.dof),
-          n_data: fit.nData,
-          n_parameters: p,
-          n_rejected: rejected.length,
-          converged: fit.converged,
-          iterations: fit.iterations,
-          scatter: fit.scatter,
-          quality,
-        }
-      : {
-          chi2: 0,
-          dof: 0,
-          p_value: 1,
-          n_data: 0,
-          n_parameters: 0,
-          n_rejected: 0,
-          converged: true,
-          iterations: 0,
-          scatter: { cepheids: 0, supernovae: 0 },
-        },
+    fit: fitSummary(fit, fp.p, rejected.length, quality),
     rejected,
     checks: quality ? [...checks, homogeneityCheck(quality)] : checks,
-    correlation: { names: mainNames, matrix: corr },
+    correlation: mainCorrelation(fit, fp),
     rungs: {
       parallax: {
         anchors: run.parallax.anchors,
@@ -349,8 +426,8 @@ export function assembleResults(
         targets: run.mainSequence.targets,
         stars: run.mainSequence.stars,
       },
-      cepheids,
-      supernovae: { calibrators, hubble_flow: hubbleFlow },
+      cepheids: cepheidResults(release, run, fp, residualByKey),
+      supernovae: supernovaResults(release, run, fp, residualByKey),
     },
     analysis: release.analysis,
     analysis_set: release.analysisKeysSet,

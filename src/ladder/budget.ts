@@ -12,7 +12,7 @@
  * Fractions are of the total variance stat^2 + sys^2.
  */
 import type { BudgetEntry, SystematicSource, VariantResult } from '../types/results.ts';
-import type { LadderRun } from './calibrate.ts';
+import type { LadderRun } from './ladderRun.ts';
 import { SOURCE_OF_KEY } from './variants.ts';
 
 export const BUDGET_LABELS: Record<string, string> = {

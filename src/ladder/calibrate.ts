@@ -10,7 +10,8 @@ import { RESULTS_SCHEMA } from '../types/results.ts';
 import { AnalysisError, type AnalysisProblem } from '../types/issues.ts';
 import type { DistancePriorBlock } from './types.ts';
 import { fitParallaxRung } from './parallax.ts';
-import { fitMainSequenceRung, buildDistancePriors } from './mainSequence.ts';
+import { fitMainSequenceRung } from './mainSequence.ts';
+import { buildDistancePriors } from './mainSequencePriors.ts';
 import { emptySampleProblem, selectHubbleFlow, log10H0 } from './hubbleFlow.ts';
 import { cepheidChecks } from './cepheids.ts';
 import { fitGlobal } from './globalFit.ts';
@@ -20,20 +21,10 @@ import { errorBudget, systematicError } from './budget.ts';
 import { changesData, netShift, sourceOfVariant, variantAnalysis, variantNoiseH0 } from './variants.ts';
 import { massStepProblem } from './massStep.ts';
 import { ladderProblems, linkageProblems, requireLadder } from './requirements.ts';
+import type { CalibrateOptions, LadderRun } from './ladderRun.ts';
 
-/** Everything one pass of the ladder produces (before variants). */
-export interface LadderRun {
-  analysis: AnalysisChoices;
-  parallax: ReturnType<typeof fitParallaxRung>;
-  mainSequence: ReturnType<typeof fitMainSequenceRung>;
-  priors: DistancePriorBlock;
-  hubbleFlow: ReturnType<typeof selectHubbleFlow>;
-  fit: ReturnType<typeof fitGlobal> | null;
-  /** log10 H0 and its statistical variance, when the Hubble flow is reached. */
-  log10H0: { value: number; variance: number; gradient: Float64Array } | null;
-  checks: CheckResult[];
-  reached: Results['reached'];
-}
+// The run's shape lives below the modules that read it (assemble, budget, variants): no import cycle.
+export type { CalibrateOptions, LadderRun } from './ladderRun.ts';
 
 /** Analysis keys each early rung depends on: variants that leave them alone reuse the rung. */
 const PARALLAX_KEYS = ['parallax_zero_point', 'parallax_zero_point_err', 'parallax_floor'] as const;
@@ -72,6 +63,54 @@ export function earlyRungs(release: Release, analysis: AnalysisChoices, cache: R
 }
 
 /**
+ * The checks of the Hubble-flow sample: how many supernovae the redshift range keeps (refusing
+ * an empty sample), and whether the flow is left out for want of calibrators.
+ */
+function hubbleFlowChecks(release: Release, analysis: AnalysisChoices, hubbleFlow: ReturnType<typeof selectHubbleFlow>): CheckResult[] {
+  const checks: CheckResult[] = [];
+  if (release.snHubbleFlow.length > 0) {
+    checks.push({
+      id: 'hubble-flow-redshift-cut',
+      title: 'Hubble-flow supernovae inside the redshift range',
+      passed: hubbleFlow.used.length > 0,
+      severity: 'warning',
+      detail: `${hubbleFlow.used.length} of ${release.snHubbleFlow.length} supernovae have ${analysis.z_min} <= z <= ${analysis.z_max}; ${hubbleFlow.excluded.length} left out`,
+    });
+    if (hubbleFlow.used.length === 0) throw AnalysisError.of(emptySampleProblem(release.snHubbleFlow, analysis));
+  }
+  if (release.snCalibrators.length === 0 && release.snHubbleFlow.length > 0) {
+    checks.push({
+      id: 'hubble-flow-without-calibrators',
+      title: 'Hubble-flow supernovae without calibrators',
+      passed: false,
+      severity: 'warning',
+      detail: `${release.snHubbleFlow.length} Hubble-flow supernovae are not used: without calibrator supernovae M_B is unknown, so the ladder stops before the Hubble flow`,
+    });
+  }
+  return checks;
+}
+
+/** log10 H0 = (M_B + 5 a_B + 25) / 5 with its variance, and the rung the fit reached. */
+function log10H0OfFit(fit: ReturnType<typeof fitGlobal>): { h0: LadderRun['log10H0']; reached: Results['reached'] } {
+  let reached: Results['reached'] = 'cepheids';
+  let h0: LadderRun['log10H0'] = null;
+  const iMB = fit.paramNames.indexOf(PARAM.MB);
+  const iAB = fit.paramNames.indexOf(PARAM.aB);
+  if (iMB >= 0) reached = 'sn_calibrators';
+  if (iMB >= 0 && iAB >= 0) {
+    reached = 'hubble_flow';
+    const p = fit.paramNames.length;
+    const g = new Float64Array(p);
+    g[iMB] = 0.2;
+    g[iAB] = 1;
+    let variance = 0;
+    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) variance += g[i] * fit.cov[i * p + j] * g[j];
+    h0 = { value: log10H0(fit.q[iMB], fit.q[iAB]), variance, gradient: g };
+  }
+  return { h0, reached };
+}
+
+/**
  * One pass of the ladder with the given analysis choices. Refuses first, before any fit, a
  * release whose structure the ladder cannot use (src/ladder/requirements.ts); what remains to
  * refuse is what only the fits can tell (a parameter the data do not determine).
@@ -85,28 +124,10 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
   const priors = buildDistancePriors(parallax, mainSequence);
   const hubbleFlow = selectHubbleFlow(release.snHubbleFlow, analysis);
   checks.push(...cepheidChecks(release.cepheids));
-  if (release.snHubbleFlow.length > 0) {
-    checks.push({
-      id: 'hubble-flow-redshift-cut',
-      title: 'Hubble-flow supernovae inside the redshift range',
-      passed: hubbleFlow.used.length > 0,
-      severity: 'warning',
-      detail: `${hubbleFlow.used.length} of ${release.snHubbleFlow.length} supernovae have ${analysis.z_min} <= z <= ${analysis.z_max}; ${hubbleFlow.excluded.length} left out`,
-    });
-    if (hubbleFlow.used.length === 0) throw AnalysisError.of(emptySampleProblem(release.snHubbleFlow, analysis));
-  }
   // Without calibrator supernovae M_B is unknown, so the Hubble flow cannot be reached: its rows
   // stay out of the fit (they would only determine a_B, which then leads nowhere) and a check says so.
+  checks.push(...hubbleFlowChecks(release, analysis, hubbleFlow));
   const flowInFit = release.snCalibrators.length > 0 ? hubbleFlow.used : [];
-  if (release.snCalibrators.length === 0 && release.snHubbleFlow.length > 0) {
-    checks.push({
-      id: 'hubble-flow-without-calibrators',
-      title: 'Hubble-flow supernovae without calibrators',
-      passed: false,
-      severity: 'warning',
-      detail: `${release.snHubbleFlow.length} Hubble-flow supernovae are not used: without calibrator supernovae M_B is unknown, so the ladder stops before the Hubble flow`,
-    });
-  }
   const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
   let reached: Results['reached'] = release.mainSequence.length > 0 ? 'main_sequence' : 'parallax';
   if (release.cepheids.length === 0) {
@@ -137,20 +158,8 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
     severity: 'info',
     detail: stepProblem === null ? `fitted at log10(M/M_sun) = ${analysis.sn_mass_step_logmass}` : `not fitted: ${stepProblem}`,
   });
-  let h0: LadderRun['log10H0'] = null;
-  const iMB = fit.paramNames.indexOf(PARAM.MB);
-  const iAB = fit.paramNames.indexOf(PARAM.aB);
-  if (iMB >= 0) reached = 'sn_calibrators';
-  if (iMB >= 0 && iAB >= 0) {
-    reached = 'hubble_flow';
-    const p = fit.paramNames.length;
-    const g = new Float64Array(p);
-    g[iMB] = 0.2;
-    g[iAB] = 1;
-    let variance = 0;
-    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) variance += g[i] * fit.cov[i * p + j] * g[j];
-    h0 = { value: log10H0(fit.q[iMB], fit.q[iAB]), variance, gradient: g };
-  }
+  const { h0, reached: reachedByFit } = log10H0OfFit(fit);
+  reached = reachedByFit;
   checks.push({
     id: 'global-fit-converged',
     title: 'Global fit converged',
@@ -178,10 +187,6 @@ export function checkLadder(release: Release): AnalysisProblem[] {
     throw e;
   }
   return [];
-}
-
-export interface CalibrateOptions {
-  codeVersion: string;
 }
 
 /**

@@ -390,15 +390,10 @@ export interface GlobalFitOptions {
   eliminate?: boolean;
 }
 
-export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {}): GlobalFitResult {
-  const params = new ParameterIndex(input);
-  const prepared = prepareModel(input, params);
-  const prep = options.eliminate === false ? { ...prepared, globals: params.names.map((_, i) => i) } : prepared;
-  const p = params.size;
+/** The start of the iteration: alpha, beta at their fixed or typical values, start scatters, no row rejected. */
+function initialState(input: GlobalFitInput, hasSn: boolean): FitState {
   const { analysis } = input;
-  const hasSn = input.calibrators.length + input.hubbleFlow.length > 0;
-  const free: [boolean, boolean] = [hasSn && analysis.sn_alpha === null, hasSn && analysis.sn_beta === null];
-  let state: FitState = {
+  return {
     alpha: analysis.sn_alpha ?? TYPICAL_ALPHA,
     beta: analysis.sn_beta ?? TYPICAL_BETA,
     scatterCepheid: input.cepheids.length ? START_SCATTER.cepheid : 0,
@@ -413,9 +408,141 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
         }
       : undefined,
   };
+}
+
+/**
+ * The Cepheid mixture's expectation step at the current residuals (cepheidMixture.ts): new
+ * memberships and expected blend light, the blend fraction, and the largest change of either.
+ */
+function blendStep(
+  prep: PreparedModel,
+  state: FitState,
+  scatterCepheid: number,
+  q: ArrayLike<number>,
+  blendFraction: number,
+): { cepheidBlend: FitState['cepheidBlend']; blendFraction: number; dMembership: number } {
+  let cepheidBlend = state.cepheidBlend;
+  let dMembership = 0;
+  if (!cepheidBlend) return { cepheidBlend, blendFraction, dMembership };
+  const cr = cepheidResiduals(prep, { ...state, scatterCepheid }, q);
+  const em = mixtureAtResiduals(cr.r, cr.v, blendFraction);
+  const old = cepheidBlend;
+  cepheidBlend = { membership: Float64Array.from(old.membership), shift: Float64Array.from(old.shift), shiftVariance: Float64Array.from(old.shiftVariance) };
+  cr.index.forEach((ci, k) => {
+    dMembership = Math.max(dMembership, Math.abs(em.membership[k]! - old.membership[ci]!), Math.abs(em.shift[k]! - old.shift[ci]!));
+    cepheidBlend!.membership[ci] = em.membership[k]!;
+    cepheidBlend!.shift[ci] = em.shift[k]!;
+    cepheidBlend!.shiftVariance[ci] = em.shiftVariance[k]!;
+  });
+  return { cepheidBlend, blendFraction: em.fraction, dMembership };
+}
+
+/** What stays fixed through the iteration of one fit. */
+interface FitSetup {
+  input: GlobalFitInput;
+  params: ParameterIndex;
+  prep: PreparedModel;
+  /** Whether alpha and beta are fitted. */
+  free: [boolean, boolean];
+  /** Degrees of freedom alpha and beta take from the supernova group. */
+  snExtraParams: number;
+}
+
+/**
+ * One iteration at fixed rejected rows: GLS solve, then what is not linear (field-star
+ * linearisation, scatters, Cepheid mixture, alpha and beta), and whether all of it has settled.
+ */
+function iterationStep(
+  setup: FitSetup,
+  state: FitState,
+  blendFraction: number,
+): { next: FitState; done: boolean; blendFraction: number; hessian: [[number, number], [number, number]] | null } {
+  const { input, params, prep, free, snExtraParams } = setup;
+  const model = buildModel(prep, state);
+  // the structure depends only on which rows are in the fit: once per clipping round
+  const st = glsStructure(model.problem);
+  const sol = solveOrExplain(model, st);
+  // 1. re-linearise the field stars at the fitted distances
+  const lin = Float64Array.from(input.fieldStars, (s, i) => {
+    const mu = sol.q[params.get(fieldStarParam(s.system, s.star))!];
+    const mu0 = state.linearisedMu[i];
+    return mu0 + Math.max(-LIMITS.maxMuStep, Math.min(LIMITS.maxMuStep, mu - mu0));
+  });
+  // 2. intrinsic scatters from the moment equation, per group
+  const stats = groupStats(model, sol, state, snExtraParams);
+  const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep);
+  const scatterSupernova = updatedScatter(state.scatterSupernova, stats.sn);
+  // 2b. Cepheid mixture: EM at the current residuals (cepheidMixture.ts)
+  const blend = blendStep(prep, state, scatterCepheid, sol.q, blendFraction);
+  let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova, cepheidBlend: blend.cepheidBlend };
+  // 3. alpha, beta
+  let hessian: [[number, number], [number, number]] | null = null;
+  if (free[0] || free[1]) {
+    const step = standardisationStep(prep, next, free, st);
+    hessian = step.hessian;
+    next = { ...next, alpha: step.alpha, beta: step.beta };
+  }
+  const dMu = lin.reduce((m, x, i) => Math.max(m, Math.abs(x - state.linearisedMu[i])), 0);
+  const done =
+    Math.abs(next.alpha - state.alpha) < LIMITS.tolAlpha &&
+    Math.abs(next.beta - state.beta) < LIMITS.tolBeta &&
+    Math.abs(next.scatterCepheid ** 2 - state.scatterCepheid ** 2) < LIMITS.tolScatterSq &&
+    Math.abs(next.scatterSupernova ** 2 - state.scatterSupernova ** 2) < LIMITS.tolScatterSq &&
+    blend.dMembership < LIMITS.tolMembership &&
+    dMu < LIMITS.tolMu;
+  return { next, done, blendFraction: blend.blendFraction, hessian };
+}
+
+/**
+ * Outlier rejection on the data rows (Cepheids and supernovae): every row beyond the threshold
+ * at once, most deviant first, never more than LIMITS.maxRejectedFraction of a table.
+ */
+function newlyRejectedRows(setup: FitSetup, state: FitState, clip: number): string[] {
+  const { input, prep } = setup;
+  const tableCounts = {
+    cepheids: input.cepheids.length,
+    sn_calibrators: input.calibrators.length,
+    sn_hubble_flow: input.hubbleFlow.length,
+  };
+  const model = buildModel(prep, state);
+  const sol = solveOrExplain(model);
+  const res = residualsOf(model, sol, state);
+  // Cepheids that may be blended: judged with their expected blend light taken out (the mixture's)
+  const beyond = (r: RowResidual) => Math.abs((r.residual + r.blendShift) / Math.sqrt(r.variance)) > clip;
+  const candidates = res
+    .filter((r) => groupOf(r.ref.table) && beyond(r))
+    .sort((a, b) => Math.abs(b.standardised) - Math.abs(a.standardised) || a.ref.line - b.ref.line);
+  const newlyRejected: string[] = [];
+  const count: Record<string, number> = {};
+  for (const key of state.rejected) {
+    const t = key.slice(0, key.indexOf(':'));
+    count[t] = (count[t] ?? 0) + 1;
+  }
+  for (const c of candidates) {
+    const t = c.ref.table as keyof typeof tableCounts;
+    if ((count[t] ?? 0) + 1 > LIMITS.maxRejectedFraction * tableCounts[t]) continue;
+    count[t] = (count[t] ?? 0) + 1;
+    newlyRejected.push(rowKey(c.ref.table, c.ref.id));
+  }
+  return newlyRejected;
+}
+
+/** Where the iteration ended: the state, the rows rejected in order, and how it got there. */
+interface IterationOutcome {
+  state: FitState;
+  blendFraction: number;
+  rejectedOrder: string[];
+  converged: boolean;
+  iterations: number;
+  /** Hessian of the profile chi-square in (alpha, beta) at the last step (identity when both are fixed). */
+  lastHessian: [[number, number], [number, number]];
+}
+
+/** Iterate to convergence, reject outliers, and again, until no row is left to reject. */
+function iterateWithClipping(setup: FitSetup, start: FitState): IterationOutcome {
+  const clipSigma = setup.input.analysis.clip_sigma;
+  let state = start;
   let blendFraction: number = MIXTURE.startFraction;
-  // alpha and beta are fitted from the supernova rows: they take degrees of freedom from that group
-  const snExtraParams = (free[0] ? 1 : 0) + (free[1] ? 1 : 0);
   const rejectedOrder: string[] = [];
   let converged = false;
   let iterations = 0;
@@ -423,95 +550,114 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     [1, 0],
     [0, 1],
   ];
-
-  const tableCounts = {
-    cepheids: input.cepheids.length,
-    sn_calibrators: input.calibrators.length,
-    sn_hubble_flow: input.hubbleFlow.length,
-  };
-
   for (let round = 0; round <= LIMITS.maxClipRounds; round++) {
     converged = false;
     for (let it = 0; it < LIMITS.maxInner; it++) {
       iterations++;
-      const model = buildModel(prep, state);
-      // the structure depends only on which rows are in the fit: once per clipping round
-      const st = glsStructure(model.problem);
-      const sol = solveOrExplain(model, st);
-      // 1. re-linearise the field stars at the fitted distances
-      const lin = Float64Array.from(input.fieldStars, (s, i) => {
-        const mu = sol.q[params.get(fieldStarParam(s.system, s.star))!];
-        const mu0 = state.linearisedMu[i];
-        return mu0 + Math.max(-LIMITS.maxMuStep, Math.min(LIMITS.maxMuStep, mu - mu0));
-      });
-      // 2. intrinsic scatters from the moment equation, per group
-      const stats = groupStats(model, sol, state, snExtraParams);
-      const scatterCepheid = updatedScatter(state.scatterCepheid, stats.cep);
-      const scatterSupernova = updatedScatter(state.scatterSupernova, stats.sn);
-      // 2b. Cepheid mixture: EM at the current residuals (cepheidMixture.ts)
-      let cepheidBlend = state.cepheidBlend;
-      let dMembership = 0;
-      if (cepheidBlend) {
-        const cr = cepheidResiduals(prep, { ...state, scatterCepheid }, sol.q);
-        const em = mixtureAtResiduals(cr.r, cr.v, blendFraction);
-        const old = cepheidBlend;
-        cepheidBlend = { membership: Float64Array.from(old.membership), shift: Float64Array.from(old.shift), shiftVariance: Float64Array.from(old.shiftVariance) };
-        cr.index.forEach((ci, k) => {
-          dMembership = Math.max(dMembership, Math.abs(em.membership[k]! - old.membership[ci]!), Math.abs(em.shift[k]! - old.shift[ci]!));
-          cepheidBlend!.membership[ci] = em.membership[k]!;
-          cepheidBlend!.shift[ci] = em.shift[k]!;
-          cepheidBlend!.shiftVariance[ci] = em.shiftVariance[k]!;
-        });
-        blendFraction = em.fraction;
-      }
-      let next: FitState = { ...state, linearisedMu: lin, scatterCepheid, scatterSupernova, cepheidBlend };
-      // 3. alpha, beta
-      if (free[0] || free[1]) {
-        const step = standardisationStep(prep, next, free, st);
-        lastHessian = step.hessian;
-        next = { ...next, alpha: step.alpha, beta: step.beta };
-      }
-      const dMu = lin.reduce((m, x, i) => Math.max(m, Math.abs(x - state.linearisedMu[i])), 0);
-      const done =
-        Math.abs(next.alpha - state.alpha) < LIMITS.tolAlpha &&
-        Math.abs(next.beta - state.beta) < LIMITS.tolBeta &&
-        Math.abs(next.scatterCepheid ** 2 - state.scatterCepheid ** 2) < LIMITS.tolScatterSq &&
-        Math.abs(next.scatterSupernova ** 2 - state.scatterSupernova ** 2) < LIMITS.tolScatterSq &&
-        dMembership < LIMITS.tolMembership &&
-        dMu < LIMITS.tolMu;
-      state = next;
-      if (done) {
+      const step = iterationStep(setup, state, blendFraction);
+      blendFraction = step.blendFraction;
+      if (step.hessian) lastHessian = step.hessian;
+      state = step.next;
+      if (step.done) {
         converged = true;
         break;
       }
     }
-    if (analysis.clip_sigma === null) break;
-    // outlier rejection on the data rows (Cepheids and supernovae), all beyond the threshold at once
-    const model = buildModel(prep, state);
-    const sol = solveOrExplain(model);
-    const res = residualsOf(model, sol, state);
-    const clip = analysis.clip_sigma;
-    // Cepheids that may be blended: judged with their expected blend light taken out (the mixture's)
-    const beyond = (r: RowResidual) => Math.abs((r.residual + r.blendShift) / Math.sqrt(r.variance)) > clip;
-    const candidates = res
-      .filter((r) => groupOf(r.ref.table) && beyond(r))
-      .sort((a, b) => Math.abs(b.standardised) - Math.abs(a.standardised) || a.ref.line - b.ref.line);
-    const newlyRejected: string[] = [];
-    const count: Record<string, number> = {};
-    for (const key of state.rejected) {
-      const t = key.slice(0, key.indexOf(':'));
-      count[t] = (count[t] ?? 0) + 1;
-    }
-    for (const c of candidates) {
-      const t = c.ref.table as keyof typeof tableCounts;
-      if ((count[t] ?? 0) + 1 > LIMITS.maxRejectedFraction * tableCounts[t]) continue;
-      count[t] = (count[t] ?? 0) + 1;
-      newlyRejected.push(rowKey(c.ref.table, c.ref.id));
-    }
+    if (clipSigma === null) break;
+    const newlyRejected = newlyRejectedRows(setup, state, clipSigma);
     if (newlyRejected.length === 0) break;
     rejectedOrder.push(...newlyRejected);
     state = { ...state, rejected: new Set([...state.rejected, ...newlyRejected]) };
   }
+  return { state, blendFraction, rejectedOrder, converged, iterations, lastHessian };
+}
+
+/** Cov(q) at fixed alpha, beta plus their part propagated through d q / d theta: J^T Cov(theta) J. */
+function withStandardisationCovariance(covGls: ArrayLike<number>, p: number, jacobian: number[][], covTheta: number[][]): Float64Array {
+  const cov = Float64Array.from(covGls);
+  for (let i = 0; i < p; i++) {
+    for (let j = 0; j < p; j++) {
+      let s = 0;
+      for (let a = 0; a < jacobian.length; a++) for (let b = 0; b < jacobian.length; b++) {
+        s += jacobian[a][i] * covTheta[a][b] * jacobian[b][j];
+      }
+      cov[i * p + j] += s;
+    }
+  }
+  return cov;
+}
+
+/**
+ * The scatters' standard errors and g -> the variance their uncertainty adds to g^T q.
+ * The scatters' own uncertainty moves q through the weights (first order: d q / d s times
+ * err(s)). It is not added to the covariance: at the fitted weights q is stationary to first
+ * order in them, and the term is 0.005-0.014 % of the variance of log10 H0 on the demo
+ * releases; scatterVariance(g) gives it so that a test can hold that claim.
+ */
+function scatterUncertainty(
+  setup: FitSetup,
+  state: FitState,
+  model: BuiltModel,
+  sol: GlsSolution,
+): Pick<GlobalFitResult, 'scatterErr' | 'scatterVariance'> {
+  const p = setup.params.size;
+  const finalStats = groupStats(model, sol, state, setup.snExtraParams);
+  const scatterErr = {
+    cepheids: scatterStandardError(state.scatterCepheid, finalStats.cep),
+    supernovae: scatterStandardError(state.scatterSupernova, finalStats.sn),
+  };
+  // computed here (four solves) so that the result keeps no reference to the prepared model
+  const scatterTerms = (
+    [
+      ['scatterCepheid', scatterErr.cepheids],
+      ['scatterSupernova', scatterErr.supernovae],
+    ] as const
+  )
+    .filter(([, e]) => e > 0)
+    .map(([which, e]) => ({ err: e, jacobian: scatterJacobian(setup.prep, state, which, e) }));
+  const scatterVariance = (g: ArrayLike<number>): number => {
+    let sc = 0;
+    for (const t of scatterTerms) {
+      let gj = 0;
+      for (let i = 0; i < p; i++) gj += g[i] * t.jacobian[i];
+      sc += (gj * t.err) ** 2;
+    }
+    return sc;
+  };
+  return { scatterErr, scatterVariance };
+}
+
+/** g -> variance of g^T q by source, with the alpha/beta part as 'sn_standardisation'. */
+function budgetFunction(model: BuiltModel, sol: GlsSolution, p: number, names: readonly string[], jacobian: number[][], covTheta: number[][]) {
+  return (g: ArrayLike<number>) => {
+    const parts = varianceBySource(model.problem, sol.factor, g);
+    let s = 0;
+    for (let a = 0; a < names.length; a++) {
+      let ga = 0;
+      for (let i = 0; i < p; i++) ga += g[i] * jacobian[a][i];
+      for (let b = 0; b < names.length; b++) {
+        let gb = 0;
+        for (let i = 0; i < p; i++) gb += g[i] * jacobian[b][i];
+        s += ga * covTheta[a][b] * gb;
+      }
+    }
+    if (names.length) parts.set('sn_standardisation', s);
+    return parts;
+  };
+}
+
+export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {}): GlobalFitResult {
+  const params = new ParameterIndex(input);
+  const prepared = prepareModel(input, params);
+  const prep = options.eliminate === false ? { ...prepared, globals: params.names.map((_, i) => i) } : prepared;
+  const p = params.size;
+  const { analysis } = input;
+  const hasSn = input.calibrators.length + input.hubbleFlow.length > 0;
+  const free: [boolean, boolean] = [hasSn && analysis.sn_alpha === null, hasSn && analysis.sn_beta === null];
+  // alpha and beta are fitted from the supernova rows: they take degrees of freedom from that group
+  const snExtraParams = (free[0] ? 1 : 0) + (free[1] ? 1 : 0);
+  const setup: FitSetup = { input, params, prep, free, snExtraParams };
+  const { state, blendFraction, rejectedOrder, converged, iterations, lastHessian } = iterateWithClipping(setup, initialState(input, hasSn));
 
   // final solution and covariances
   const model = buildModel(prep, state);
@@ -525,43 +671,8 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
   const covTheta = names.length
     ? sandwichCovariance(input, params, prep, state, model, sol, sol.factor.blocks(), free, lastHessian)
     : [];
-  const cov = Float64Array.from(covGls);
-  for (let i = 0; i < p; i++) {
-    for (let j = 0; j < p; j++) {
-      let s = 0;
-      for (let a = 0; a < names.length; a++) for (let b = 0; b < names.length; b++) {
-        s += jacobian[a][i] * covTheta[a][b] * jacobian[b][j];
-      }
-      cov[i * p + j] += s;
-    }
-  }
-  // The scatters' own uncertainty moves q through the weights (first order: d q / d s times
-  // err(s)). It is not added to the covariance: at the fitted weights q is stationary to first
-  // order in them, and the term is 0.005-0.014 % of the variance of log10 H0 on the demo
-  // releases; scatterVariance(g) gives it so that a test can hold that claim.
-  const finalStats = groupStats(model, sol, state, snExtraParams);
-  const scatterErr = {
-    cepheids: scatterStandardError(state.scatterCepheid, finalStats.cep),
-    supernovae: scatterStandardError(state.scatterSupernova, finalStats.sn),
-  };
-  // computed here (four solves) so that the result keeps no reference to the prepared model
-  const scatterTerms = (
-    [
-      ['scatterCepheid', scatterErr.cepheids],
-      ['scatterSupernova', scatterErr.supernovae],
-    ] as const
-  )
-    .filter(([, e]) => e > 0)
-    .map(([which, e]) => ({ err: e, jacobian: scatterJacobian(prep, state, which, e) }));
-  const scatterVariance = (g: ArrayLike<number>): number => {
-    let sc = 0;
-    for (const t of scatterTerms) {
-      let gj = 0;
-      for (let i = 0; i < p; i++) gj += g[i] * t.jacobian[i];
-      sc += (gj * t.err) ** 2;
-    }
-    return sc;
-  };
+  const cov = withStandardisationCovariance(covGls, p, jacobian, covTheta);
+  const { scatterErr, scatterVariance } = scatterUncertainty(setup, state, model, sol);
   const thetaErr = (name: 'alpha' | 'beta') => {
     const k = names.indexOf(name);
     return k < 0 ? 0 : Math.sqrt(covTheta[k][k]);
@@ -595,21 +706,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     downweighted,
     fieldStarMu: state.linearisedMu,
     model,
-    budget(g: ArrayLike<number>) {
-      const parts = varianceBySource(model.problem, sol.factor, g);
-      let s = 0;
-      for (let a = 0; a < names.length; a++) {
-        let ga = 0;
-        for (let i = 0; i < p; i++) ga += g[i] * jacobian[a][i];
-        for (let b = 0; b < names.length; b++) {
-          let gb = 0;
-          for (let i = 0; i < p; i++) gb += g[i] * jacobian[b][i];
-          s += ga * covTheta[a][b] * gb;
-        }
-      }
-      if (names.length) parts.set('sn_standardisation', s);
-      return parts;
-    },
+    budget: budgetFunction(model, sol, p, names, jacobian, covTheta),
     scatterVariance,
   };
 }
@@ -640,46 +737,27 @@ function standardisationJacobian(prep: PreparedModel, state: FitState, name: 'al
   return Array.from(qp, (x, i) => (x - qm[i]) / (2 * h));
 }
 
-/**
- * Sandwich covariance of (alpha, beta): A^-1 B A^-1 with A = half the Hessian of the profile
- * chi-square and B = sum over rows of the outer products of each row's efficient score
- * (its score in theta minus the part explained by the linear parameters),
- *   s_i = psi_theta,i - A_theta,q F^-1 psi_q,i,
- * with residuals inflated by 1/sqrt(1 - h_i) (leverage correction). Without the row-wise B the
- * curvature alone understates the errors, because x1 and c are measured with noise.
- * The supernova scatter is estimated with alpha and beta: its equation is a third estimating
- * function (row terms r^2/v - (1 - h)), and A gains its cross derivatives, so that beta's error
- * includes how beta moves with the fitted scatter (measured: beta's pulls had an SD of 1.06
- * over 400 simulated releases without this, 1.00 with it; content/methods/global-fit.md).
- */
-function sandwichCovariance(
+/** One row of a diagonal block as the sandwich sees it: residual, variance, leverage, d r / d theta, d v / d theta. */
+interface SandwichRow {
+  sn: boolean;
+  x: { idx: number[]; coef: number[] };
+  r: number;
+  v: number;
+  h: number;
+  dr: number[];
+  dv: number[];
+}
+
+/** The per-row quantities of the diagonal blocks (derivatives in the free parameters `which` only). */
+function sandwichRows(
   input: GlobalFitInput,
-  params: ParameterIndex,
-  prep: PreparedModel,
   state: FitState,
   model: BuiltModel,
   sol: GlsSolution,
   fInv: CovarianceAccess,
-  free: [boolean, boolean],
-  hessian: [[number, number], [number, number]],
-): number[][] {
-  const p = params.size;
-  const which = ([0, 1] as const).filter((k) => free[k]);
-  const m = which.length;
-  // the supernova scatter is estimated jointly with alpha and beta (its equation is the third
-  // estimating function): with it zero there is nothing to couple
-  const coupled = state.scatterSupernova > 0;
-  // collect per-row quantities of the diagonal blocks
-  interface RowTerm {
-    sn: boolean;
-    x: { idx: number[]; coef: number[] };
-    r: number;
-    v: number;
-    h: number;
-    dr: number[];
-    dv: number[];
-  }
-  const rows: RowTerm[] = [];
+  which: readonly (0 | 1)[],
+): SandwichRow[] {
+  const rows: SandwichRow[] = [];
   model.problem.blocks.forEach((block, b) => {
     if (!block.diagonal) return; // prior rows carry no alpha/beta; their q-scores are small and omitted
     const r = blockResiduals(block, sol.q);
@@ -697,6 +775,20 @@ function sandwichCovariance(
       rows.push({ sn, x: block.rows[i], r: r[i], v: v[i], h: h[i], dr: which.map((k) => dr[k]), dv: which.map((k) => dv[k]) });
     });
   });
+  return rows;
+}
+
+/**
+ * The meat of the sandwich, B = sum of the outer products of the rows' efficient scores (the
+ * scatter equation's row term last when coupled), and sum (1 - h)/v of the supernova rows.
+ */
+function scoreOuterProducts(
+  rows: readonly SandwichRow[],
+  sol: GlsSolution,
+  p: number,
+  m: number,
+  coupled: boolean,
+): { bMat: number[][]; sumOneMinusHOverV: number } {
   // A_theta,q = sum_i d psi_theta,i / d q
   const aTq = Array.from({ length: m }, () => new Float64Array(p));
   for (const t of rows) {
@@ -729,18 +821,27 @@ function sandwichCovariance(
     }
     for (let a = 0; a < mm; a++) for (let b = 0; b < mm; b++) bMat[a][b] += s[a] * s[b];
   }
-  // A = half the profile Hessian, restricted to the free parameters
-  const aMat = which.map((i) => which.map((j) => hessian[i][j] / 2));
-  if (!coupled) {
-    const aInv = invertSmall(aMat);
-    const tmp = aInv.map((row) => bMat[0].map((_, j) => row.reduce((s, x, k) => s + x * bMat[k][j], 0)));
-    return tmp.map((row) => aInv[0].map((_, j) => row.reduce((s, x, k) => s + x * aInv[k][j], 0)));
-  }
-  invertSmall(aMat); // refuses, with its message, when alpha and beta are not determined
-  // Coupling with the supernova scatter s2 = sigma_int_sn^2 (the derivatives by central differences):
-  //   A_theta,s2 = d psi_theta / d s2 = (1/2) d^2 chi2 / d theta d s2,
-  //   A_s2,theta = d psi_s / d theta = d chi2_sn / d theta at the profile q,   A_s2,s2 = -sum (1 - h)/v.
-  // Without them the error of beta came out 15-20 % small (its estimate moves with the fitted scatter).
+  return { bMat, sumOneMinusHOverV };
+}
+
+/**
+ * The bread A of the sandwich with the supernova scatter s2 = sigma_int_sn^2 as a third
+ * estimating function (the derivatives by central differences):
+ *   A_theta,s2 = d psi_theta / d s2 = (1/2) d^2 chi2 / d theta d s2,
+ *   A_s2,theta = d psi_s / d theta = d chi2_sn / d theta at the profile q,   A_s2,s2 = -sum (1 - h)/v.
+ * Without them the error of beta came out 15-20 % small (its estimate moves with the fitted scatter).
+ */
+function breadWithScatter(
+  prep: PreparedModel,
+  state: FitState,
+  model: BuiltModel,
+  free: [boolean, boolean],
+  which: readonly (0 | 1)[],
+  aMat: number[][],
+  sumOneMinusHOverV: number,
+): number[][] {
+  const m = which.length;
+  const mm = m + 1;
   const st = glsStructure(model.problem);
   const s2 = state.scatterSupernova ** 2;
   const hS2 = 0.05 * s2;
@@ -761,7 +862,49 @@ function sandwichCovariance(
         : (snChi2(state.alpha, state.beta + h) - snChi2(state.alpha, state.beta - h)) / (2 * h);
   });
   full[m][m] = -sumOneMinusHOverV;
-  const aInv = invertGeneral(full);
+  return full;
+}
+
+/**
+ * Sandwich covariance of (alpha, beta): A^-1 B A^-1 with A = half the Hessian of the profile
+ * chi-square and B = sum over rows of the outer products of each row's efficient score
+ * (its score in theta minus the part explained by the linear parameters),
+ *   s_i = psi_theta,i - A_theta,q F^-1 psi_q,i,
+ * with residuals inflated by 1/sqrt(1 - h_i) (leverage correction). Without the row-wise B the
+ * curvature alone understates the errors, because x1 and c are measured with noise.
+ * The supernova scatter is estimated with alpha and beta: its equation is a third estimating
+ * function (row terms r^2/v - (1 - h)), and A gains its cross derivatives, so that beta's error
+ * includes how beta moves with the fitted scatter (measured: beta's pulls had an SD of 1.06
+ * over 400 simulated releases without this, 1.00 with it; content/methods/global-fit.md).
+ */
+function sandwichCovariance(
+  input: GlobalFitInput,
+  params: ParameterIndex,
+  prep: PreparedModel,
+  state: FitState,
+  model: BuiltModel,
+  sol: GlsSolution,
+  fInv: CovarianceAccess,
+  free: [boolean, boolean],
+  hessian: [[number, number], [number, number]],
+): number[][] {
+  const p = params.size;
+  const which = ([0, 1] as const).filter((k) => free[k]);
+  const m = which.length;
+  // the supernova scatter is estimated jointly with alpha and beta (its equation is the third
+  // estimating function): with it zero there is nothing to couple
+  const coupled = state.scatterSupernova > 0;
+  const rows = sandwichRows(input, state, model, sol, fInv, which);
+  const { bMat, sumOneMinusHOverV } = scoreOuterProducts(rows, sol, p, m, coupled);
+  // A = half the profile Hessian, restricted to the free parameters
+  const aMat = which.map((i) => which.map((j) => hessian[i][j] / 2));
+  if (!coupled) {
+    const aInv = invertSmall(aMat);
+    const tmp = aInv.map((row) => bMat[0].map((_, j) => row.reduce((s, x, k) => s + x * bMat[k][j], 0)));
+    return tmp.map((row) => aInv[0].map((_, j) => row.reduce((s, x, k) => s + x * aInv[k][j], 0)));
+  }
+  invertSmall(aMat); // refuses, with its message, when alpha and beta are not determined
+  const aInv = invertGeneral(breadWithScatter(prep, state, model, free, which, aMat, sumOneMinusHOverV));
   const tmp = aInv.map((row) => bMat[0].map((_, j) => row.reduce((s, x, k) => s + x * bMat[k][j], 0)));
   const cov = tmp.map((row) => aInv.map((col) => row.reduce((s, x, k) => s + x * col[k], 0)));
   return cov.slice(0, m).map((row) => row.slice(0, m));

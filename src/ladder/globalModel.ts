@@ -281,76 +281,91 @@ function keptRows(prep: PreparedModel, rejected: ReadonlySet<string>): KeptRows 
 /** Which rows to build: all, only the supernova rows (they depend on alpha, beta), or the rest. */
 export type ModelPart = 'all' | 'supernovae' | 'static';
 
-/** Build the GLS problem for the given state. Pure: the inputs are not modified. */
-export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart = 'all'): BuiltModel {
-  const { input, params, zeta } = prep;
-  const blocks: RowBlock[] = [];
-  const refs: RowRef[][] = [];
-  const withStatic = part !== 'supernovae';
-  const withSupernovae = part !== 'static';
+/** One block of the GLS problem with the rows it stands for. */
+interface ModelBlock {
+  block: RowBlock;
+  refs: RowRef[];
+}
 
-  // distance priors of anchors and main-sequence targets (one dense block)
-  if (withStatic && input.priors.systems.length > 0) {
-    blocks.push({
+/** Distance priors of anchors and main-sequence targets (one dense block). */
+function priorBlock(prep: PreparedModel): ModelBlock | null {
+  const { input } = prep;
+  if (input.priors.systems.length === 0) return null;
+  return {
+    block: {
       rows: prep.priorRows,
       y: input.priors.mu,
       components: input.priors.parts.map((p) => ({ source: p.source, dense: p.cov })),
       diagonal: false,
-    });
-    refs.push(input.priors.systems.map((s, i) => ({ table: 'priors', id: s, system: s, line: 0, index: i })));
-  }
+    },
+    refs: input.priors.systems.map((s, i) => ({ table: 'priors', id: s, system: s, line: 0, index: i })),
+  };
+}
 
-  if (withStatic && zeta !== undefined) {
-    blocks.push({
+/** The parallax zero point's prior, zeta ~ N(0, err^2). */
+function zeroPointBlock(prep: PreparedModel): ModelBlock | null {
+  const { input, zeta } = prep;
+  if (zeta === undefined) return null;
+  return {
+    block: {
       rows: [{ idx: [zeta], coef: [1] }],
       y: [0],
       components: [{ source: 'parallax_zero_point', diagonal: [input.zeroPointErrMas ** 2] }],
       diagonal: true,
-    });
-    refs.push([{ table: 'zero_point', id: 'zero_point', system: null, line: 0, index: 0 }]);
-  }
+    },
+    refs: [{ table: 'zero_point', id: 'zero_point', system: null, line: 0, index: 0 }],
+  };
+}
 
-  if (withStatic && input.fieldStars.length > 0) {
-    const rows: SparseRow[] = [];
-    const y: number[] = [];
-    const v: number[] = [];
-    const r: RowRef[] = [];
-    input.fieldStars.forEach((s, i) => {
-      const mu0 = state.linearisedMu[i];
-      const slope = parallaxSlope(mu0);
-      const idx = [prep.fieldParam[i]];
-      const coef = [slope];
-      if (zeta !== undefined) {
-        idx.push(zeta);
-        coef.push(1);
-      }
-      rows.push({ idx, coef });
-      y.push(s.parallaxCorrMas - parallaxMasFromModulus(mu0) + slope * mu0);
-      v.push(s.parallaxErrMas ** 2);
-      r.push({ table: 'field_parallax', id: s.star, system: s.system, line: s.line, index: i });
-    });
-    blocks.push({ rows, y, components: [{ source: 'anchors', diagonal: v }], diagonal: true });
-    refs.push(r);
-  }
+/** Field-star parallaxes, linear in mu about each star's current linearisation point. */
+function fieldParallaxBlock(prep: PreparedModel, state: FitState): ModelBlock | null {
+  const { input, zeta } = prep;
+  if (input.fieldStars.length === 0) return null;
+  const rows: SparseRow[] = [];
+  const y: number[] = [];
+  const v: number[] = [];
+  const r: RowRef[] = [];
+  input.fieldStars.forEach((s, i) => {
+    const mu0 = state.linearisedMu[i];
+    const slope = parallaxSlope(mu0);
+    const idx = [prep.fieldParam[i]];
+    const coef = [slope];
+    if (zeta !== undefined) {
+      idx.push(zeta);
+      coef.push(1);
+    }
+    rows.push({ idx, coef });
+    y.push(s.parallaxCorrMas - parallaxMasFromModulus(mu0) + slope * mu0);
+    v.push(s.parallaxErrMas ** 2);
+    r.push({ table: 'field_parallax', id: s.star, system: s.system, line: s.line, index: i });
+  });
+  return { block: { rows, y, components: [{ source: 'anchors', diagonal: v }], diagonal: true }, refs: r };
+}
 
-  const kept = keptRows(prep, state.rejected);
+/** The Cepheids' Wesenheit magnitudes not rejected, with the intrinsic scatter in their variances. */
+function cepheidBlock(state: FitState, kept: KeptRows): ModelBlock | null {
   const s2c = state.scatterCepheid ** 2;
   const cep = kept.cepheid;
-  if (withStatic && cep.length > 0) {
-    blocks.push({
+  if (cep.length === 0) return null;
+  return {
+    block: {
       rows: kept.cepheidRows,
       // W with the expected blend light taken out (W + E[z u]: a blend is brighter by u)
       y: state.cepheidBlend ? cep.map((c) => c.w + state.cepheidBlend!.shift[c.index]!) : kept.cepheidW,
       components: [{ source: 'cepheids', diagonal: cep.map((c) => c.wErr2 + s2c) }],
       diagonal: true,
-    });
-    refs.push(kept.cepheidRefs);
-  }
+    },
+    refs: kept.cepheidRefs,
+  };
+}
 
+/** The calibrators' standardised magnitudes at the current alpha, beta and scatter. */
+function calibratorBlock(input: GlobalFitInput, state: FitState, kept: KeptRows): ModelBlock | null {
   const s2s = state.scatterSupernova ** 2;
   const cal = kept.calibrator;
-  if (withSupernovae && cal.length > 0) {
-    blocks.push({
+  if (cal.length === 0) return null;
+  return {
+    block: {
       rows: cal.map((c) => c.row),
       y: cal.map((c) => correctedMagnitude(input.calibrators[c.index], state.alpha, state.beta)),
       components: [
@@ -360,18 +375,21 @@ export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart
         },
       ],
       diagonal: true,
-    });
-    refs.push(
-      cal.map((c) => {
-        const sn = input.calibrators[c.index];
-        return { table: 'sn_calibrators', id: sn.sn, system: sn.system, line: sn.line, index: c.index };
-      }),
-    );
-  }
+    },
+    refs: cal.map((c) => {
+      const sn = input.calibrators[c.index];
+      return { table: 'sn_calibrators', id: sn.sn, system: sn.system, line: sn.line, index: c.index };
+    }),
+  };
+}
 
+/** The Hubble-flow supernovae: standardised magnitude minus 5 log10(cz f(z)), with the redshift's variance. */
+function hubbleFlowBlock(input: GlobalFitInput, state: FitState, kept: KeptRows): ModelBlock | null {
+  const s2s = state.scatterSupernova ** 2;
   const hub = kept.hubble;
-  if (withSupernovae && hub.length > 0) {
-    blocks.push({
+  if (hub.length === 0) return null;
+  return {
+    block: {
       rows: kept.hubbleRows,
       y: hub.map((c) => {
         const h = input.hubbleFlow[c.index];
@@ -387,9 +405,27 @@ export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart
         },
       ],
       diagonal: true,
-    });
-    refs.push(kept.hubbleRefs);
-  }
+    },
+    refs: kept.hubbleRefs,
+  };
+}
 
+/** Build the GLS problem for the given state. Pure: the inputs are not modified. */
+export function buildModel(prep: PreparedModel, state: FitState, part: ModelPart = 'all'): BuiltModel {
+  const { input, params } = prep;
+  const withStatic = part !== 'supernovae';
+  const withSupernovae = part !== 'static';
+  const kept = keptRows(prep, state.rejected);
+  // the blocks in their fixed order: priors, zero point, field stars, Cepheids, calibrators, Hubble flow
+  const parts = [
+    withStatic ? priorBlock(prep) : null,
+    withStatic ? zeroPointBlock(prep) : null,
+    withStatic ? fieldParallaxBlock(prep, state) : null,
+    withStatic ? cepheidBlock(state, kept) : null,
+    withSupernovae ? calibratorBlock(input, state, kept) : null,
+    withSupernovae ? hubbleFlowBlock(input, state, kept) : null,
+  ].filter((b): b is ModelBlock => b !== null);
+  const blocks: RowBlock[] = parts.map((b) => b.block);
+  const refs: RowRef[][] = parts.map((b) => b.refs);
   return { problem: { nParams: params.size, paramNames: params.names, blocks, globals: prep.globals }, refs };
 }

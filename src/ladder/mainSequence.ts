@@ -17,8 +17,6 @@ import { fitTarget, type ReddeningPrior, type TargetFit } from './mainSequenceTa
 import { mainSequenceChecks, type CheckInputs } from './mainSequenceChecks.ts';
 import type { ParallaxRungResult } from './parallax.ts';
 
-export { buildDistancePriors } from './mainSequencePriors.ts';
-
 /** Locus stars needed per polynomial coefficient (the mixture also fits a fraction and a scatter). */
 export const MIN_LOCUS_STARS_PER_COEFF = 5;
 /** Stars needed in a target's colour range: two parameters and a binary fraction, with margin. */
@@ -133,34 +131,35 @@ export function mainSequenceProblem(release: Release, analysis: AnalysisChoices,
   return null;
 }
 
-export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices, parallax: ParallaxRungResult): MainSequenceRungResult {
-  const { r_v: rV, ms_feh_slope: s, ms_poly_degree: degree } = analysis;
-  const range: [number, number] = [analysis.ms_color_range[0], analysis.ms_color_range[1]];
-  if (!Number.isInteger(degree) || degree < 1) fail('ms_poly_degree', degree, 'an integer >= 1');
-  if (!(range[0] < range[1])) fail('ms_color_range', range, '[low, high] with low < high');
-  const pivot = 0.5 * (range[0] + range[1]);
+/** An anchor's main-sequence star: intrinsic colour and absolute magnitude at [Fe/H] = 0. */
+interface AnchorStar {
+  row: MainSequenceRow;
+  c0: number;
+  y: number;
+}
 
+/**
+ * The anchors' stars on the absolute scale (their parallax distance, reddening and metallicity
+ * taken out), those in the colour range as the locus' input, and the anchors' E(B-V) and [Fe/H]
+ * errors (which move the locus). Records in `inputs` the anchors without E(B-V) or [Fe/H].
+ */
+function anchorStars(
+  release: Release,
+  analysis: AnalysisChoices,
+  parallax: ParallaxRungResult,
+  layout: MainSequenceLayout,
+  inputs: CheckInputs,
+): { anchorRows: AnchorStar[]; locusStars: (LocusStarInput & { row: MainSequenceRow })[]; ebvErrA: number[]; fehErrA: number[] } {
+  const { r_v: rV, ms_feh_slope: s } = analysis;
+  const range = analysis.ms_color_range;
   const anchorSystems = parallax.anchors.map((a) => a.system);
-  const { rowsBySystem, anchorIdx, targets, ignored } = mainSequenceLayout(release, anchorSystems);
   const sysById = new Map(release.systems.map((x) => [x.system, x]));
-  const inputs: CheckInputs = { ignored, anchorsNoEbv: [], noFeh: [], targets: [], locus: null, rV };
-
-  const empty: MainSequenceRungResult = {
-    locus: null, targets: [], stars: [], checks: [], anchorSystems,
-    targetAnchorJacobian: [], targetCovarianceMainSequence: [],
-  };
-  const problem = mainSequenceProblem(release, analysis, anchorSystems);
-  if (problem !== null) throw AnalysisError.of(problem);
-  if (anchorIdx.length === 0) return { ...empty, checks: mainSequenceChecks(inputs) };
-
-  // ---- locus on the anchors ----
   const nA = anchorSystems.length;
   const ebvErrA = new Array<number>(nA).fill(0);
   const fehErrA = new Array<number>(nA).fill(0);
-  const starResults = new Map<MainSequenceRow, MainSequenceStarResult>();
   const locusStars: (LocusStarInput & { row: MainSequenceRow })[] = [];
-  const anchorRows: { row: MainSequenceRow; c0: number; y: number }[] = [];
-  for (const a of anchorIdx) {
+  const anchorRows: AnchorStar[] = [];
+  for (const a of layout.anchorIdx) {
     const id = anchorSystems[a];
     const sys = sysById.get(id)!;
     if (sys.ebv === undefined) inputs.anchorsNoEbv.push(id);
@@ -168,7 +167,7 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
     const ebv = sys.ebv ?? 0;
     ebvErrA[a] = sys.ebv !== undefined ? (sys.ebvErr ?? 0) : 0;
     fehErrA[a] = sys.fehErr ?? 0;
-    for (const row of rowsBySystem.get(id)!) {
+    for (const row of layout.rowsBySystem.get(id)!) {
       const c0 = anchorColor0(row, sys);
       const y = row.mag - parallax.anchors[a].mu - rV * ebv + s * (sys.feh ?? 0);
       anchorRows.push({ row, c0, y });
@@ -177,9 +176,17 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
       }
     }
   }
-  let fit: ReturnType<typeof fitLocus>;
+  return { anchorRows, locusStars, ebvErrA, fehErrA };
+}
+
+/** The locus fit, or the data's limit said as such (photometry that cannot constrain it). */
+function fitLocusOrExplain(
+  locusStars: (LocusStarInput & { row: MainSequenceRow })[],
+  options: Parameters<typeof fitLocus>[1],
+  range: readonly number[],
+): ReturnType<typeof fitLocus> {
   try {
-    fit = fitLocus(locusStars, { degree, pivot, rV, fehSlope: s, nAnchors: nA });
+    return fitLocus(locusStars, options);
   } catch (e) {
     // Photometry that cannot constrain the locus (all stars at one colour, say) is the data's
     // limit, not a defect of the code: say so, in the words of the numerical kernel.
@@ -189,20 +196,26 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
       'add anchor photometry that spans the colour range, or lower ms_poly_degree',
     );
   }
-  const pBinaryByRow = new Map(locusStars.map((st, i) => [st.row, fit.pBinary[i]]));
-  for (const { row, c0, y } of anchorRows) {
-    starResults.set(row, {
-      star: row.star, system: row.system, line: row.line, color0: c0, abs_mag: y,
-      p_binary: pBinaryByRow.get(row) ?? 0, used: pBinaryByRow.has(row), role: 'anchor',
-    });
-  }
+}
+
+/** Covariances of the locus: of its coefficients, and of lambda = (coefficients, binary fraction, scatter). */
+interface LocusCovariances {
+  /** Coefficients, all sources (statistics, anchors' E and [Fe/H], anchors' moduli with the zero point). */
+  locusTotal: Matrix;
+  /** lambda, main-sequence sources only (the anchors' moduli enter the targets through G). */
+  lambdaMsOnly: Matrix;
+  /** lambda, all sources. */
+  lambdaTotal: Matrix;
+}
+
+function locusCovariances(fit: ReturnType<typeof fitLocus>, ebvErrA: number[], fehErrA: number[], anchorCovariance: Matrix): LocusCovariances {
   // Locus covariance parts: main-sequence-only (stat + anchors' E and feh) and anchors' moduli.
   const locusMsOnly = symmetrize(addMatrices(
     fit.covStat,
     sandwich(fit.dCoeffsDEbv, diag(ebvErrA.map((e) => e * e))),
     sandwich(fit.dCoeffsDFeh, diag(fehErrA.map((e) => e * e))),
   ));
-  const locusTotal = symmetrize(addMatrices(locusMsOnly, sandwich(fit.dCoeffsDMu, parallax.anchorCovariance)));
+  const locusTotal = symmetrize(addMatrices(locusMsOnly, sandwich(fit.dCoeffsDMu, anchorCovariance)));
   // The same in the space of everything the targets take from the locus, lambda = (coefficients,
   // binary fraction, intrinsic scatter): the fraction's statistical covariance with the coefficients
   // from the mixture information, the scatter's own error. The anchors' common errors move the
@@ -215,26 +228,40 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
     out[nC + 1][nC + 1] = fit.scatterErr ** 2;
     return out;
   };
-  const lambdaMsOnly = lambdaCov(locusMsOnly);
-  const lambdaTotal = lambdaCov(locusTotal);
-  const lambdaJacobian = (tf: TargetFit): Matrix =>
-    [0, 1].map((r) => [...tf.dThetaDCoeffs[r], tf.dThetaDFraction[r], tf.dThetaDScatter[r]]);
-  const locus: LocusResult = {
-    degree, coeffs: fit.coeffs, color_pivot: pivot, covariance: locusTotal, color_range: range,
-    scatter: fit.scatter, binary_fraction: fit.binaryFraction, n_stars: locusStars.length,
-  };
-  inputs.locus = { ...locus, converged: fit.converged, iterations: fit.iterations };
+  return { locusTotal, lambdaMsOnly: lambdaCov(locusMsOnly), lambdaTotal: lambdaCov(locusTotal) };
+}
 
-  // ---- targets ----
-  const fits: { sys: SystemRow; fit: TargetFit; feh: number; fehErr: number; prior: ReddeningPrior }[] = [];
-  for (const sys of targets) {
+/** d (mu, E) / d lambda of one target's fit. */
+function lambdaJacobian(tf: TargetFit): Matrix {
+  return [0, 1].map((r) => [...tf.dThetaDCoeffs[r], tf.dThetaDFraction[r], tf.dThetaDScatter[r]]);
+}
+
+interface TargetFitOf {
+  sys: SystemRow;
+  fit: TargetFit;
+  feh: number;
+  fehErr: number;
+  prior: ReddeningPrior;
+}
+
+/** Fit each target's stars on the locus (distance and reddening); its stars' results into `starResults`. */
+function fitTargets(
+  analysis: AnalysisChoices,
+  layout: MainSequenceLayout,
+  locus: LocusResult,
+  inputs: CheckInputs,
+  starResults: Map<MainSequenceRow, MainSequenceStarResult>,
+): TargetFitOf[] {
+  const { r_v: rV, ms_feh_slope: s } = analysis;
+  const fits: TargetFitOf[] = [];
+  for (const sys of layout.targets) {
     if (sys.feh === undefined) inputs.noFeh.push(sys.system);
     const prior = reddeningPrior(sys);
-    const rows = rowsBySystem.get(sys.system)!;
+    const rows = layout.rowsBySystem.get(sys.system)!;
     const feh = sys.feh ?? 0;
     let tf: TargetFit;
     try {
-      tf = fitTarget(rows, { coeffs: fit.coeffs, pivot, colorRange: range, scatter: fit.scatter, binaryFraction: fit.binaryFraction }, {
+      tf = fitTarget(rows, { coeffs: locus.coeffs, pivot: locus.color_pivot, colorRange: locus.color_range, scatter: locus.scatter, binaryFraction: locus.binary_fraction }, {
         rV, fehSlope: s, feh, prior, minStars: MIN_TARGET_STARS,
       });
     } catch (e) {
@@ -251,6 +278,61 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
       });
     });
   }
+  return fits;
+}
+
+/** A target's result: its (mu, E) with the total covariance (own fit, locus with all its sources, [Fe/H], floor). */
+function targetResult(f: TargetFitOf, fehSlope: number, lambdaTotal: Matrix): MainSequenceTargetResult {
+  // Total covariance of (mu, E): own fit + locus (statistics, anchors incl. zero point, anchor E and feh) + target feh.
+  const total = addMatrices(f.fit.covFit, sandwich(lambdaJacobian(f.fit), lambdaTotal), [[(fehSlope * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2, 0], [0, 0]]);
+  const muErr = Math.sqrt(total[0][0]);
+  const ebvErr = Math.sqrt(total[1][1]);
+  return {
+    system: f.sys.system, n_stars: f.fit.used.length, n_used: f.fit.nUsed, mu: f.fit.mu, mu_err: muErr,
+    ebv: f.fit.ebv, ebv_err: ebvErr, corr_mu_ebv: ebvErr > 0 ? total[0][1] / (muErr * ebvErr) : 0,
+    feh: f.feh, binary_fraction: f.fit.binaryFraction,
+  };
+}
+
+export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices, parallax: ParallaxRungResult): MainSequenceRungResult {
+  const { r_v: rV, ms_feh_slope: s, ms_poly_degree: degree } = analysis;
+  const range: [number, number] = [analysis.ms_color_range[0], analysis.ms_color_range[1]];
+  if (!Number.isInteger(degree) || degree < 1) fail('ms_poly_degree', degree, 'an integer >= 1');
+  if (!(range[0] < range[1])) fail('ms_color_range', range, '[low, high] with low < high');
+  const pivot = 0.5 * (range[0] + range[1]);
+
+  const anchorSystems = parallax.anchors.map((a) => a.system);
+  const layout = mainSequenceLayout(release, anchorSystems);
+  const inputs: CheckInputs = { ignored: layout.ignored, anchorsNoEbv: [], noFeh: [], targets: [], locus: null, rV };
+
+  const empty: MainSequenceRungResult = {
+    locus: null, targets: [], stars: [], checks: [], anchorSystems,
+    targetAnchorJacobian: [], targetCovarianceMainSequence: [],
+  };
+  const problem = mainSequenceProblem(release, analysis, anchorSystems);
+  if (problem !== null) throw AnalysisError.of(problem);
+  if (layout.anchorIdx.length === 0) return { ...empty, checks: mainSequenceChecks(inputs) };
+
+  // ---- locus on the anchors ----
+  const starResults = new Map<MainSequenceRow, MainSequenceStarResult>();
+  const { anchorRows, locusStars, ebvErrA, fehErrA } = anchorStars(release, analysis, parallax, layout, inputs);
+  const fit = fitLocusOrExplain(locusStars, { degree, pivot, rV, fehSlope: s, nAnchors: anchorSystems.length }, range);
+  const pBinaryByRow = new Map(locusStars.map((st, i) => [st.row, fit.pBinary[i]]));
+  for (const { row, c0, y } of anchorRows) {
+    starResults.set(row, {
+      star: row.star, system: row.system, line: row.line, color0: c0, abs_mag: y,
+      p_binary: pBinaryByRow.get(row) ?? 0, used: pBinaryByRow.has(row), role: 'anchor',
+    });
+  }
+  const { locusTotal, lambdaMsOnly, lambdaTotal } = locusCovariances(fit, ebvErrA, fehErrA, parallax.anchorCovariance);
+  const locus: LocusResult = {
+    degree, coeffs: fit.coeffs, color_pivot: pivot, covariance: locusTotal, color_range: range,
+    scatter: fit.scatter, binary_fraction: fit.binaryFraction, n_stars: locusStars.length,
+  };
+  inputs.locus = { ...locus, converged: fit.converged, iterations: fit.iterations };
+
+  // ---- targets ----
+  const fits = fitTargets(analysis, layout, locus, inputs, starResults);
 
   // ---- propagation ----
   // B: d mu_target / d lambda. Targets share lambda, so they are correlated through it.
@@ -260,24 +342,12 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
   fits.forEach((f, t) => (targetCov[t][t] += f.fit.covFit[0][0] + (s * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2));
 
   for (const f of fits) {
-    const meanP = meanSlope(f.fit, rowsBySystem.get(f.sys.system)!, fit.coeffs, pivot);
+    const meanP = meanSlope(f.fit, layout.rowsBySystem.get(f.sys.system)!, fit.coeffs, pivot);
     inputs.targets.push({ system: f.sys.system, prior: f.prior.kind, fit: f.fit, meanSlope: meanP });
   }
-  const targetResults: MainSequenceTargetResult[] = fits.map((f) => {
-    // Total covariance of (mu, E): own fit + locus (statistics, anchors incl. zero point, anchor E and feh) + target feh.
-    const total = addMatrices(f.fit.covFit, sandwich(lambdaJacobian(f.fit), lambdaTotal), [[(s * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2, 0], [0, 0]]);
-    const muErr = Math.sqrt(total[0][0]);
-    const ebvErr = Math.sqrt(total[1][1]);
-    return {
-      system: f.sys.system, n_stars: f.fit.used.length, n_used: f.fit.nUsed, mu: f.fit.mu, mu_err: muErr,
-      ebv: f.fit.ebv, ebv_err: ebvErr, corr_mu_ebv: ebvErr > 0 ? total[0][1] / (muErr * ebvErr) : 0,
-      feh: f.feh, binary_fraction: f.fit.binaryFraction,
-    };
-  });
-
   return {
     locus,
-    targets: targetResults,
+    targets: fits.map((f) => targetResult(f, s, lambdaTotal)),
     stars: release.mainSequence.filter((r) => starResults.has(r)).map((r) => starResults.get(r)!),
     checks: mainSequenceChecks(inputs),
     anchorSystems,

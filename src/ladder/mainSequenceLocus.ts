@@ -89,6 +89,110 @@ function median(values: readonly number[]): number {
 }
 
 /**
+ * Residuals about each anchor's own weighted mean offset. The intrinsic scatter is the
+ * star-to-star width of the sequence. Each anchor's stars also share one offset (the errors of
+ * its reddening, metallicity and modulus), which is carried to the targets through dCoeffsDEbv,
+ * dCoeffsDFeh and dCoeffsDMu; so the scatter is estimated on these residuals, or those common
+ * errors would be counted twice (once inside the scatter, once propagated).
+ */
+function withinAnchor(stars: readonly LocusStarInput[], res: readonly number[], qq: readonly number[], v: readonly number[], delta: number): number[] {
+  const sum = new Map<number, [number, number]>();
+  stars.forEach((s, i) => {
+    const acc = sum.get(s.anchor) ?? [0, 0];
+    acc[0] += (res[i] + qq[i] * delta) / v[i];
+    acc[1] += 1 / v[i];
+    sum.set(s.anchor, acc);
+  });
+  return res.map((ri, i) => {
+    const [a, b] = sum.get(stars[i].anchor)!;
+    return ri - a / b;
+  });
+}
+
+/** The locus problem in the pivot-centred colour: design rows, data, and the model's functions of the coefficients. */
+interface LocusProblem {
+  stars: readonly LocusStarInput[];
+  delta: number;
+  dc: number[];
+  x: number[][];
+  y: number[];
+  /** Photometric variance of each star at the current slope (effective variance). */
+  phot(coeffs: number[]): number[];
+  resid(coeffs: number[]): number[];
+  scatterUpdate(ph: readonly number[], res: readonly number[], qq: readonly number[], v: readonly number[]): number;
+}
+
+function locusProblem(stars: readonly LocusStarInput[], opts: LocusFitOptions): LocusProblem {
+  const delta = EQUAL_MASS_BINARY_OFFSET_MAG;
+  const dc = stars.map((s) => s.color0 - opts.pivot);
+  const y = stars.map((s) => s.absMagFeh0);
+  return {
+    stars,
+    delta,
+    dc,
+    x: dc.map((d) => powerBasis(d, opts.degree)),
+    y,
+    phot: (coeffs) => stars.map((s, i) => s.magErr ** 2 + (polyDerivative(coeffs, dc[i]) * s.colorErr) ** 2),
+    resid: (coeffs) => y.map((yi, i) => yi - polyValue(coeffs, dc[i])),
+    scatterUpdate: (ph, res, qq, v) => {
+      const w = withinAnchor(stars, res, qq, v, delta);
+      return scatterSquaredUpdate(ph, w.map((wi, i) => expectedSquaredResidual(wi, qq[i], delta)));
+    },
+  };
+}
+
+/** Where the expectation-maximisation ended. */
+interface LocusEm {
+  coeffs: number[];
+  tau2: number;
+  fraction: number;
+  iterations: number;
+  converged: boolean;
+}
+
+/** Start: unweighted fit, stars far above the median residual taken as binaries; then EM to convergence. */
+function locusExpectationMaximisation(lp: LocusProblem): LocusEm {
+  const { x, y, delta } = lp;
+  const n = y.length;
+  const unit = new Array<number>(n).fill(1);
+  let coeffs = weightedLeastSquares(x, y, unit);
+  let r = lp.resid(coeffs);
+  const m0 = median(r);
+  let q: number[] = r.map((ri) => (ri < m0 - delta / 2 ? 1 : 0));
+  let fraction = Math.min(0.5, Math.max(0.05, q.reduce((a, b) => a + b, 0) / n));
+  coeffs = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), unit);
+  r = lp.resid(coeffs);
+  let ph = lp.phot(coeffs);
+  let tau2 = lp.scatterUpdate(ph, r, q, unit);
+
+  let ll = -Infinity;
+  let iterations = 0;
+  let converged = false;
+  while (iterations < MAX_EM_ITERATIONS) {
+    iterations++;
+    ph = lp.phot(coeffs);
+    let v = ph.map((p) => p + tau2);
+    r = lp.resid(coeffs);
+    q = r.map((ri, i) => binaryProbability(ri, v[i], fraction, delta));
+    fraction = q.reduce((a, b) => a + b, 0) / n;
+    const next = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), v.map((vi) => 1 / vi));
+    const change = Math.max(...next.map((c, k) => Math.abs(c - coeffs[k])));
+    coeffs = next;
+    r = lp.resid(coeffs);
+    tau2 = lp.scatterUpdate(ph, r, q, v);
+    v = ph.map((p) => p + tau2);
+    const llNew = mixtureLogLikelihood(r, v, fraction, delta);
+    if (Math.abs(llNew - ll) < LOGLIK_TOL * Math.max(1, Math.abs(llNew)) && change < COEFF_TOL) {
+      ll = llNew;
+      converged = true;
+      break;
+    }
+    ll = llNew;
+  }
+  return { coeffs, tau2, fraction, iterations, converged };
+}
+
+/**
  * EM fit of the locus. Start: unweighted fit, stars brighter than the median
  * residual by more than delta/2 taken as binaries. Then repeat
  *   E-step: v_i = mag_err^2 + P'(c0)^2 color_err^2 + scatter^2, q_i = binary probability;
@@ -99,77 +203,15 @@ function median(values: readonly number[]): number {
  * Cost O(iterations n p^2); a few hundred iterations for well separated binaries.
  */
 export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions): LocusFit {
-  const delta = EQUAL_MASS_BINARY_OFFSET_MAG;
   const n = stars.length;
-  const dc = stars.map((s) => s.color0 - opts.pivot);
-  const x = dc.map((d) => powerBasis(d, opts.degree));
-  const y = stars.map((s) => s.absMagFeh0);
-  const unit = new Array<number>(n).fill(1);
-  const phot = (coeffs: number[]) => stars.map((s, i) => s.magErr ** 2 + (polyDerivative(coeffs, dc[i]) * s.colorErr) ** 2);
-  const resid = (coeffs: number[]) => y.map((yi, i) => yi - polyValue(coeffs, dc[i]));
-
-  // The intrinsic scatter is the star-to-star width of the sequence. Each anchor's stars also
-  // share one offset (the errors of its reddening, metallicity and modulus), which is carried to
-  // the targets through dCoeffsDEbv, dCoeffsDFeh and dCoeffsDMu; so the scatter is estimated on
-  // residuals about each anchor's own weighted mean offset, or those common errors would be
-  // counted twice (once inside the scatter, once propagated).
-  const withinAnchor = (res: readonly number[], qq: readonly number[], v: readonly number[]): number[] => {
-    const sum = new Map<number, [number, number]>();
-    stars.forEach((s, i) => {
-      const acc = sum.get(s.anchor) ?? [0, 0];
-      acc[0] += (res[i] + qq[i] * delta) / v[i];
-      acc[1] += 1 / v[i];
-      sum.set(s.anchor, acc);
-    });
-    return res.map((ri, i) => {
-      const [a, b] = sum.get(stars[i].anchor)!;
-      return ri - a / b;
-    });
-  };
-  const scatterUpdate = (ph: readonly number[], res: readonly number[], qq: readonly number[], v: readonly number[]) => {
-    const w = withinAnchor(res, qq, v);
-    return scatterSquaredUpdate(ph, w.map((wi, i) => expectedSquaredResidual(wi, qq[i], delta)));
-  };
-
-  let coeffs = weightedLeastSquares(x, y, unit);
-  let r = resid(coeffs);
-  const m0 = median(r);
-  let q: number[] = r.map((ri) => (ri < m0 - delta / 2 ? 1 : 0));
-  let fraction = Math.min(0.5, Math.max(0.05, q.reduce((a, b) => a + b, 0) / n));
-  coeffs = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), unit);
-  r = resid(coeffs);
-  let ph = phot(coeffs);
-  let tau2 = scatterUpdate(ph, r, q, unit);
-
-  let ll = -Infinity;
-  let iterations = 0;
-  let converged = false;
-  while (iterations < MAX_EM_ITERATIONS) {
-    iterations++;
-    ph = phot(coeffs);
-    let v = ph.map((p) => p + tau2);
-    r = resid(coeffs);
-    q = r.map((ri, i) => binaryProbability(ri, v[i], fraction, delta));
-    fraction = q.reduce((a, b) => a + b, 0) / n;
-    const next = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), v.map((vi) => 1 / vi));
-    const change = Math.max(...next.map((c, k) => Math.abs(c - coeffs[k])));
-    coeffs = next;
-    r = resid(coeffs);
-    tau2 = scatterUpdate(ph, r, q, v);
-    v = ph.map((p) => p + tau2);
-    const llNew = mixtureLogLikelihood(r, v, fraction, delta);
-    if (Math.abs(llNew - ll) < LOGLIK_TOL * Math.max(1, Math.abs(llNew)) && change < COEFF_TOL) {
-      ll = llNew;
-      converged = true;
-      break;
-    }
-    ll = llNew;
-  }
+  const lp = locusProblem(stars, opts);
+  const { delta, dc, x } = lp;
+  const { coeffs, tau2, fraction, iterations, converged } = locusExpectationMaximisation(lp);
 
   // Final state and its curvature: d r_i / d coeffs = -x_i.
-  const v = phot(coeffs).map((p) => p + tau2);
-  r = resid(coeffs);
-  q = r.map((ri, i) => binaryProbability(ri, v[i], fraction, delta));
+  const v = lp.phot(coeffs).map((p) => p + tau2);
+  const r = lp.resid(coeffs);
+  const q = r.map((ri, i) => binaryProbability(ri, v[i], fraction, delta));
   const curv = mixtureCurvature(
     stars.map((_, i) => ({ residual: r[i], variance: v[i], q: q[i], grad: x[i].map((xk) => -xk) })),
     fraction,

@@ -11,16 +11,15 @@
  *   the law with that R_V (extinction.ts, wesenheitCoefficientForRV).
  * - A variant that changes which rows enter the fit (DATA_KEYS) is judged against the
  *   statistical noise of its own change: the sigma of the difference of H0 on shared rows
- *   from the comparison engine (src/diff/sigma.ts), every row counted as one common error.
+ *   shared with the comparison engine (src/ladder/sigmaDifference.ts), every row counted as one common error.
  * The rule that turns alternatives into a source's error is in budget.ts.
  */
 import type { AnalysisChoices, AnalysisKey } from '../types/analysis.ts';
 import { withOverrides } from '../types/analysis.ts';
 import { wesenheitCoefficientForRV } from './extinction.ts';
-import { fitSnapshot, log10H0Gradient } from '../diff/snapshot.ts';
-import { prepareSide, sigmaOfDifference } from '../diff/sigma.ts';
-import type { NoiseSharing } from '../diff/noise.ts';
-import type { LadderRun } from './calibrate.ts';
+import { fitSnapshot, log10H0Gradient } from './fitSnapshot.ts';
+import { prepareSide, sigmaOfDifference, type SharedErrors } from './sigmaDifference.ts';
+import type { LadderRun } from './ladderRun.ts';
 
 /** A source of systematic error: one analysis choice. */
 export interface SourceDefinition {
@@ -95,17 +94,15 @@ export function variantAnalysis(
 }
 
 /** Every row and prior of a variant's fit carries the same error as in the baseline: one release. */
-const SAME_RELEASE: NoiseSharing = {
+const SAME_RELEASE: SharedErrors = {
   rowCommon: () => true,
   priorCommon: () => true,
-  nested: () => true,
-  status: () => 'same',
 };
 
 /**
  * Standard deviation of H0_variant - H0_baseline (km/s/Mpc) expected from statistical noise
  * alone, for a variant that changes which rows enter the fit: first-order propagation of every
- * row's error through both fits (src/diff/sigma.ts) with all rows of the release common, so
+ * row's error through both fits (src/ladder/sigmaDifference.ts) with all rows of the release common, so
  * rows in both fits cancel to the extent both weight them alike and rows in one fit only count
  * in full. The prior moduli are counted common too: a variant that changes the main-sequence
  * stars is credited only the noise of the global-fit rows (less noise subtracted, so a larger

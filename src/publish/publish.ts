@@ -1,7 +1,7 @@
 /**
  * Publishing a release: calibrate it, check that the results were computed from
  * exactly the files now in the folder, and write the publication record
- * (src/publish/record.ts) beside the data, atomically. A release is published
+ * (src/io/publishedRecord.ts) beside the data, atomically. A release is published
  * once; a blinded release is not published (its H0 carries a hidden offset).
  */
 import { join } from 'node:path';
@@ -9,7 +9,7 @@ import { writeFileAtomic } from '../io/atomicWrite.ts';
 import { serializeResults } from '../io/results.ts';
 import { InputError, type InputIssue } from '../types/issues.ts';
 import type { Results } from '../types/results.ts';
-import { fileChecksums, PUBLISHED_FILE, PUBLISHED_SCHEMA, readPublishedRecord, type PublishedRecord } from './record.ts';
+import { fileChecksums, PUBLISHED_FILE, PUBLISHED_SCHEMA, readPublishedRecord, type PublishedRecord } from '../io/publishedRecord.ts';
 
 export interface PublishOptions {
   /** YYYY-MM-DD. */

@@ -139,12 +139,22 @@ function lightCurve<T extends SupernovaLightCurve>(rng: Rng, row: T, donor: Supe
   };
 }
 
-/** The simulated release for one seed. Every table draws from its own named stream of the seed. */
-export function simulateRelease(release: Release, truth: RecoveryTruth, seed: number, options: SimulateOptions = {}): Release {
-  const a = release.analysis;
-  const f = (c: ErrorColumn) => options.statedErrorFactor?.[c] ?? 1;
-  const stream = (name: string) => createRng(seed, 'recover', name);
+/** What every table's simulation needs: the release, the truth, the seed's streams, the error factors. */
+interface Simulation {
+  release: Release;
+  truth: RecoveryTruth;
+  a: Release['analysis'];
+  options: SimulateOptions;
+  /** Factor on a stated error column (the hook for testing mis-stated errors). */
+  f: (c: ErrorColumn) => number;
+  /** The seed's random stream of this name. */
+  stream: (name: string) => Rng;
+  fieldSystems: Set<string>;
+}
 
+/** Stated priors: drawn around the truth with their stated errors (exact when stated without). */
+function simulateSystems(sim: Simulation): SystemRow[] {
+  const { release, truth, stream } = sim;
   // Stated priors: drawn around the truth with their stated errors (exact when stated without).
   const priorRng = stream('systems');
   const systems: SystemRow[] = release.systems.map((s) => {
@@ -156,8 +166,12 @@ export function simulateRelease(release: Release, truth: RecoveryTruth, seed: nu
     }
     return out;
   });
-  const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
+  return systems;
+}
 
+/** Parallaxes and the stated zero point. */
+function simulateParallax(sim: Simulation): { parallax: ParallaxRow[]; statedZeroPoint: number } {
+  const { release, truth, a, f, stream, fieldSystems } = sim;
   // Parallaxes and the stated zero point.
   const zRng = stream('parallax-zero-point');
   const statedZeroPoint = release.parallax.length > 0 ? truth.parallaxZeroPointMas + zRng.gauss(0, a.parallax_zero_point_err) : a.parallax_zero_point;
@@ -172,7 +186,12 @@ export function simulateRelease(release: Release, truth: RecoveryTruth, seed: nu
     const err = release.parallax[pDonor[i]!]!.parallaxErrMas;
     return { ...row, parallaxMas: trueMas + truth.parallaxZeroPointMas + pRng.gauss(0, err), parallaxErrMas: err * f('parallax_err') };
   });
+  return { parallax, statedZeroPoint };
+}
 
+/** Main-sequence photometry: the locus at the true distance, reddening and metallicity, binaries, scatter, noise. */
+function simulateMainSequence(sim: Simulation): MainSequenceRow[] {
+  const { release, truth, a, f, stream } = sim;
   // Main sequence.
   const msRng = stream('main-sequence');
   const msDonor = errorDonors(msRng, release.mainSequence, (r) => r.system, (r) => r.mag);
@@ -193,7 +212,12 @@ export function simulateRelease(release: Release, truth: RecoveryTruth, seed: nu
       magErr: d.magErr * f('mag_err'),
     };
   });
+  return mainSequence;
+}
 
+/** Cepheids from the true period-luminosity relation, with blends in galaxies. */
+function simulateCepheids(sim: Simulation): CepheidRow[] {
+  const { release, truth, a, f, stream, fieldSystems, options } = sim;
   // Cepheids: the observed colour m_v - m_i of the row is kept as the true colour. Blends come from
   // a stream of their own, so switching them off leaves every other draw as it was.
   const blends = options.blends ?? RECOVERY_BLENDS;
@@ -223,7 +247,12 @@ export function simulateRelease(release: Release, truth: RecoveryTruth, seed: nu
       mIErr: d.mIErr * f('m_i_err'),
     };
   });
+  return cepheids;
+}
 
+/** Calibrator supernovae at their host's true distance. */
+function simulateCalibrators(sim: Simulation): SnCalibratorRow[] {
+  const { release, truth, f, stream } = sim;
   // Calibrator supernovae: the row's x1 and c are kept as the true ones.
   const sRng = stream('sn-calibrators');
   const sDonor = errorDonors(sRng, release.snCalibrators, () => '', (r) => r.mBErr);
@@ -232,7 +261,12 @@ export function simulateRelease(release: Release, truth: RecoveryTruth, seed: nu
     const mbTrue = mu + truth.mB - truth.alpha * row.x1 + truth.beta * row.c + sRng.gauss(0, truth.sigmaIntSn);
     return lightCurve(sRng, row, release.snCalibrators[sDonor[i]!]!, mbTrue, f('m_b_err'));
   });
+  return snCalibrators;
+}
 
+/** Hubble-flow supernovae at the true expansion, with peculiar velocities. */
+function simulateHubbleFlow(sim: Simulation): SnHubbleFlowRow[] {
+  const { release, truth, a, f, stream } = sim;
   // Hubble flow: the row's z is the cosmological redshift; errors from neighbours in z.
   const hRng = stream('sn-hubble-flow');
   const hDonor = errorDonors(hRng, release.snHubbleFlow, () => '', (r) => r.z);
@@ -242,7 +276,27 @@ export function simulateRelease(release: Release, truth: RecoveryTruth, seed: nu
     const z = row.z + hRng.gauss(0, a.sigma_pec) / C_KM_S + hRng.gauss(0, d.zErr);
     return { ...lightCurve(hRng, row, d, mbTrue, f('m_b_err')), z, zErr: d.zErr * f('z_err') };
   });
+  return snHubbleFlow;
+}
 
+/** The simulated release for one seed. Every table draws from its own named stream of the seed. */
+export function simulateRelease(release: Release, truth: RecoveryTruth, seed: number, options: SimulateOptions = {}): Release {
+  const a = release.analysis;
+  const sim: Simulation = {
+    release,
+    truth,
+    a,
+    options,
+    f: (c: ErrorColumn) => options.statedErrorFactor?.[c] ?? 1,
+    stream: (name: string) => createRng(seed, 'recover', name),
+    fieldSystems: new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system)),
+  };
+  const systems = simulateSystems(sim);
+  const { parallax, statedZeroPoint } = simulateParallax(sim);
+  const mainSequence = simulateMainSequence(sim);
+  const cepheids = simulateCepheids(sim);
+  const snCalibrators = simulateCalibrators(sim);
+  const snHubbleFlow = simulateHubbleFlow(sim);
   return {
     ...release,
     analysis: { ...a, parallax_zero_point: statedZeroPoint },

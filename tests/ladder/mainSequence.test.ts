@@ -16,7 +16,8 @@ import { DEFAULT_ANALYSIS, type AnalysisChoices } from '../../src/types/analysis
 import { AnalysisError } from '../../src/types/issues.ts';
 import type { MainSequenceRow, ParallaxRow, Release, SystemRow } from '../../src/types/release.ts';
 import { fitParallaxRung } from '../../src/ladder/parallax.ts';
-import { buildDistancePriors, fitMainSequenceRung, MS_METHOD_FLOOR_MAG } from '../../src/ladder/mainSequence.ts';
+import { fitMainSequenceRung, MS_METHOD_FLOOR_MAG } from '../../src/ladder/mainSequence.ts';
+import { buildDistancePriors } from '../../src/ladder/mainSequencePriors.ts';
 import { polyDerivative, polyValue } from '../../src/math/polynomial.ts';
 import {
   absErr, relErr, MAG_1E6, REL_1E6, REL_1E9, REL_1E12, REL_FIRST_ORDER_PROPAGATION, STAT_SIGMAS,

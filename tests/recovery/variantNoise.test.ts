@@ -1,5 +1,5 @@
 // The noise a data-changing variant is judged against (src/ladder/variants.ts variantNoiseH0,
-// the comparison engine's sigma of a difference on shared rows, src/diff/sigma.ts) is the real
+// the comparison engine's sigma of a difference on shared rows, src/ladder/sigmaDifference.ts) is the real
 // spread of its shift when there is no systematic at all. Kind: recovery by simulation.
 // Generated releases (src/demo) are drawn from the very model the fit assumes, so the shift of
 // H0 between z_min = 0.0233 and z_min = 0.01 is statistical noise only: shift / predicted noise

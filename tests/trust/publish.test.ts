@@ -21,7 +21,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { main } from '../../src/cli/main.ts';
 import { parseResults } from '../../src/io/results.ts';
 import { compareResults, DRIFT_RELATIVE } from '../../src/publish/drift.ts';
-import { PUBLISHED_FILE, type PublishedRecord } from '../../src/publish/record.ts';
+import { PUBLISHED_FILE, type PublishedRecord } from '../../src/io/publishedRecord.ts';
 import { changeOf, digitsToTellApart } from '../../src/report/published.ts';
 import type { Results } from '../../src/types/results.ts';
 import { codeVersion } from '../../src/version.ts';

@@ -39,7 +39,8 @@ function lane(k: number): number {
   return ((k % 5) - 2) * 0.13;
 }
 
-export function ladderDiagram(r: Results): FigureSpec | null {
+/** Every system with a distance at its rung, and the Hubble-flow supernovae in the sample at the top rung. */
+function ladderPoints(r: Results): Point[] {
   const points: Point[] = [];
   for (const s of r.systems) {
     if (s.mu === null || s.mu_err === null) continue;
@@ -71,8 +72,6 @@ export function ladderDiagram(r: Results): FigureSpec | null {
       dHi: distanceMpcFromModulus(sn.mu + sn.m_corr_err),
     });
   }
-  if (points.length === 0) return null;
-
   // Spread within each rung (by distance order, so neighbours sit in different lanes).
   for (let rung = 0; rung < RUNGS.length; rung++) {
     points
@@ -82,19 +81,11 @@ export function ladderDiagram(r: Results): FigureSpec | null {
         p.y = rung + lane(k);
       });
   }
+  return points;
+}
 
-  const systemsPts = points.filter((p) => p.kind !== 'supernova');
-  const flowPts = points.filter((p) => p.kind === 'supernova');
-  const thinned = thin(flowPts, () => false, 300);
-  const drawn = [...systemsPts, ...thinned.rows].map((p) => ({ ...p, d: r5(p.d), dLo: r5(p.dLo), dHi: r5(p.dHi), y: r5(p.y) }));
-
-  const kinds = (['cluster', 'field', 'galaxy', 'supernova'] as const).filter((k) => drawn.some((p) => p.kind === k));
-  const blinded = r.blinded && flowPts.length > 0;
-  const leg = legend([
-    ...kinds.map((k) => ({ label: SYMBOLS[k].label, kind: 'dot' as const, symbol: SYMBOLS[k].symbol, filled: SYMBOLS[k].filled })),
-    { label: '± 1σ', kind: 'line' as const, width: 1 },
-  ], undefined, 110);
-
+/** The marks: error bars, one symbol per kind of system, the legend, and the notes of a rung not reached or blinded. */
+function ladderMarks(r: Results, drawn: Point[], kinds: readonly Point['kind'][], leg: ReturnType<typeof legend>, blinded: boolean): Plot.Markish[] {
   const marks: Plot.Markish[] = [
     Plot.gridX({ stroke: GREY, strokeOpacity: 0.25 }),
     Plot.link(drawn, { x1: 'dLo', x2: 'dHi', y1: 'y', y2: 'y', stroke: INK, strokeWidth: 1 }),
@@ -110,6 +101,55 @@ export function ladderDiagram(r: Results): FigureSpec | null {
     marks.push(Plot.text(['not reached in this release'], { x: Math.sqrt(Math.min(...drawn.map((p) => p.d)) * Math.max(...drawn.map((p) => p.d))), y: 3, fill: GREY, fontStyle: 'italic' }));
   }
   if (blinded) marks.push(blindedStamp());
+  return marks;
+}
+
+/** The figure in words, rung by rung (its alternative text). */
+function ladderInWords(systemsPts: readonly Point[], flowPts: readonly Point[]): string[] {
+  return RUNGS.map((name, i) => {
+    const ps = systemsPts.filter((p) => p.rung === i);
+    if (i === 3) {
+      if (flowPts.length === 0) return `${name}: not reached`;
+      const ds = flowPts.map((p) => p.d);
+      return `${name}: ${int(flowPts.length)} supernovae from ${distanceText(Math.min(...ds))} to ${distanceText(Math.max(...ds))}`;
+    }
+    if (ps.length === 0) return `${name}: none`;
+    return `${name}: ${listText(ps.map((p) => `${p.name} ${distanceText(p.d)} (μ = ${pm(p.mu, p.muErr)} mag)`), 8)}`;
+  });
+}
+
+/** The figure's data as a table (every point, not only those drawn). */
+function ladderCsv(points: readonly Point[]): NonNullable<FigureSpec['csv']> {
+  return {
+    columns: [
+      col('name', 'string', undefined, 'system or supernova'),
+      col('kind', 'string'),
+      col('rung', 'string'),
+      col('mu', 'float64', 'mag', 'distance modulus'),
+      col('mu_err', 'float64', 'mag'),
+      col('distance', 'float64', 'Mpc'),
+      col('distance_lo', 'float64', 'Mpc', 'distance at mu - mu_err'),
+      col('distance_hi', 'float64', 'Mpc', 'distance at mu + mu_err'),
+    ],
+    rows: points.map((p) => ({ name: p.name, kind: p.kind, rung: RUNGS[p.rung]!, mu: p.mu, mu_err: p.muErr, distance: p.d, distance_lo: p.dLo, distance_hi: p.dHi })),
+  };
+}
+
+export function ladderDiagram(r: Results): FigureSpec | null {
+  const points = ladderPoints(r);
+  if (points.length === 0) return null;
+
+  const systemsPts = points.filter((p) => p.kind !== 'supernova');
+  const flowPts = points.filter((p) => p.kind === 'supernova');
+  const thinned = thin(flowPts, () => false, 300);
+  const drawn = [...systemsPts, ...thinned.rows].map((p) => ({ ...p, d: r5(p.d), dLo: r5(p.dLo), dHi: r5(p.dHi), y: r5(p.y) }));
+
+  const kinds = (['cluster', 'field', 'galaxy', 'supernova'] as const).filter((k) => drawn.some((p) => p.kind === k));
+  const blinded = r.blinded && flowPts.length > 0;
+  const leg = legend([
+    ...kinds.map((k) => ({ label: SYMBOLS[k].label, kind: 'dot' as const, symbol: SYMBOLS[k].symbol, filled: SYMBOLS[k].filled })),
+    { label: '± 1σ', kind: 'line' as const, width: 1 },
+  ], undefined, 110);
 
   const height = 330 + leg.marginTop;
   const out = renderSvg({
@@ -120,18 +160,7 @@ export function ladderDiagram(r: Results): FigureSpec | null {
     marginTop: leg.marginTop,
     x: { type: 'log', label: 'Distance (Mpc)', tickFormat: distanceTickText },
     y: { domain: [-0.5, RUNGS.length - 0.5], ticks: [0, 1, 2, 3], tickFormat: (i: number) => RUNGS[i] ?? '', label: null, reverse: true },
-    marks,
-  });
-
-  const byRung = RUNGS.map((name, i) => {
-    const ps = systemsPts.filter((p) => p.rung === i);
-    if (i === 3) {
-      if (flowPts.length === 0) return `${name}: not reached`;
-      const ds = flowPts.map((p) => p.d);
-      return `${name}: ${int(flowPts.length)} supernovae from ${distanceText(Math.min(...ds))} to ${distanceText(Math.max(...ds))}`;
-    }
-    if (ps.length === 0) return `${name}: none`;
-    return `${name}: ${listText(ps.map((p) => `${p.name} ${distanceText(p.d)} (μ = ${pm(p.mu, p.muErr)} mag)`), 8)}`;
+    marks: ladderMarks(r, drawn, kinds, leg, blinded),
   });
 
   return {
@@ -141,21 +170,9 @@ export function ladderDiagram(r: Results): FigureSpec | null {
       'Each system at the distance its rung gave it, on a logarithmic axis; horizontal bars are ±1σ. ' +
       'Filled circles: clusters; open triangles: field stars; filled squares: galaxies; small open circles: Hubble-flow supernovae.' +
       (blinded ? ' Supernova distances carry the blinding offset.' : ''),
-    alt: `Ladder diagram. ${byRung.join('. ')}.`,
+    alt: `Ladder diagram. ${ladderInWords(systemsPts, flowPts).join('. ')}.`,
     ...out,
-    csv: {
-      columns: [
-        col('name', 'string', undefined, 'system or supernova'),
-        col('kind', 'string'),
-        col('rung', 'string'),
-        col('mu', 'float64', 'mag', 'distance modulus'),
-        col('mu_err', 'float64', 'mag'),
-        col('distance', 'float64', 'Mpc'),
-        col('distance_lo', 'float64', 'Mpc', 'distance at mu - mu_err'),
-        col('distance_hi', 'float64', 'Mpc', 'distance at mu + mu_err'),
-      ],
-      rows: points.map((p) => ({ name: p.name, kind: p.kind, rung: RUNGS[p.rung]!, mu: p.mu, mu_err: p.muErr, distance: p.d, distance_lo: p.dLo, distance_hi: p.dHi })),
-    },
+    csv: ladderCsv(points),
     thinned: thinned.note,
     blinded,
   };

@@ -11,6 +11,53 @@ import { col, type FigureSpec, GREY, INK, legend, r5, renderSvg, thin } from './
 
 export const ID = 'parallax-posteriors';
 
+type ParallaxStar = Results['rungs']['parallax']['stars'][number];
+
+/** The figure in words: how many stars are drawn, flagged, and the median ratio of the two distances. */
+function posteriorsInWords(stars: readonly ParallaxStar[], placed: readonly ParallaxStar[]): string {
+  const nLow = stars.filter((s) => s.low_significance).length;
+  const nBi = stars.filter((s) => s.bimodal).length;
+  const nNonPos = stars.length - placed.length;
+  const ratios = placed.map((s) => s.dist_q50_pc / s.dist_inverse_pc!).sort((a, b) => a - b);
+  const median = ratios.length ? ratios[Math.floor(ratios.length / 2)]! : NaN;
+  return (
+    `${int(stars.length)} parallax stars; ${int(placed.length)} with a positive corrected parallax are drawn` +
+    (nNonPos ? ` (${int(nNonPos)} with zero or negative parallax are only in the CSV)` : '') +
+    `. ${int(nLow)} have parallax/error below 5 and ${int(nBi)} have a bimodal posterior. ` +
+    (ratios.length ? `The median ratio of posterior median to naive distance is ${sig(median, 3)}.` : '')
+  );
+}
+
+/** The figure's data as a table (every star, also those not drawn). */
+function posteriorsCsv(stars: readonly ParallaxStar[]): NonNullable<FigureSpec['csv']> {
+  return {
+    columns: [
+      col('star', 'string'),
+      col('system', 'string'),
+      col('parallax_corr', 'float64', 'mas', 'zero-point corrected parallax'),
+      col('parallax_err', 'float64', 'mas'),
+      col('dist_inverse', 'float64', 'pc', '1/parallax, empty when parallax <= 0'),
+      col('dist_q05', 'float64', 'pc'),
+      col('dist_q50', 'float64', 'pc'),
+      col('dist_q95', 'float64', 'pc'),
+      col('low_significance', 'bool'),
+      col('bimodal', 'bool'),
+    ],
+    rows: stars.map((s) => ({
+      star: s.star,
+      system: s.system,
+      parallax_corr: s.parallax_corr_mas,
+      parallax_err: s.parallax_err_mas,
+      dist_inverse: s.dist_inverse_pc,
+      dist_q05: s.dist_q05_pc,
+      dist_q50: s.dist_q50_pc,
+      dist_q95: s.dist_q95_pc,
+      low_significance: s.low_significance,
+      bimodal: s.bimodal,
+    })),
+  };
+}
+
 export function parallaxPosteriors(r: Results): FigureSpec | null {
   const stars = r.rungs.parallax.stars;
   if (stars.length === 0) return null;
@@ -51,49 +98,15 @@ export function parallaxPosteriors(r: Results): FigureSpec | null {
       ...leg.marks,
     ],
   });
-  const nLow = stars.filter((s) => s.low_significance).length;
-  const nBi = stars.filter((s) => s.bimodal).length;
-  const nNonPos = stars.length - placed.length;
-  const ratios = placed.map((s) => s.dist_q50_pc / s.dist_inverse_pc!).sort((a, b) => a - b);
-  const median = ratios.length ? ratios[Math.floor(ratios.length / 2)]! : NaN;
   return {
     id: ID,
     title: 'Parallax stars: naive and posterior distances',
     caption:
       'Each star’s naive distance 1/parallax against the median of its distance posterior (exponentially decreasing space density prior), with the 5–95 % interval. ' +
       'Open circles: parallax/error below 5, where the prior dominates; open triangles: two-peaked posteriors. Dashed: equal distances. Display only: these distances do not enter the fit.',
-    alt:
-      `${int(stars.length)} parallax stars; ${int(placed.length)} with a positive corrected parallax are drawn` +
-      (nNonPos ? ` (${int(nNonPos)} with zero or negative parallax are only in the CSV)` : '') +
-      `. ${int(nLow)} have parallax/error below 5 and ${int(nBi)} have a bimodal posterior. ` +
-      (ratios.length ? `The median ratio of posterior median to naive distance is ${sig(median, 3)}.` : ''),
+    alt: posteriorsInWords(stars, placed),
     ...out,
-    csv: {
-      columns: [
-        col('star', 'string'),
-        col('system', 'string'),
-        col('parallax_corr', 'float64', 'mas', 'zero-point corrected parallax'),
-        col('parallax_err', 'float64', 'mas'),
-        col('dist_inverse', 'float64', 'pc', '1/parallax, empty when parallax <= 0'),
-        col('dist_q05', 'float64', 'pc'),
-        col('dist_q50', 'float64', 'pc'),
-        col('dist_q95', 'float64', 'pc'),
-        col('low_significance', 'bool'),
-        col('bimodal', 'bool'),
-      ],
-      rows: stars.map((s) => ({
-        star: s.star,
-        system: s.system,
-        parallax_corr: s.parallax_corr_mas,
-        parallax_err: s.parallax_err_mas,
-        dist_inverse: s.dist_inverse_pc,
-        dist_q05: s.dist_q05_pc,
-        dist_q50: s.dist_q50_pc,
-        dist_q95: s.dist_q95_pc,
-        low_significance: s.low_significance,
-        bimodal: s.bimodal,
-      })),
-    },
+    csv: posteriorsCsv(stars),
     thinned: t.note,
     blinded: false,
   };
