@@ -42,6 +42,15 @@ function parameterInfo(name: string): { unit: string; description: string } {
 
 const BLINDED_PARAMS = new Set(HIDDEN_WHEN_BLINDED);
 
+/**
+ * 68 % interval of an intrinsic scatter s from the standard error of s^2 (globalFit.ts,
+ * scatterStandardError: err(s) = err(s^2) / (2 s), and err(s) = sqrt(err(s^2)) at s = 0).
+ */
+export function scatterInterval(s: number, err: number): [number, number] {
+  const errS2 = s > 0 ? 2 * s * err : err * err;
+  return [Math.sqrt(Math.max(0, s * s - errS2)), Math.sqrt(s * s + errS2)];
+}
+
 function sha256(text: string): string {
   return createHash('sha256').update(text).digest('hex');
 }
@@ -99,8 +108,10 @@ function parameterResults(release: Release, run: LadderRun, fp: FittedParameters
       put('beta', fit.beta.value, fit.beta.err, { fixed: fit.beta.fixed });
     }
     // errors of the scatters: the spread of their moment estimator (globalFit.ts, scatterStandardError)
-    if (release.cepheids.length) put('sigma_int_cepheid', fit.scatter.cepheids, fit.scatterErr.cepheids);
-    if (release.snCalibrators.length + release.snHubbleFlow.length > 0) put('sigma_int_sn', fit.scatter.supernovae, fit.scatterErr.supernovae);
+    if (release.cepheids.length) put('sigma_int_cepheid', fit.scatter.cepheids, fit.scatterErr.cepheids, { interval68: scatterInterval(fit.scatter.cepheids, fit.scatterErr.cepheids) });
+    if (release.snCalibrators.length + release.snHubbleFlow.length > 0) {
+      put('sigma_int_sn', fit.scatter.supernovae, fit.scatterErr.supernovae, { interval68: scatterInterval(fit.scatter.supernovae, fit.scatterErr.supernovae) });
+    }
     if (idx(PARAM.zeta) >= 0) {
       put('parallax_zero_point', analysis.parallax_zero_point + value(PARAM.zeta), err(PARAM.zeta));
     }

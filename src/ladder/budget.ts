@@ -23,6 +23,7 @@ export const BUDGET_LABELS: Record<string, string> = {
   sn_calibrators: 'Supernova calibrators',
   sn_standardisation: 'Supernova standardisation (alpha, beta)',
   hubble_flow: 'Hubble-flow supernovae and peculiar velocities',
+  intrinsic_scatters: 'Intrinsic scatters (uncertainty of their estimates)',
 };
 
 const ORDER = Object.keys(BUDGET_LABELS);

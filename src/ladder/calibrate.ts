@@ -105,6 +105,8 @@ function log10H0OfFit(fit: ReturnType<typeof fitGlobal>): { h0: LadderRun['log10
     g[iAB] = 1;
     let variance = 0;
     for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) variance += g[i] * fit.cov[i * p + j] * g[j];
+    // the intrinsic scatters' estimation uncertainty, carried into H0 (globalFit.ts, scatterUncertainty)
+    variance += fit.scatterVariance(g);
     h0 = { value: log10H0(fit.q[iMB], fit.q[iAB]), variance, gradient: g };
   }
   return { h0, reached };

@@ -119,11 +119,11 @@ export interface GlobalFitResult {
   rejected: RowResidual[];
   /** Cepheid rows kept but down-weighted by the mixture (membership below MIXTURE.reportBelow), by membership. */
   downweighted: RowResidual[];
-  /** Variance of g^T q split by source, including 'sn_standardisation'. */
+  /** Variance of g^T q split by source, including 'sn_standardisation' and 'intrinsic_scatters'. */
   budget(g: ArrayLike<number>): Map<string, number>;
   /**
    * Variance of g^T q from the uncertainty of the fitted intrinsic scatters (d q / d s err(s),
-   * both scatters, in quadrature). Not part of cov: it is negligible (see fitGlobal).
+   * both scatters, in quadrature). Not part of cov; added to H0's variance (calibrate.ts).
    */
   scatterVariance(g: ArrayLike<number>): number;
   /** Linearisation points of the field stars at convergence. */
@@ -274,13 +274,17 @@ interface GroupStats {
   sumOneMinusH: number;
   /** sum (1 - h) / v */
   sumOneMinusHOverV: number;
+  /** sum (E[r^2]/v - (1 - h))^2: the spread of the scatter equation's terms as the data show it */
+  sumPsi2: number;
+  /** sum (1 - h)^2: that spread's expectation for Gaussian residuals, halved */
+  sumOneMinusH2: number;
   n: number;
   /** Fitted non-linear parameters determined by this group's rows (alpha, beta for the supernovae). */
   extraParams: number;
 }
 
 function emptyStats(extraParams: number): GroupStats {
-  return { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, n: 0, extraParams };
+  return { sumChi2: 0, sumOneMinusH: 0, sumOneMinusHOverV: 0, sumPsi2: 0, sumOneMinusH2: 0, n: 0, extraParams };
 }
 
 /** Newton update of an intrinsic scatter from sum E[r^2]/v = sum (1 - h) - m. */
@@ -300,12 +304,18 @@ function updatedScatter(s: number, st: GroupStats): number {
  * The Fisher information of s^2 (sum 1/(2 v^2)), used before, is the spread of the maximum-likelihood
  * estimator: it counts no fitted parameter and weights the rows by 1/v^2 where this estimator
  * weights them by 1/v, so it understated this estimator's error (content/methods/global-fit.md).
+ * Var(T) is then scaled by the residuals' own fourth moment, sum (E[r^2]/v - (1 - h))^2 over its
+ * Gaussian expectation 2 sum (1 - h)^2 (a sandwich estimate of the estimating equation's variance,
+ * common practice for moment estimators, e.g. Huber 1967): heavier tails than Gaussian (blended
+ * Cepheids the mixture cannot tell apart, a few outliers left in) make the scatter less certain,
+ * and Gaussian-theory errors were about 9 % small in recovery runs with blends.
  * At s = 0 the delta method fails; the error of s^2 is then given as sqrt(err(s^2)).
  */
 export function scatterStandardError(s: number, st: GroupStats): number {
   const dof = st.sumOneMinusH - st.extraParams;
   if (st.n === 0 || dof <= 0 || st.sumOneMinusHOverV <= 0) return 0;
-  const errS2 = Math.sqrt((2 * dof) / st.sumOneMinusHOverV ** 2);
+  const kurtosis = st.sumOneMinusH2 > 0 ? st.sumPsi2 / (2 * st.sumOneMinusH2) : 1;
+  const errS2 = Math.sqrt((2 * dof * kurtosis) / st.sumOneMinusHOverV ** 2);
   return s > 0 ? errS2 / (2 * s) : Math.sqrt(errS2);
 }
 
@@ -328,6 +338,8 @@ function groupStats(model: BuiltModel, sol: GlsSolution, state: FitState, snExtr
       gs.sumChi2 += (r[i] * r[i] + extra) / v[i];
       gs.sumOneMinusH += 1 - h[i];
       gs.sumOneMinusHOverV += (1 - h[i]) / v[i];
+      gs.sumPsi2 += ((r[i] * r[i] + extra) / v[i] - (1 - h[i])) ** 2;
+      gs.sumOneMinusH2 += (1 - h[i]) ** 2;
       gs.n++;
     }
   });
@@ -590,9 +602,10 @@ function withStandardisationCovariance(covGls: ArrayLike<number>, p: number, jac
 /**
  * The scatters' standard errors and g -> the variance their uncertainty adds to g^T q.
  * The scatters' own uncertainty moves q through the weights (first order: d q / d s times
- * err(s)). It is not added to the covariance: at the fitted weights q is stationary to first
- * order in them, and the term is 0.005-0.014 % of the variance of log10 H0 on the demo
- * releases; scatterVariance(g) gives it so that a test can hold that claim.
+ * err(s), the two scatters in quadrature). It is small (0.005-0.014 % of the variance of
+ * log10 H0 on the demo releases: at the fitted weights q is stationary to first order in them)
+ * but it is carried: H0's statistical variance includes it (calibrate.ts) and the budget shows
+ * it as a source of its own ('intrinsic_scatters'). The parameters' covariance does not.
  */
 function scatterUncertainty(
   setup: FitSetup,
@@ -642,6 +655,16 @@ function budgetFunction(model: BuiltModel, sol: GlsSolution, p: number, names: r
       }
     }
     if (names.length) parts.set('sn_standardisation', s);
+    return parts;
+  };
+}
+
+/** The budget with the intrinsic scatters' estimation uncertainty as a source of its own (when not zero). */
+function withScatterUncertainty(budget: (g: ArrayLike<number>) => Map<string, number>, scatterVariance: (g: ArrayLike<number>) => number) {
+  return (g: ArrayLike<number>) => {
+    const parts = budget(g);
+    const sc = scatterVariance(g);
+    if (sc > 0) parts.set('intrinsic_scatters', sc);
     return parts;
   };
 }
@@ -706,7 +729,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
     downweighted,
     fieldStarMu: state.linearisedMu,
     model,
-    budget: budgetFunction(model, sol, p, names, jacobian, covTheta),
+    budget: withScatterUncertainty(budgetFunction(model, sol, p, names, jacobian, covTheta), scatterVariance),
     scatterVariance,
   };
 }

@@ -25,6 +25,12 @@ export interface ParameterResult {
   fixed?: boolean;
   /** true when the value follows from H0 and is hidden by blinding. */
   blinded?: boolean;
+  /**
+   * The intrinsic scatters only: their 68 % interval, [sqrt(s^2 - e), sqrt(s^2 + e)] with e the
+   * standard error of s^2 (the estimator is close to normal in s^2, so the interval in s is
+   * asymmetric; its low end is 0 when s^2 - e < 0). `err` is its half-width to first order.
+   */
+  interval68?: [number, number];
 }
 
 export interface SystemResult {
