@@ -14,6 +14,8 @@ import { calibrateRelease } from '../../src/ladder/calibrate.ts';
 
 export interface Pull {
   name: string;
+  /** For a distance: the system it belongs to (pooled and per-system checks). */
+  system?: string;
   value: number;
   err: number;
   truth: number;
@@ -69,9 +71,9 @@ export function recoverSeed(seed: number, options: RecoverSeedOptions = {}): Pul
     for (const s of r.systems) {
       const t = byId.get(s.id);
       if (!t || t.mu === null) continue;
-      if (s.mu !== null && s.mu_err !== null && s.mu_err > 0) pulls.push({ name: `mu (${t.group})`, value: s.mu, err: s.mu_err, truth: t.mu });
+      if (s.mu !== null && s.mu_err !== null && s.mu_err > 0) pulls.push({ name: `mu (${t.group})`, system: s.id, value: s.mu, err: s.mu_err, truth: t.mu });
       if (s.mu_prior !== null && s.mu_prior_err !== null && s.mu_prior_err > 0) {
-        pulls.push({ name: `mu own rung (${t.group})`, value: s.mu_prior, err: s.mu_prior_err, truth: t.mu });
+        pulls.push({ name: `mu own rung (${t.group})`, system: s.id, value: s.mu_prior, err: s.mu_prior_err, truth: t.mu });
       }
     }
     return pulls;
@@ -91,13 +93,16 @@ export interface PullSummary {
   coverage2: number;
 }
 
-export function summarisePulls(all: Pull[]): PullSummary[] {
+/** Summaries of the pulls grouped by `key` (by default the quantity's name). */
+export function summarisePulls(all: Pull[], key: (p: Pull) => string | null = (p) => p.name): PullSummary[] {
   const groups = new Map<string, number[]>();
   for (const p of all) {
+    const k = key(p);
+    if (k === null) continue;
     const z = (p.value - p.truth) / p.err;
-    const list = groups.get(p.name);
+    const list = groups.get(k);
     if (list) list.push(z);
-    else groups.set(p.name, [z]);
+    else groups.set(k, [z]);
   }
   return [...groups].map(([name, z]) => {
     const n = z.length;
