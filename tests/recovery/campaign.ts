@@ -3,14 +3,18 @@
  * (tests/recovery/verdict.ts): prints every published quantity's pull summary, the pooled
  * distance pulls, the systems whose mean pull is largest, and what misses a bound.
  *
- *   npm run recovery:campaign -- --base 20261205 --seeds 1000 [--workers N] [--blend-fraction F]
+ *   npm run recovery:campaign -- --base 20261205 --seeds 1000 [--workers N] [--blend-fraction F] [--write]
+ *
+ * --write stores the table in content/methods/measured/recovery.json for the method notes
+ * (tests/recovery/measured.ts); the recovery test then checks it against its own run.
  *
  * Exit code 1 when any check misses its bound. Used to repeat the test's campaign on other
  * seed sets, and to measure before/after a change of the engine.
  */
 import { parseArgs } from 'node:util';
 import { defaultWorkers } from '../../src/parallel/pool.ts';
-import { formatSummary, summarisePulls } from './harness.ts';
+import { RECOVERY_BLEND_FRACTION, formatSummary, summarisePulls } from './harness.ts';
+import { MEASURED_FILE, measuredRecovery, writeMeasured } from './measured.ts';
 import { recoverSeeds } from './pool.ts';
 import { distanceFamily, globalFailures, pooledFailures, systemFailures } from './verdict.ts';
 
@@ -20,6 +24,7 @@ const { values } = parseArgs({
     seeds: { type: 'string', default: '1000' },
     workers: { type: 'string' },
     'blend-fraction': { type: 'string' },
+    write: { type: 'boolean', default: false },
   },
 });
 const base = Number(values.base);
@@ -47,4 +52,8 @@ const failures = [
   ...perSystem.flatMap((s) => systemFailures(s).map((f) => `${s.name}: ${f}`)),
 ];
 console.log(failures.length ? `\nverdict: FAIL\n${failures.join('\n')}` : '\nverdict: pass (every check within its bound)');
+if (values.write) {
+  writeMeasured(measuredRecovery(base, count, blend === undefined ? RECOVERY_BLEND_FRACTION : Number(blend), [...summary, ...pooled]));
+  console.log(`wrote ${MEASURED_FILE}`);
+}
 process.exitCode = failures.length ? 1 : 0;

@@ -32,6 +32,8 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { recoverSeeds } from './pool.ts';
 import { formatSummary, summarisePulls, type Pull, type PullSummary } from './harness.ts';
 import { MIN_SEEDS, distanceFamily, globalFailures, pooledFailures, systemFailures } from './verdict.ts';
+import { RECOVERY_BLEND_FRACTION } from './harness.ts';
+import { readMeasured } from './measured.ts';
 
 const SEED_BASE = 20261205;
 const SEED_COUNT = MIN_SEEDS;
@@ -109,6 +111,20 @@ describe(`recovery over ${SEED_COUNT} seeds with blended Cepheids`, () => {
       expect(pooledFailures(s!), family).toEqual([]);
     });
   }
+
+  it('the table the method notes show (content/methods/measured/recovery.json) is exactly this run\'s', () => {
+    const m = readMeasured();
+    const stale = 'the committed table is not what this run measures: run `npm run recovery:campaign -- --write` and commit it';
+    expect(m.seeds, stale).toEqual({ base: SEED_BASE, count: SEED_COUNT });
+    expect(m.blend_fraction, stale).toBe(RECOVERY_BLEND_FRACTION);
+    const measured = [...summary, ...pooled];
+    expect(m.quantities.map((q) => q.name), stale).toEqual(measured.map((q) => q.name));
+    for (const [i, q] of m.quantities.entries()) {
+      const now = measured[i]!;
+      expect(q.n, `${q.name}: ${stale}`).toBe(now.n);
+      for (const k of ['mean', 'sd', 'coverage1', 'coverage2'] as const) expect(Math.abs(q[k] - now[k]), `${q.name} ${k}: ${stale}`).toBeLessThan(1e-12);
+    }
+  });
 
   it('no system has a mean distance pull beyond 0.15 (final and own-rung distances)', () => {
     expect(perSystem.length).toBeGreaterThanOrEqual(14);
