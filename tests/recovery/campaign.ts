@@ -13,10 +13,10 @@
  */
 import { parseArgs } from 'node:util';
 import { defaultWorkers } from '../../src/parallel/pool.ts';
-import { RECOVERY_BLEND_FRACTION, formatSummary, summarisePulls } from './harness.ts';
+import { RECOVERY_BLEND_FRACTION, formatSummary, intervalCoverage, summarisePulls } from './harness.ts';
 import { MEASURED_FILE, measuredRecovery, writeMeasured } from './measured.ts';
 import { recoverSeeds } from './pool.ts';
-import { distanceFamily, globalFailures, pooledFailures, systemFailures } from './verdict.ts';
+import { GLOBAL_BOUNDS, distanceFamily, globalFailures, pooledFailures, systemFailures } from './verdict.ts';
 
 const { values } = parseArgs({
   options: {
@@ -43,6 +43,7 @@ const perSystem = summarisePulls(pulls, (p) => (p.system ? `${p.name} ${p.system
 
 console.log(`seeds ${base}..${base + count - 1} (${count}), ${workers} workers, ${seconds.toFixed(0)} s`);
 console.log(formatSummary([...summary, ...pooled]));
+for (const i of intervalCoverage(pulls)) console.log(`${i.name}: 68 % interval covers the truth in ${(100 * i.coverage).toFixed(1)} % of ${i.n} seeds`);
 console.log('\nlargest per-system mean pulls:');
 console.log(formatSummary(perSystem.slice(0, 6)));
 
@@ -50,6 +51,9 @@ const failures = [
   ...summary.filter((s) => !s.name.startsWith('mu')).flatMap((s) => globalFailures(s).map((f) => `${s.name}: ${f}`)),
   ...pooled.flatMap((s) => pooledFailures(s).map((f) => `${s.name}: ${f}`)),
   ...perSystem.flatMap((s) => systemFailures(s).map((f) => `${s.name}: ${f}`)),
+  ...intervalCoverage(pulls)
+    .filter((i) => i.coverage < GLOBAL_BOUNDS.coverage1[0] || i.coverage > GLOBAL_BOUNDS.coverage1[1])
+    .map((i) => `${i.name}: 68 % interval coverage ${i.coverage.toFixed(3)} (in [${GLOBAL_BOUNDS.coverage1.join(', ')}])`),
 ];
 console.log(failures.length ? `\nverdict: FAIL\n${failures.join('\n')}` : '\nverdict: pass (every check within its bound)');
 if (values.write) {

@@ -16,6 +16,8 @@ export interface Pull {
   name: string;
   /** For a distance: the system it belongs to (pooled and per-system checks). */
   system?: string;
+  /** For the intrinsic scatters: their published 68 % interval (asymmetric). */
+  interval68?: [number, number];
   value: number;
   err: number;
   truth: number;
@@ -64,7 +66,7 @@ export function recoverSeed(seed: number, options: RecoverSeedOptions = {}): Pul
       if (p.fixed) continue;
       const t = trueParameter[name];
       if (t === undefined) throw new Error(`recovery harness: no truth for published parameter ${name}`);
-      pulls.push({ name, value: p.value, err: p.err, truth: t });
+      pulls.push({ name, value: p.value, err: p.err, truth: t, ...(p.interval68 ? { interval68: p.interval68 } : {}) });
     }
     if (r.h0) pulls.push({ name: 'H0', value: r.h0.value, err: r.h0.stat, truth: P.h0KmSMpc });
     const byId = new Map(truth.systems.map((s) => [s.id, s]));
@@ -117,6 +119,17 @@ export function summarisePulls(all: Pull[], key: (p: Pull) => string | null = (p
       coverage2: z.filter((x) => Math.abs(x) <= 2).length / n,
     };
   });
+}
+
+/** For each quantity published with a 68 % interval: how often the interval holds the truth. */
+export function intervalCoverage(all: Pull[]): { name: string; n: number; coverage: number }[] {
+  const groups = new Map<string, boolean[]>();
+  for (const p of all) {
+    if (!p.interval68) continue;
+    const inside = p.truth >= p.interval68[0] && p.truth <= p.interval68[1];
+    groups.set(p.name, [...(groups.get(p.name) ?? []), inside]);
+  }
+  return [...groups].map(([name, c]) => ({ name, n: c.length, coverage: c.filter(Boolean).length / c.length }));
 }
 
 export function formatSummary(summary: PullSummary[]): string {

@@ -30,8 +30,8 @@
 // fails and must be turned into an ordinary one.
 import { beforeAll, describe, expect, it } from 'vitest';
 import { recoverSeeds } from './pool.ts';
-import { formatSummary, summarisePulls, type Pull, type PullSummary } from './harness.ts';
-import { MIN_SEEDS, distanceFamily, globalFailures, pooledFailures, systemFailures } from './verdict.ts';
+import { formatSummary, intervalCoverage, summarisePulls, type Pull, type PullSummary } from './harness.ts';
+import { GLOBAL_BOUNDS, MIN_SEEDS, distanceFamily, globalFailures, pooledFailures, systemFailures } from './verdict.ts';
 import { RECOVERY_BLEND_FRACTION } from './harness.ts';
 import { readMeasured } from './measured.ts';
 
@@ -73,12 +73,14 @@ describe(`recovery over ${SEED_COUNT} seeds with blended Cepheids`, () => {
   let summary: PullSummary[] = [];
   let pooled: PullSummary[] = [];
   let perSystem: PullSummary[] = [];
+  let intervals: ReturnType<typeof intervalCoverage> = [];
 
   beforeAll(async () => {
     const pulls: Pull[] = await recoverSeeds(SEEDS);
     summary = summarisePulls(pulls);
     pooled = summarisePulls(pulls, (p) => distanceFamily(p.name));
     perSystem = summarisePulls(pulls, (p) => (p.system ? `${p.name} ${p.system}` : null));
+    intervals = intervalCoverage(pulls);
     console.log(formatSummary([...summary, ...pooled]));
   }, 1_800_000);
 
@@ -123,6 +125,15 @@ describe(`recovery over ${SEED_COUNT} seeds with blended Cepheids`, () => {
       const now = measured[i]!;
       expect(q.n, `${q.name}: ${stale}`).toBe(now.n);
       for (const k of ['mean', 'sd', 'coverage1', 'coverage2'] as const) expect(Math.abs(q[k] - now[k]), `${q.name} ${k}: ${stale}`).toBeLessThan(1e-12);
+    }
+  });
+
+  it('the intrinsic scatters\' asymmetric 68 % intervals cover the truth in [0.63, 0.73] of the seeds', () => {
+    expect(intervals.map((i) => i.name).sort()).toEqual(['sigma_int_cepheid', 'sigma_int_sn']);
+    for (const i of intervals) {
+      expect(i.n, i.name).toBe(SEED_COUNT);
+      expect(i.coverage, `${i.name}: interval coverage`).toBeGreaterThanOrEqual(GLOBAL_BOUNDS.coverage1[0]);
+      expect(i.coverage, `${i.name}: interval coverage`).toBeLessThanOrEqual(GLOBAL_BOUNDS.coverage1[1]);
     }
   });
 
