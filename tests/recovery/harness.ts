@@ -14,6 +14,10 @@ import { calibrateRelease } from '../../src/ladder/calibrate.ts';
 
 export interface Pull {
   name: string;
+  /** For a distance: the system it belongs to (pooled and per-system checks). */
+  system?: string;
+  /** For the intrinsic scatters: their published 68 % interval (asymmetric). */
+  interval68?: [number, number];
   value: number;
   err: number;
   truth: number;
@@ -62,16 +66,16 @@ export function recoverSeed(seed: number, options: RecoverSeedOptions = {}): Pul
       if (p.fixed) continue;
       const t = trueParameter[name];
       if (t === undefined) throw new Error(`recovery harness: no truth for published parameter ${name}`);
-      pulls.push({ name, value: p.value, err: p.err, truth: t });
+      pulls.push({ name, value: p.value, err: p.err, truth: t, ...(p.interval68 ? { interval68: p.interval68 } : {}) });
     }
     if (r.h0) pulls.push({ name: 'H0', value: r.h0.value, err: r.h0.stat, truth: P.h0KmSMpc });
     const byId = new Map(truth.systems.map((s) => [s.id, s]));
     for (const s of r.systems) {
       const t = byId.get(s.id);
       if (!t || t.mu === null) continue;
-      if (s.mu !== null && s.mu_err !== null && s.mu_err > 0) pulls.push({ name: `mu (${t.group})`, value: s.mu, err: s.mu_err, truth: t.mu });
+      if (s.mu !== null && s.mu_err !== null && s.mu_err > 0) pulls.push({ name: `mu (${t.group})`, system: s.id, value: s.mu, err: s.mu_err, truth: t.mu });
       if (s.mu_prior !== null && s.mu_prior_err !== null && s.mu_prior_err > 0) {
-        pulls.push({ name: `mu own rung (${t.group})`, value: s.mu_prior, err: s.mu_prior_err, truth: t.mu });
+        pulls.push({ name: `mu own rung (${t.group})`, system: s.id, value: s.mu_prior, err: s.mu_prior_err, truth: t.mu });
       }
     }
     return pulls;
@@ -91,13 +95,16 @@ export interface PullSummary {
   coverage2: number;
 }
 
-export function summarisePulls(all: Pull[]): PullSummary[] {
+/** Summaries of the pulls grouped by `key` (by default the quantity's name). */
+export function summarisePulls(all: Pull[], key: (p: Pull) => string | null = (p) => p.name): PullSummary[] {
   const groups = new Map<string, number[]>();
   for (const p of all) {
+    const k = key(p);
+    if (k === null) continue;
     const z = (p.value - p.truth) / p.err;
-    const list = groups.get(p.name);
+    const list = groups.get(k);
     if (list) list.push(z);
-    else groups.set(p.name, [z]);
+    else groups.set(k, [z]);
   }
   return [...groups].map(([name, z]) => {
     const n = z.length;
@@ -112,6 +119,17 @@ export function summarisePulls(all: Pull[]): PullSummary[] {
       coverage2: z.filter((x) => Math.abs(x) <= 2).length / n,
     };
   });
+}
+
+/** For each quantity published with a 68 % interval: how often the interval holds the truth. */
+export function intervalCoverage(all: Pull[]): { name: string; n: number; coverage: number }[] {
+  const groups = new Map<string, boolean[]>();
+  for (const p of all) {
+    if (!p.interval68) continue;
+    const inside = p.truth >= p.interval68[0] && p.truth <= p.interval68[1];
+    groups.set(p.name, [...(groups.get(p.name) ?? []), inside]);
+  }
+  return [...groups].map(([name, c]) => ({ name, n: c.length, coverage: c.filter(Boolean).length / c.length }));
 }
 
 export function formatSummary(summary: PullSummary[]): string {
