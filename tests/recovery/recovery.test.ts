@@ -50,7 +50,7 @@ const bounds = (n: number) => ({
 });
 
 /** Every quantity the generated releases publish with an error (the test also checks no other appears). */
-const PARAMETERS = ['H0', 'M_W', 'b_W', 'Z_W', 'M_B', 'a_B', 'delta_M_host', 'alpha', 'beta', 'sigma_int_cepheid', 'sigma_int_sn', 'parallax_zero_point'];
+const PARAMETERS = ['H0', 'M_W', 'b_W', 'Z_W', 'M_B', 'a_B', 'delta_M_host', 'alpha', 'beta', 'sigma_int_sn', 'parallax_zero_point'];
 const DISTANCES = [
   'mu (anchor)',
   'mu own rung (anchor)',
@@ -62,12 +62,18 @@ const DISTANCES = [
 ];
 
 /**
- * Known failures, excused by name with their measured numbers: none. (Until the main-sequence rung
+ * Known failures, excused by name with their measured numbers and the reason. (Until the main-sequence rung
  * was reworked, issue 13 item 6, the own-rung distances of main-sequence targets had SD 0.69 and
- * the nearby galaxy's mean -0.30 over these 300 seeds; after it: SD 0.88, mean -0.06, and 0.95,
+ * the nearby galaxy's mean -0.30 over the 300 seeds of the earlier set; after it: SD 0.88, mean -0.06, and 0.95,
  * +0.07, within the bounds.) A quantity that fails goes here with its numbers and its reason.
  */
-const KNOWN_FAILING: Record<string, string> = {};
+const KNOWN_FAILING: Record<string, string> = {
+  sigma_int_cepheid:
+    'its error is about 10 % small: over these 1000 seeds mean pull +0.008, SD 1.098, 1-sigma coverage 0.634, ' +
+    '2-sigma 0.927 (SD and 2-sigma outside the bounds); without blends, 400 seeds: SD 1.063 +- 0.038, mean -0.15 +- 0.05. ' +
+    'The moment estimator\'s Gaussian-theory spread leaves out the uncertainty of the blend memberships and of the ' +
+    'leverage correction; a fourth-moment sandwich made it worse (SD 1.16) and was not kept',
+};
 
 describe(`recovery over ${SEED_COUNT} seeds with blended Cepheids`, () => {
   let summary: PullSummary[] = [];
@@ -156,7 +162,7 @@ describe(`recovery over ${SEED_COUNT} seeds with blended Cepheids`, () => {
     it.fails(`${name}: known to fail (${reason})`, () => {
       const s = summary.find((x) => x.name === name);
       expect(s, `no pulls for ${name}`).toBeDefined();
-      check(s!);
+      expect(globalFailures(s!), name).toEqual([]);
     });
   }
 });
