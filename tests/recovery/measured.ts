@@ -5,7 +5,8 @@
  * hand; the recovery test fails when the committed table differs from what it measures, so a
  * note can never quote a table the current engine does not produce.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { PullSummary } from './harness.ts';
 
@@ -32,6 +33,7 @@ export function measuredRecovery(base: number, count: number, blendFraction: num
 }
 
 export function writeMeasured(m: MeasuredRecovery): void {
+  mkdirSync(dirname(MEASURED_FILE), { recursive: true });
   writeFileSync(MEASURED_FILE, `${JSON.stringify(m, null, 2)}\n`);
 }
 
