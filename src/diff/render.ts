@@ -6,7 +6,7 @@
 import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';
 import type { AttributionEntry, ColumnSummary, DiffReport, ObjectInfluence, ParameterShift, SystemShift, TableChange } from './types.ts';
-import { objectLink, systemPagePath } from '../layout/anchors.ts';
+import { objectLink, systemPagePath } from '../layout/routes.ts';
 
 /** Changed cells listed in text output (all of them are in the JSON). */
 export const TEXT_CELLS_MAX = 25;

@@ -8,7 +8,7 @@
  * While a release is blinded the comparison has already withheld what must not
  * be shown (src/diff/blinding.ts); this module only marks what remains.
  */
-import { objectLink, systemPagePath } from '../../layout/anchors.ts';
+import { objectLink, systemPagePath } from '../../layout/routes.ts';
 import { rankedContributions, renderMarkdown, tableLine, unitSuffix } from '../../diff/render.ts';
 import { tableTouched } from '../../diff/inputs.ts';
 import type { DiffReport, ParameterShift, Shift, SystemShift } from '../../diff/types.ts';
