@@ -28,6 +28,8 @@ import { RELEASE_FIGURES } from './figures/index.ts';
 import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, type ReleaseFigure, removeRelease } from './generate.ts';
 import { calibrationCodeHash, comparisonCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
 import { LOO_SCHEMA, type LeaveOneOut, type LooOutcome } from './leaveOneOut.ts';
+import { z } from 'zod';
+import { GENERATED_MARK, releaseSummarySchema } from '../layout/pageSchema.ts';
 import { REQUIRED_NOTES } from './pageData.ts';
 import { RELEASE_ID_PATTERN, releasePagePath } from '../layout/routes.ts';
 import { buildSettings, REPO_ROOT, type BuildSettings, type BuildSettingsGiven } from './settings.ts';
@@ -269,6 +271,9 @@ async function compareCached(
   return { report: value, cached };
 }
 
+/** The stamp file of a release's generated files: what they were made from, and the release's entry for the home page. */
+const STAMP_SCHEMA = z.object({ generated: z.literal(GENERATED_MARK), stamp: z.string(), summary: releaseSummarySchema }).strict();
+
 /** Keep a release's generated files when what they were made from is unchanged. */
 async function generateReleaseCached(
   layout: GenLayout,
@@ -300,9 +305,10 @@ async function generateReleaseCached(
   const old = await readIfExists(stampFile);
   if (old !== null) {
     try {
-      const parsed = JSON.parse(old) as { stamp: string; summary: ReleaseSummary };
+      // A stamp of another shape (older code, a damaged file) means: regenerate.
+      const parsed = STAMP_SCHEMA.safeParse(JSON.parse(old));
       const dataFile = join(layout.dataDir, 'releases', `${id}.json`);
-      if (parsed.stamp === stamp && (await readIfExists(dataFile)) !== null) return { summary: parsed.summary, regenerated: false };
+      if (parsed.success && parsed.data.stamp === stamp && (await readIfExists(dataFile)) !== null) return { summary: parsed.data.summary, regenerated: false };
     } catch {
       // regenerate
     }
