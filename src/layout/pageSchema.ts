@@ -1,9 +1,10 @@
 /**
  * The data contract between src/report (which writes it) and site/ (which lays it out), as strict
  * zod schemas: the TypeScript types of the page data are derived from them (z.infer), the page
- * builder checks every file it writes against them (src/report/pageFiles.ts), and the site's
- * content collections (site/content.config.ts) load the files with the same schemas. A field that
- * one side adds and the other does not know is refused (`.strict()`), so the two cannot drift.
+ * builder checks every file it writes against them (writePageData, src/report/generate.ts), and
+ * the site's content collections (site/content.config.ts) load the files with the same schemas.
+ * A field that one side adds and the other does not know is refused (`.strict()`, at every
+ * level), so the two cannot drift.
  *
  * It lives in src/layout/ (the report's layout: names, routes, page data) because both sides may
  * import it: it knows no physics (everything arrives formatted, numbers as strings with their

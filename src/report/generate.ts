@@ -9,6 +9,8 @@
  *   <gen>/data/systems/<id>/<system>.json                       data of a release's system pages
  *   <gen>/prose/<id>/summary.json, notes.json                   generated prose: sanitised HTML as data (prose.ts)
  *
+ * The public paths are the report's routes (src/layout/routes.ts); the JSON files the site
+ * loads are checked against their schemas before they are written (writePageData).
  * Every text file starts with the generated mark (JSON: as its first key; CSV and
  * ECSV downloads excepted, where a comment line would break the format's readers).
  */
