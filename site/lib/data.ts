@@ -3,19 +3,32 @@
  * with clear errors when something the page needs is missing.
  */
 import { getCollection, getEntry } from 'astro:content';
-import type { ReleaseData, SiteData, SystemPageView } from '../../src/report/types.ts';
+import type { ReleaseData, SiteData, SystemPageFile } from '../../src/layout/pageSchema.ts';
 
-export type { FigureRef, ReleaseData, RungData, SiteData, TableView, KeyValue, PublishedView, SystemPageView, HistoryView } from '../../src/report/types.ts';
+export type {
+  FigureRef,
+  Headline,
+  KeyValue,
+  PageLink,
+  PublishedView,
+  ReleaseData,
+  RungData,
+  SiteData,
+  SystemPageFile,
+  SystemPageView,
+  TableView,
+  HistoryView,
+} from '../../src/layout/pageSchema.ts';
 
 export async function allReleases(): Promise<ReleaseData[]> {
   const entries = await getCollection('releases');
-  return entries.map((e) => e.data as unknown as ReleaseData).sort((a, b) => a.id.localeCompare(b.id));
+  return entries.map((e) => e.data).sort((a, b) => a.id.localeCompare(b.id));
 }
 
 export async function siteData(): Promise<SiteData> {
   const entry = await getEntry('site', 'site');
   if (!entry) throw new Error('rungbook: generated site data (data/site.json) is missing; run `rungbook build`, not `astro build` alone, on a clean checkout.');
-  return entry.data as unknown as SiteData;
+  return entry.data;
 }
 
 /** The authored method note with this id (file content/methods/<id>.md); the build stops without it. */
@@ -34,7 +47,7 @@ export async function proseEntry(id: string) {
 }
 
 /** Every system page of every release. */
-export async function allSystemPages(): Promise<SystemPageView[]> {
+export async function allSystemPages(): Promise<SystemPageFile[]> {
   const entries = await getCollection('systems');
-  return entries.map((e) => e.data as unknown as SystemPageView).sort((a, b) => a.release.localeCompare(b.release) || a.segment.localeCompare(b.segment));
+  return entries.map((e) => e.data).sort((a, b) => a.release.localeCompare(b.release) || a.segment.localeCompare(b.segment));
 }
