@@ -4,7 +4,7 @@
 // sanitised HTML inside JSON, figure files). Nothing generated is MDX: no text of a
 // data release can reach a compiler (DEVELOPERS.md, "Data never becomes code"). The MDX
 // integration is for authored, trusted prose only. Where those generated files live, and where the site is
-// hosted, are the build's settings (src/report/settings.ts): `rungbook build` passes them to
+// hosted, are the build's settings (src/layout/settings.ts): `rungbook build` passes them to
 // the Astro process in the environment, and a plain `npx astro build` takes them from the
 // environment or the defaults, through the same function:
 //
@@ -21,7 +21,7 @@ import mdx from '@astrojs/mdx';
 import remarkMath from 'remark-math';
 import rehypeKatex from 'rehype-katex';
 import { join } from 'node:path';
-import { buildSettings } from './src/report/settings.ts';
+import { buildSettings } from './src/layout/settings.ts';
 
 // Astro has no opt-out in the config file itself; the environment variable is read by its telemetry module.
 process.env.ASTRO_TELEMETRY_DISABLED = '1';

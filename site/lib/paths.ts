@@ -1,7 +1,7 @@
 /**
  * Where the generated files and the method notes are: the build's settings
- * (src/report/settings.ts), which `rungbook build` hands to the Astro process.
+ * (src/layout/settings.ts), which `rungbook build` hands to the Astro process.
  */
-import { buildSettings } from '../../src/report/settings.ts';
+import { buildSettings } from '../../src/layout/settings.ts';
 
 export const { genDir, methodsDir } = buildSettings({}, process.env);

@@ -4,7 +4,7 @@
  * routes.ts.
  */
 import { absoluteUrl, withBase } from '../../src/layout/routes.ts';
-import { DEFAULT_SITE } from '../../src/report/settings.ts';
+import { DEFAULT_SITE } from '../../src/layout/settings.ts';
 
 export function href(path: string): string {
   return withBase(import.meta.env.BASE_URL, path);

@@ -118,8 +118,8 @@ export async function runBuild(args: readonly string[], io: BuildIo): Promise<nu
   try {
     const calibrate = io.calibrate ?? (await defaultCalibrate());
     const { buildReport } = await import('../report/build.ts');
-    // The build's settings, read once: options over the environment over the defaults (src/report/settings.ts).
-    const { buildSettings } = await import('../report/settings.ts');
+    // The build's settings, read once: options over the environment over the defaults (src/layout/settings.ts).
+    const { buildSettings } = await import('../layout/settings.ts');
     const settings = buildSettings({ releasesDir: parsed.releases, outDir: parsed.out, base: parsed.base, site: parsed.site }, env);
     const summary = await buildReport({
       releasesDir: settings.releasesDir,

@@ -8,7 +8,7 @@
  */
 import { compareReleaseDirs } from '../diff/compare.ts';
 import { renderMarkdown, renderText } from '../diff/render.ts';
-import { DEFAULT_SITE } from '../report/settings.ts';
+import { DEFAULT_SITE } from '../layout/settings.ts';
 import { parseArgs, UsageError, type CliIO } from './output.ts';
 
 export const DIFF_USAGE =

@@ -20,7 +20,7 @@ import { cp, mkdir, rename, rm, stat } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { acquireLock } from './lock.ts';
-import { settingsEnv, type BuildSettings } from './settings.ts';
+import { settingsEnv, type BuildSettings } from '../layout/settings.ts';
 
 /** Checks on the finished site before it replaces the previous one; throws to reject it. */
 export type VerifySite = (dir: string) => Promise<void>;
@@ -39,7 +39,7 @@ interface AstroRun {
   root: string;
   /** Astro writes here (a folder inside the repository; see above). */
   outDir: string;
-  /** The environment that carries the build's settings to astro.config.mjs and site/ (src/report/settings.ts). */
+  /** The environment that carries the build's settings to astro.config.mjs and site/ (src/layout/settings.ts). */
   env: Record<string, string>;
 }
 

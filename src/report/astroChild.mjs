@@ -4,7 +4,7 @@
 // the calling process (the command line, a test runner building many sites) is left as it was.
 // argv[2] is JSON with the repository (root) and the folder Astro writes into (outDir); every
 // other setting (base path, site, generated files, method notes, cache) arrives in the
-// environment, where astro.config.mjs and site/ read it with src/report/settings.ts.
+// environment, where astro.config.mjs and site/ read it with src/layout/settings.ts.
 // Exit code 0 when the site was written, 1 with the error on stderr.
 import { build } from 'astro';
 

@@ -32,7 +32,7 @@ import { z } from 'zod';
 import { GENERATED_MARK, releaseSummarySchema } from '../layout/pageSchema.ts';
 import { REQUIRED_NOTES } from './pageData.ts';
 import { RELEASE_ID_PATTERN, releasePagePath } from '../layout/routes.ts';
-import { buildSettings, REPO_ROOT, type BuildSettings, type BuildSettingsGiven } from './settings.ts';
+import { buildSettings, REPO_ROOT, type BuildSettings, type BuildSettingsGiven } from '../layout/settings.ts';
 import { systemHistory, type SystemHistory } from './systems.ts';
 import { createProgress } from './progress.ts';
 import { publishedView } from './published.ts';
@@ -43,7 +43,7 @@ import { beginWork, type WorkState } from './workState.ts';
 
 export { REPO_ROOT };
 
-/** The build's settings as given (src/report/settings.ts; the environment is not read here), and its parts. */
+/** The build's settings as given (src/layout/settings.ts; the environment is not read here), and its parts. */
 export interface BuildReportOptions extends BuildSettingsGiven {
   releasesDir: string;
   outDir: string;

@@ -12,7 +12,7 @@
  * one the content collections use; a field the schema does not know is refused, by the page
  * builder before it writes and by the schema the site loads with; the site casts no page data.
  *
- * Settings: one function resolves them (src/report/settings.ts), and the environment handed to
+ * Settings: one function resolves them (src/layout/settings.ts), and the environment handed to
  * the Astro process gives the same settings back.
  */
 import { readdirSync, readFileSync, statSync } from 'node:fs';
@@ -49,7 +49,7 @@ import { GENERATED_MARK, proseFileSchema, releaseDataSchema, siteDataSchema, sys
 import { genLayout, writePageData } from '../../src/report/generate.ts';
 import { releasePages, RUNG_PAGES } from '../../src/report/pageData.ts';
 import { recoveryPage } from '../../src/report/recovery.ts';
-import { buildSettings, DEFAULT_SITE, REPO_ROOT, settingsEnv } from '../../src/report/settings.ts';
+import { buildSettings, DEFAULT_SITE, REPO_ROOT, settingsEnv } from '../../src/layout/settings.ts';
 import { buildFixture, FIXTURE_IDS, type FixtureBuild } from './fixtureBuild.ts';
 
 // site/content.config.ts is loaded as it is; Astro's virtual module and its loader helper are stood in for.

@@ -14,7 +14,7 @@
  */
 import { isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { normaliseBase } from '../layout/routes.ts';
+import { normaliseBase } from './routes.ts';
 
 /** The repository (Astro's root; default folders live under it). */
 export const REPO_ROOT = fileURLToPath(new URL('../../', import.meta.url));
