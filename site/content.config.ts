@@ -19,7 +19,7 @@ import { defineCollection, z } from 'astro:content';
 import { glob } from 'astro/loaders';
 import { pathToFileURL } from 'node:url';
 import { proseFileSchema, releaseDataSchema, siteDataSchema, systemPageFileSchema } from '../src/layout/pageSchema.ts';
-import { genDir, methodsDir } from './lib/paths.ts';
+import { genDir, guideDir, methodsDir } from './lib/paths.ts';
 
 const dirUrl = (dir: string) => pathToFileURL(dir.endsWith('/') ? dir : `${dir}/`);
 
@@ -59,4 +59,10 @@ const methods = defineCollection({
   }),
 });
 
-export const collections = { releases, site, prose, methods, systems };
+// Authored guide pages for users (content/guide): the input contract, shown with its generated tables.
+const guide = defineCollection({
+  loader: glob({ pattern: '*.md', base: dirUrl(guideDir), generateId: ({ entry }) => entry.replace(/\.md$/, '') }),
+  schema: z.object({ title: z.string(), summary: z.string() }).strict(),
+});
+
+export const collections = { releases, site, prose, methods, systems, guide };

@@ -40,6 +40,13 @@ export async function methodNote(id: string) {
   return entry;
 }
 
+/** The authored guide page with this id (file content/guide/<id>.md). */
+export async function guidePage(id: string) {
+  const entry = await getEntry('guide', id);
+  if (!entry) throw new Error(`rungbook: guide page "${id}" is missing: expected content/guide/${id}.md with frontmatter title and summary.`);
+  return entry;
+}
+
 export async function proseEntry(id: string) {
   const entry = await getEntry('prose', id);
   if (!entry) throw new Error(`rungbook: generated prose "${id}" is missing from the build folder.`);

@@ -4,4 +4,4 @@
  */
 import { buildSettings } from '../../src/layout/settings.ts';
 
-export const { genDir, methodsDir } = buildSettings({}, process.env);
+export const { genDir, methodsDir, guideDir } = buildSettings({}, process.env);

@@ -365,6 +365,8 @@ export const siteDataSchema = z
     history: figureRefSchema.nullable(),
     /** Every ladder parameter across releases (absent in data written before it). */
     parameterHistory: historyViewSchema.nullable().optional(),
+    /** The input contract's tables for the format page, from the registries (src/report/guide.ts). */
+    inputFormat: z.array(tableViewSchema).optional(),
   })
   .strict();
 export type SiteData = z.infer<typeof siteDataSchema>;

@@ -23,6 +23,7 @@ export const PAGE_ROUTES = {
   releases: 'releases/',
   latest: 'latest/',
   history: 'history/',
+  inputFormat: 'guide/input-format/',
   siteFigure: 'figures/[figure]/',
   release: 'releases/[id]/',
   rung: 'releases/[id]/[rung]/',
@@ -61,6 +62,7 @@ export const homePath = (): string => PAGE_ROUTES.home;
 export const releasesPath = (): string => PAGE_ROUTES.releases;
 export const latestPath = (): string => PAGE_ROUTES.latest;
 export const historyPath = (): string => PAGE_ROUTES.history;
+export const inputFormatPath = (): string => PAGE_ROUTES.inputFormat;
 /** Folder of the report-wide figures' files (figures/<figure>.svg|png|csv); each has its page figures/<figure>/. */
 export const siteFiguresFolder = (): string => 'figures/';
 

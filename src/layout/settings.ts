@@ -29,6 +29,7 @@ export const SETTINGS_ENV = {
   outDir: 'RUNGBOOK_OUT_DIR',
   genDir: 'RUNGBOOK_GEN_DIR',
   methodsDir: 'RUNGBOOK_METHODS_DIR',
+  guideDir: 'RUNGBOOK_GUIDE_DIR',
 } as const;
 
 export interface BuildSettings {
@@ -48,6 +49,8 @@ export interface BuildSettings {
   cacheDir: string | null;
   /** Authored method notes. */
   methodsDir: string;
+  /** Authored guide pages (the input contract), published with the report. */
+  guideDir: string;
   /** Path prefix on the server, in its one normal form "/a/b/" (src/layout/routes.ts). */
   base: string;
   /** Origin of the server, for absolute links (figure previews, the messages to paste). */
@@ -62,6 +65,7 @@ export interface BuildSettingsGiven {
   /** null: no cache. */
   cacheDir?: string | null;
   methodsDir?: string;
+  guideDir?: string;
   base?: string;
   site?: string;
 }
@@ -83,6 +87,7 @@ export function buildSettings(given: BuildSettingsGiven = {}, env: Env = {}): Bu
     astroCacheDir: join(genDir, '..', 'astro-cache'),
     cacheDir: given.cacheDir === null ? null : abs(given.cacheDir ?? join(REPO_ROOT, '.cache', 'results')),
     methodsDir: abs(pick(given.methodsDir, 'methodsDir') ?? join(REPO_ROOT, 'content', 'methods')),
+    guideDir: abs(pick(given.guideDir, 'guideDir') ?? join(REPO_ROOT, 'content', 'guide')),
     base: normaliseBase(pick(given.base, 'base')),
     site: pick(given.site, 'site') ?? DEFAULT_SITE,
   };
@@ -96,5 +101,6 @@ export function settingsEnv(s: BuildSettings): Record<string, string> {
     [SETTINGS_ENV.outDir]: s.outDir,
     [SETTINGS_ENV.genDir]: s.genDir,
     [SETTINGS_ENV.methodsDir]: s.methodsDir,
+    [SETTINGS_ENV.guideDir]: s.guideDir,
   };
 }

@@ -25,6 +25,7 @@ import { h0History, RELEASE_FIGURES, type FigureSpec } from './figures/index.ts'
 import { leaveOneOutFigure } from './figures/leaveOneOut.ts';
 import { systemCmd, systemPlResiduals, systemSnCalibrators } from './figures/systemFigures.ts';
 import { parameterHistory } from './history.ts';
+import { inputFormatTables } from './guide.ts';
 import type { LeaveOneOut } from './leaveOneOut.ts';
 import { type SystemHistory, systemPages, systemsIndex } from './systems.ts';
 import { headline, releaseData } from './pageData.ts';
@@ -296,7 +297,7 @@ export async function generateSite(layout: GenLayout, all: readonly Results[], s
   const spec = h0History(all);
   const history = spec ? await writeFigure(layout, siteFiguresFolder(), spec) : null;
   const releases = newestFirst(summaries);
-  const site: SiteData = { generated: GENERATED_MARK, releases, latest: releases[0]?.id ?? null, history, parameterHistory: parameterHistory(all) };
+  const site: SiteData = { generated: GENERATED_MARK, releases, latest: releases[0]?.id ?? null, history, parameterHistory: parameterHistory(all), inputFormat: inputFormatTables() };
   const { generated: _mark, ...rest } = site;
   await writePageData(layout, join('data', 'site.json'), siteDataSchema, rest);
   return site;
