@@ -4,8 +4,9 @@
 // sanitised HTML inside JSON, figure files). Nothing generated is MDX: no text of a
 // data release can reach a compiler (DEVELOPERS.md, "Data never becomes code"). The MDX
 // integration is for authored, trusted prose only. Where those generated files live, and where the site is
-// hosted, come from the environment so that `rungbook build` (src/cli/build.ts)
-// and a plain `npx astro build` agree:
+// hosted, are the build's settings (src/layout/settings.ts): `rungbook build` passes them to
+// the Astro process in the environment, and a plain `npx astro build` takes them from the
+// environment or the defaults, through the same function:
 //
 //   RUNGBOOK_GEN_DIR   folder written by src/report (default .build/gen)
 //   RUNGBOOK_METHODS_DIR  authored method notes (default content/methods)
@@ -19,24 +20,13 @@ import { defineConfig } from 'astro/config';
 import mdx from '@astrojs/mdx';
 import remarkMath from 'remark-math';
 import rehypeKatex from 'rehype-katex';
-import { fileURLToPath } from 'node:url';
-import { resolve } from 'node:path';
+import { join } from 'node:path';
+import { buildSettings } from './src/layout/settings.ts';
 
 // Astro has no opt-out in the config file itself; the environment variable is read by its telemetry module.
 process.env.ASTRO_TELEMETRY_DISABLED = '1';
 
-const root = fileURLToPath(new URL('.', import.meta.url));
-const genDir = resolve(root, process.env.RUNGBOOK_GEN_DIR ?? '.build/gen');
-const methodsDir = resolve(root, process.env.RUNGBOOK_METHODS_DIR ?? 'content/methods');
-// Absolute paths for site/content.config.ts and the components, which run in this process.
-process.env.RUNGBOOK_GEN_DIR = genDir;
-process.env.RUNGBOOK_METHODS_DIR = methodsDir;
-
-/** Normalise a base path to the form Astro expects with trailingSlash 'always': "/a/b/". */
-function normaliseBase(base) {
-  const trimmed = (base ?? '/').trim().replace(/^\/+|\/+$/g, '');
-  return trimmed === '' ? '/' : `/${trimmed}/`;
-}
+const settings = buildSettings({}, process.env);
 
 /**
  * A display formula wider than the screen scrolls sideways (report.css); a scrolling region must
@@ -57,13 +47,13 @@ function focusableDisplayMath() {
 }
 
 export default defineConfig({
-  root,
+  root: settings.root,
   srcDir: './site',
-  publicDir: resolve(genDir, 'public'),
-  outDir: resolve(root, process.env.RUNGBOOK_OUT_DIR ?? 'dist'),
-  cacheDir: resolve(genDir, '..', 'astro-cache'),
-  base: normaliseBase(process.env.RUNGBOOK_BASE),
-  site: process.env.RUNGBOOK_SITE ?? 'http://localhost/',
+  publicDir: join(settings.genDir, 'public'),
+  outDir: settings.outDir,
+  cacheDir: settings.astroCacheDir,
+  base: settings.base,
+  site: settings.site,
   trailingSlash: 'always',
   build: { format: 'directory', inlineStylesheets: 'never' },
   devToolbar: { enabled: false },

@@ -83,7 +83,8 @@ function aptInstall(debianPackages, why) {
 }
 
 // 1. npm dependencies (the Python path is cached inside node_modules, so this comes first).
-if (!existsSync(join(ROOT, 'node_modules', '.bin', 'vitest'))) {
+// (@astrojs/check: `astro check` of site/, run by npm test after tsc; a checkout installed before it was added lacks it.)
+if (!existsSync(join(ROOT, 'node_modules', '.bin', 'vitest')) || !existsSync(join(ROOT, 'node_modules', '@astrojs', 'check'))) {
   run('npm', ['ci']);
 }
 

@@ -1,6 +1,7 @@
 /**
- * Where the generated files and the method notes are. astro.config.mjs sets
- * both variables to absolute paths before any page runs.
+ * Where the generated files and the method notes are: the build's settings
+ * (src/layout/settings.ts), which `rungbook build` hands to the Astro process.
  */
-export const genDir: string = process.env.RUNGBOOK_GEN_DIR ?? `${process.cwd()}/.build/gen`;
-export const methodsDir: string = process.env.RUNGBOOK_METHODS_DIR ?? `${process.cwd()}/content/methods`;
+import { buildSettings } from '../../src/layout/settings.ts';
+
+export const { genDir, methodsDir, guideDir } = buildSettings({}, process.env);

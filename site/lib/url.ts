@@ -1,16 +1,16 @@
 /**
- * Links inside the site. Paths in the generated data are relative to the site
- * root; the base path (which ends with "/", see trailingSlash 'always') is added
- * here, once.
+ * Links inside the site. Paths come from src/layout/routes.ts (site-relative, no leading slash);
+ * the base path Astro was configured with is added here, with the one normalisation of
+ * routes.ts.
  */
+import { absoluteUrl, withBase } from '../../src/layout/routes.ts';
+import { DEFAULT_SITE } from '../../src/layout/settings.ts';
+
 export function href(path: string): string {
-  const base = import.meta.env.BASE_URL;
-  const b = base.endsWith('/') ? base : `${base}/`;
-  return `${b}${path.replace(/^\/+/, '')}`;
+  return withBase(import.meta.env.BASE_URL, path);
 }
 
 /** Absolute URL (for preview tags), from the configured site origin and the base path. */
 export function absolute(path: string, site: URL | undefined): string {
-  const origin = site ?? new URL('http://localhost/');
-  return new URL(href(path), origin).href;
+  return absoluteUrl(site ?? DEFAULT_SITE, import.meta.env.BASE_URL, path);
 }

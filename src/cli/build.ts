@@ -118,11 +118,14 @@ export async function runBuild(args: readonly string[], io: BuildIo): Promise<nu
   try {
     const calibrate = io.calibrate ?? (await defaultCalibrate());
     const { buildReport } = await import('../report/build.ts');
+    // The build's settings, read once: options over the environment over the defaults (src/layout/settings.ts).
+    const { buildSettings } = await import('../layout/settings.ts');
+    const settings = buildSettings({ releasesDir: parsed.releases, outDir: parsed.out, base: parsed.base, site: parsed.site }, env);
     const summary = await buildReport({
-      releasesDir: resolve(parsed.releases),
-      outDir: resolve(parsed.out),
-      base: parsed.base ?? env.RUNGBOOK_BASE,
-      site: parsed.site ?? env.RUNGBOOK_SITE,
+      releasesDir: settings.releasesDir,
+      outDir: settings.outDir,
+      base: settings.base,
+      site: settings.site,
       progress,
       progressStream: { write: (s: string) => io.stderr(s) },
       calibrate,

@@ -8,6 +8,7 @@
  */
 import { compareReleaseDirs } from '../diff/compare.ts';
 import { renderMarkdown, renderText } from '../diff/render.ts';
+import { DEFAULT_SITE } from '../layout/settings.ts';
 import { parseArgs, UsageError, type CliIO } from './output.ts';
 
 export const DIFF_USAGE =
@@ -17,7 +18,7 @@ const FORMATS = ['text', 'markdown', 'json'] as const;
 type Format = (typeof FORMATS)[number];
 
 /** Where the report is published when nothing is configured (the same default as `rungbook build`). */
-export const DEFAULT_SITE = 'http://localhost/';
+export { DEFAULT_SITE };
 
 export interface DiffIO extends CliIO {
   env?: Record<string, string | undefined>;

@@ -1,9 +1,10 @@
 /**
  * Absolute links of a comparison, for the message to paste: the comparison page of release b
  * and its figures, built from the site origin and base path the report is published under
- * (the same --site/--base, RUNGBOOK_SITE/RUNGBOOK_BASE as `rungbook build`). Page paths follow
- * the report's layout: releases/<id>/compare/ and releases/<id>/figures/<figure>.png.
+ * (the same --site/--base, RUNGBOOK_SITE/RUNGBOOK_BASE as `rungbook build`). The paths are the
+ * report's own (src/layout/routes.ts): its comparison page and its figures' PNG files.
  */
+import { absoluteUrl, figureFilePath, releaseFiguresFolder, releasePagePath } from '../layout/routes.ts';
 import type { DiffLinks, DiffReport } from './types.ts';
 
 /** Figures of the comparison page; files releases/<b>/figures/compare-<id>.png. */
@@ -15,19 +16,11 @@ export function compareFigureId(figure: CompareFigure): string {
   return `compare-${figure}`;
 }
 
-/** "/a/b/" form of a base path (as the report's build normalises it). */
-export function normaliseBasePath(base: string | undefined): string {
-  const trimmed = (base ?? '/').trim().replace(/^\/+|\/+$/g, '');
-  return trimmed === '' ? '/' : `/${trimmed}/`;
-}
-
 export function buildLinks(site: string, base: string | undefined, a: string, b: string, previousOfB: string | null): DiffLinks {
-  const root = normaliseBasePath(base);
-  const at = (path: string) => new URL(`${root}${path}`, site).href;
-  const rel = `releases/${encodeURIComponent(b)}/`;
+  const at = (path: string) => absoluteUrl(site, base, path);
   return {
-    page: at(`${rel}compare/`),
-    figures: Object.fromEntries(COMPARE_FIGURES.map((f) => [f, at(`${rel}figures/${compareFigureId(f)}.png`)])),
+    page: at(releasePagePath(b, 'compare')),
+    figures: Object.fromEntries(COMPARE_FIGURES.map((f) => [f, at(figureFilePath(releaseFiguresFolder(b), compareFigureId(f), 'png'))])),
     matches_report: previousOfB === a,
   };
 }

@@ -8,7 +8,7 @@
 import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';
 import type { ColumnSummary, DiffReport, ObjectInfluence, ParameterShift, SystemShift, TableChange } from './types.ts';
-import { objectLink, systemPagePath } from '../layout/anchors.ts';
+import { objectLink, systemPagePath } from '../layout/routes.ts';
 import { GROUP_NAME_IN_TEXT, h0Headline, MESSAGE, PLAIN, rankedContributions, rankedInputChanges, sigmaWords, signedNumber, type RankedInputChange } from './vocabulary.ts';
 
 export { rankedContributions };

@@ -1,5 +1,6 @@
 /**
- * Names in URLs for things a release names: a system's page folder and an object's anchor.
+ * Names in URLs for things a release names: a system's page folder and an object's anchor
+ * (the paths they go into are made by src/layout/routes.ts).
  *
  * An id that is already plain (ASCII letters and digits in runs joined by single "-", "." or "_")
  * is used as it is, so the links people paste stay readable (`.../systems/Alder/#Alder-001`).
@@ -71,16 +72,6 @@ export function systemSegment(system: string): string {
 /** Anchor (element id, fragment) of an object's row on its system's page. */
 export function objectAnchor(objectId: string): string {
   return urlName(objectId);
-}
-
-/** Site-relative path of a system's page. */
-export function systemPagePath(release: string, system: string): string {
-  return `releases/${release}/systems/${systemSegment(system)}/`;
-}
-
-/** Site-relative link to an object's row. */
-export function objectLink(release: string, system: string, objectId: string): string {
-  return `${systemPagePath(release, system)}#${objectAnchor(objectId)}`;
 }
 
 /** Refuse two ids that would share a name (`fold`: also without case, for folders). */

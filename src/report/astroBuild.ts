@@ -20,25 +20,10 @@ import { cp, mkdir, rename, rm, stat } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { acquireLock } from './lock.ts';
+import { settingsEnv, type BuildSettings } from '../layout/settings.ts';
 
-export interface AstroBuildOptions {
-  root: string;
-  outDir: string;
-  genDir: string;
-  methodsDir: string;
-  /** Base path on the server ("/" or "/some/folder/"). */
-  base: string;
-  /** Origin of the server, for absolute preview-image URLs. */
-  site: string;
-  /** Checks on the finished site before it replaces the previous one; throws to reject it. */
-  verify?: (dir: string) => Promise<void>;
-}
-
-/** "/a/b/" form, as Astro expects with trailingSlash 'always'. */
-export function normaliseBase(base: string | undefined): string {
-  const trimmed = (base ?? '/').trim().replace(/^\/+|\/+$/g, '');
-  return trimmed === '' ? '/' : `/${trimmed}/`;
-}
+/** Checks on the finished site before it replaces the previous one; throws to reject it. */
+export type VerifySite = (dir: string) => Promise<void>;
 
 /**
  * Variables that a host process (a Vite-based test runner sets BASE_URL=/ and
@@ -52,12 +37,9 @@ const ASTRO_CHILD = fileURLToPath(new URL('./astroChild.mjs', import.meta.url));
 
 interface AstroRun {
   root: string;
+  /** Astro writes here (a folder inside the repository; see above). */
   outDir: string;
-  base: string;
-  site: string;
-  publicDir: string;
-  cacheDir: string;
-  /** The settings astro.config.mjs and site/ read (RUNGBOOK_*). */
+  /** The environment that carries the build's settings to astro.config.mjs and site/ (src/layout/settings.ts). */
   env: Record<string, string>;
 }
 
@@ -106,16 +88,17 @@ async function moveDir(from: string, to: string): Promise<void> {
   }
 }
 
-export async function buildSite(o: AstroBuildOptions): Promise<void> {
-  const release = await acquireLock(join(o.root, '.build', 'astro.lock'));
+/** Build the site with the build's settings into `settings.outDir`, replacing it only when the build and `verify` succeed. */
+export async function buildSite(settings: BuildSettings, verify?: VerifySite): Promise<void> {
+  const release = await acquireLock(join(settings.root, '.build', 'astro.lock'));
   try {
-    await buildSiteLocked(o);
+    await buildSiteLocked(settings, verify);
   } finally {
     await release();
   }
 }
 
-async function buildSiteLocked(o: AstroBuildOptions): Promise<void> {
+async function buildSiteLocked(o: BuildSettings, verify: VerifySite | undefined): Promise<void> {
   const scratch = join(o.root, '.build', `astro-out-${process.pid}`);
   const parent = dirname(o.outDir);
   const staged = join(parent, `.${basename(o.outDir)}.building-${process.pid}`);
@@ -125,17 +108,9 @@ async function buildSiteLocked(o: AstroBuildOptions): Promise<void> {
   await mkdir(parent, { recursive: true });
 
   try {
-    await runAstro({
-      root: o.root,
-      outDir: scratch,
-      base: normaliseBase(o.base),
-      site: o.site,
-      publicDir: join(o.genDir, 'public'),
-      cacheDir: join(o.genDir, '..', 'astro-cache'),
-      env: { RUNGBOOK_GEN_DIR: o.genDir, RUNGBOOK_METHODS_DIR: o.methodsDir, RUNGBOOK_BASE: normaliseBase(o.base), RUNGBOOK_SITE: o.site, ASTRO_TELEMETRY_DISABLED: '1' },
-    });
+    await runAstro({ root: o.root, outDir: scratch, env: { ...settingsEnv(o), ASTRO_TELEMETRY_DISABLED: '1' } });
     await moveDir(scratch, staged);
-    if (o.verify) await o.verify(staged);
+    if (verify) await verify(staged);
   } catch (e) {
     await rm(scratch, { recursive: true, force: true });
     await rm(staged, { recursive: true, force: true });

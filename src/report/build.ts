@@ -16,20 +16,23 @@
  * were made from, so builds with other work folders may share the cache folder.
  */
 import { mkdir, readFile, readdir, rm, stat, writeFile } from 'node:fs/promises';
-import { isAbsolute, join, resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
 import { buildLinks, linksFor } from '../diff/links.ts';
 import { DIFF_SCHEMA, type DiffReport } from '../diff/types.ts';
 import { compareResults } from '../publish/drift.ts';
 import { readPublishedRecord, verifyPublishedFolder } from '../publish/record.ts';
 import { AnalysisError, InputError } from '../types/issues.ts';
 import { RESULTS_SCHEMA, type Results } from '../types/results.ts';
-import { buildSite, normaliseBase } from './astroBuild.ts';
+import { buildSite } from './astroBuild.ts';
 import { RELEASE_FIGURES } from './figures/index.ts';
 import { generateRelease, generateSite, genLayout, generatedJson, type GenLayout, type ReleaseFigure, removeRelease } from './generate.ts';
 import { calibrationCodeHash, comparisonCodeHash, hashTree, listFiles, reportCodeHash, sha256 } from './hashing.ts';
 import { LOO_SCHEMA, type LeaveOneOut, type LooOutcome } from './leaveOneOut.ts';
-import { releasePath, REQUIRED_NOTES } from './pageData.ts';
+import { z } from 'zod';
+import { GENERATED_MARK, releaseSummarySchema } from '../layout/pageSchema.ts';
+import { REQUIRED_NOTES } from './pageData.ts';
+import { RELEASE_ID_PATTERN, releasePagePath } from '../layout/routes.ts';
+import { buildSettings, REPO_ROOT, type BuildSettings, type BuildSettingsGiven } from '../layout/settings.ts';
 import { systemHistory, type SystemHistory } from './systems.ts';
 import { createProgress } from './progress.ts';
 import { publishedView } from './published.ts';
@@ -38,15 +41,12 @@ import type { PageLink, PublishedView, ReleaseSummary } from './types.ts';
 import { acquireLock } from './lock.ts';
 import { beginWork, type WorkState } from './workState.ts';
 
-export const REPO_ROOT = fileURLToPath(new URL('../../', import.meta.url));
+export { REPO_ROOT };
 
-export interface BuildReportOptions {
+/** The build's settings as given (src/layout/settings.ts; the environment is not read here), and its parts. */
+export interface BuildReportOptions extends BuildSettingsGiven {
   releasesDir: string;
   outDir: string;
-  /** Path prefix on the server (default "/"). */
-  base?: string;
-  /** Origin of the server, for absolute preview-image URLs (default http://localhost/). */
-  site?: string;
   progress?: boolean;
   calibrate: (releaseDir: string) => Promise<Results>;
   /**
@@ -55,12 +55,6 @@ export interface BuildReportOptions {
    * (tests whose releases have no data tables).
    */
   compare?: CompareDirs | null;
-  /** Folder for generated files and Astro's cache (default <repo>/.build). */
-  workDir?: string;
-  /** Cache of results.json files (default <repo>/.cache/results); null disables it. */
-  cacheDir?: string | null;
-  /** Authored method notes (default <repo>/content/methods). */
-  methodsDir?: string;
   /** Where progress lines go (default stderr). */
   progressStream?: { write(s: string): unknown };
   /** The figures of each release (default RELEASE_FIGURES; tests pass a list with a failing figure). */
@@ -161,8 +155,6 @@ export class ReportBuildError extends Error {
   }
 }
 
-const RELEASE_ID = /^[A-Za-z0-9][A-Za-z0-9._-]*$/;
-
 /** Release folders: direct subfolders holding a release.yaml, sorted by name. */
 export async function findReleaseDirs(releasesDir: string): Promise<string[]> {
   let entries;
@@ -216,7 +208,7 @@ function checkResults(r: Results, dir: string): void {
   if (r === null || typeof r !== 'object' || r.schema !== RESULTS_SCHEMA) {
     throw new ReportBuildError(`results of ${dir} have schema ${JSON.stringify((r as { schema?: unknown })?.schema)}, expected ${RESULTS_SCHEMA}`);
   }
-  if (!RELEASE_ID.test(r.release.id)) {
+  if (!RELEASE_ID_PATTERN.test(r.release.id)) {
     throw new ReportBuildError(`release id ${JSON.stringify(r.release.id)} (in ${dir}) cannot be used in a URL`, 'use letters, digits, ".", "_" and "-" only');
   }
 }
@@ -279,6 +271,9 @@ async function compareCached(
   return { report: value, cached };
 }
 
+/** The stamp file of a release's generated files: what they were made from, and the release's entry for the home page. */
+const STAMP_SCHEMA = z.object({ generated: z.literal(GENERATED_MARK), stamp: z.string(), summary: releaseSummarySchema }).strict();
+
 /** Keep a release's generated files when what they were made from is unchanged. */
 async function generateReleaseCached(
   layout: GenLayout,
@@ -310,9 +305,10 @@ async function generateReleaseCached(
   const old = await readIfExists(stampFile);
   if (old !== null) {
     try {
-      const parsed = JSON.parse(old) as { stamp: string; summary: ReleaseSummary };
+      // A stamp of another shape (older code, a damaged file) means: regenerate.
+      const parsed = STAMP_SCHEMA.safeParse(JSON.parse(old));
       const dataFile = join(layout.dataDir, 'releases', `${id}.json`);
-      if (parsed.stamp === stamp && (await readIfExists(dataFile)) !== null) return { summary: parsed.summary, regenerated: false };
+      if (parsed.success && parsed.data.stamp === stamp && (await readIfExists(dataFile)) !== null) return { summary: parsed.data.summary, regenerated: false };
     } catch {
       // regenerate
     }
@@ -409,34 +405,41 @@ function publishedResults(dir: string, recomputed: Results): { results: Results;
   return { results: record.results, published: publishedView(record, compareResults(record.results, recomputed)) };
 }
 
+/** What every stage of a build shares. */
+interface BuildContext {
+  opts: BuildReportOptions;
+  settings: BuildSettings;
+  layout: GenLayout;
+  progress: ReturnType<typeof createProgress>;
+  work: WorkState;
+  /** Hash of the calibration code (part of every cache key). */
+  codeHash: string;
+}
+
+type Calibrated = { dir: string; results: Results; cached: boolean; published: PublishedView | null };
+
 export async function buildReport(opts: BuildReportOptions): Promise<BuildSummary> {
   const t0 = performance.now();
-  const abs = (p: string) => (isAbsolute(p) ? p : resolve(p));
-  const releasesDir = abs(opts.releasesDir);
-  const outDir = abs(opts.outDir);
-  const workDir = abs(opts.workDir ?? join(REPO_ROOT, '.build'));
-  const cacheDir = opts.cacheDir === null ? null : abs(opts.cacheDir ?? join(REPO_ROOT, '.cache', 'results'));
-  const methodsDir = abs(opts.methodsDir ?? join(REPO_ROOT, 'content', 'methods'));
-  const figures = opts.figures ?? RELEASE_FIGURES;
-  // Origin of absolute links (figure previews, the messages to paste); as astro.config.mjs defaults it.
-  const siteUrl = opts.site ?? 'http://localhost/';
+  // The options are the settings as given (the command line has already read the environment).
+  const settings = buildSettings(opts);
   const progress = createProgress(opts.progress === true, opts.progressStream);
-  const layout = genLayout(join(workDir, 'gen'));
+  const layout = genLayout(settings.genDir);
 
-  await checkMethodNotes(methodsDir);
-  const dirs = await findReleaseDirs(releasesDir);
+  await checkMethodNotes(settings.methodsDir);
+  const dirs = await findReleaseDirs(settings.releasesDir);
 
   // One build at a time in a work folder: the generated files and Astro's cache in it are this build's alone.
   const notice = opts.progressStream ?? process.stderr;
-  const unlock = await acquireLock(join(workDir, 'build.lock'), {
-    onWait: (pid) => notice.write(`rungbook build: another build${Number.isInteger(pid) ? ` (process ${pid})` : ''} is using ${workDir}; waiting for it to finish\n`),
+  const unlock = await acquireLock(join(settings.workDir, 'build.lock'), {
+    onWait: (pid) => notice.write(`rungbook build: another build${Number.isInteger(pid) ? ` (process ${pid})` : ''} is using ${settings.workDir}; waiting for it to finish\n`),
   });
   try {
     // Every cache moves forward only with a successful build (src/report/workState.ts).
-    const work = await beginWork([layout.root, join(workDir, 'astro-cache')]);
+    const work = await beginWork([layout.root, settings.astroCacheDir]);
     let astroStarted = false;
     try {
-      const summary = await buildWithin(work, () => (astroStarted = true));
+      const ctx: BuildContext = { opts, settings, layout, progress, work, codeHash: await calibrationCodeHash(REPO_ROOT) };
+      const summary = await buildWithin(ctx, dirs, t0, () => (astroStarted = true));
       await work.commit();
       return summary;
     } catch (e) {
@@ -449,147 +452,156 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
   } finally {
     await unlock();
   }
+}
 
-  async function buildWithin(work: WorkState, astroStarts: () => void): Promise<BuildSummary> {
-    // 1. Calibrate (or reuse).
-    const codeHash = await calibrationCodeHash(REPO_ROOT);
-    const calibrated: { dir: string; results: Results; cached: boolean; published: PublishedView | null }[] = [];
-    for (const [i, dir] of dirs.entries()) {
-      progress.step(`calibrating ${i + 1}/${dirs.length}: ${dir}`);
-      const frozen = verifyPublishedFolder(dir);
-      if (frozen.length > 0) {
-        throw new ReportBuildError(
-          `release ${dir} is published and ${frozen.length === 1 ? 'a file has' : `${frozen.length} files have`} changed since: ${frozen.map((f) => f.file).join(', ')}`,
-          'a published release is frozen: restore its files as published, or put new data in a new release folder',
-          { cause: new InputError(frozen) },
-        );
-      }
-      let out;
-      try {
-        out = await calibrateCached(dir, opts.calibrate, cacheDir, codeHash, work);
-      } catch (e) {
-        throw new ReportBuildError(`calibration of ${dir} failed: ${messageOf(e)}`, null, { cause: e });
-      }
-      checkResults(out.results, dir);
-      calibrated.push({ dir, cached: out.cached, ...publishedResults(dir, out.results) });
-      progress.step(`  release ${out.results.release.id}${out.cached ? ' (cached results.json)' : ''}`);
-    }
-    const ids = calibrated.map((c) => c.results.release.id);
-    const dup = ids.find((id, i) => ids.indexOf(id) !== i);
-    if (dup !== undefined) throw new ReportBuildError(`release id ${dup} appears in more than one folder`, 'release ids must be unique; each id names its pages');
-    const t1 = performance.now();
+/** The stages of a build, in order, each timed. */
+async function buildWithin(ctx: BuildContext, dirs: readonly string[], t0: number, astroStarts: () => void): Promise<BuildSummary> {
+  const calibrated = await calibrateAll(ctx, dirs);
+  const t1 = performance.now();
+  const { comparisons, compared } = await compareAll(ctx, calibrated);
+  const tc = performance.now();
+  // What each system does to H0: the release refitted without it (cached like the results).
+  const looFn = ctx.opts.leaveOneOut === null ? null : (ctx.opts.leaveOneOut ?? (await defaultLeaveOneOut()));
+  const loos = await leaveOneOutCached(calibrated, looFn, ctx.settings.cacheDir, ctx.codeHash, ctx.work, (id) => ctx.progress.step(`leaving each system of ${id} out`));
+  const tl = performance.now();
+  const releases = await generatePages(ctx, calibrated, comparisons, loos);
+  const t2 = performance.now();
+  astroStarts();
+  await siteWithAstro(ctx);
+  const t3 = performance.now();
+  const measured = await measureSite(ctx.settings.outDir);
+  ctx.progress.step(`done: ${measured.pages} pages, ${(measured.bytes / 1e6).toFixed(1)} MB in ${ctx.settings.outDir}`);
+  return {
+    outDir: ctx.settings.outDir,
+    releases,
+    comparisons: compared,
+    ...measured,
+    timingsMs: { calibrate: t1 - t0, compare: tc - t1, leaveOneOut: tl - tc, generate: t2 - tl, site: t3 - t2, total: t3 - t0 },
+  };
+}
 
-    // 2. Each release against its previous one, when both are in this report.
-    const dirOf = new Map(calibrated.map((c) => [c.results.release.id, c.dir]));
-    const comparisons = new Map<string, DiffReport>();
-    const compared: BuildSummary['comparisons'] = [];
-    const compare = opts.compare === null ? null : (opts.compare ?? (await defaultCompare()));
-    if (compare !== null) {
-      const compareHash = sha256(codeHash, await comparisonCodeHash(REPO_ROOT));
-      for (const c of calibrated) {
-        const b = c.results.release.id;
-        const a = c.results.release.previous;
-        const dirA = a === null ? undefined : dirOf.get(a);
-        if (a === null || dirA === undefined) continue;
-        progress.step(`comparing ${b} with ${a}`);
-        let out;
-        try {
-          out = await compareCached(dirA, c.dir, compare, cacheDir, compareHash, work);
-        } catch (e) {
-          throw new ReportBuildError(`comparison of release ${b} with ${a} failed: ${messageOf(e)}`, null, { cause: e });
-        }
-        // Links for this report's address (the cached comparison carries none).
-        comparisons.set(b, { ...out.report, links: linksFor(out.report, buildLinks(siteUrl, opts.base, a, b, a)) });
-        compared.push({ a, b, cached: out.cached });
-        if (out.cached) progress.step('  (cached comparison)');
-      }
-    }
-    const nextOf = (id: string): PageLink[] =>
-      calibrated
-        .filter((c) => c.results.release.previous === id && comparisons.has(c.results.release.id))
-        .map((c) => ({ path: releasePath(c.results.release.id, 'compare/'), title: `Release ${c.results.release.id} compared with ${id}` }));
-    const tc = performance.now();
-
-    // 2b. What each system does to H0: the release refitted without it (cached like the results).
-    const looFn = opts.leaveOneOut === null ? null : (opts.leaveOneOut ?? (await defaultLeaveOneOut()));
-    const loos = await leaveOneOutCached(calibrated, looFn, cacheDir, codeHash, work, (id) => progress.step(`leaving each system of ${id} out`));
-    const history = systemHistory(calibrated.map((c) => c.results));
-    const tl = performance.now();
-
-    // 3. Generated pages, figures and downloads.
-    const reportHash = await reportCodeHash(REPO_ROOT);
-    const idSet = new Set(ids);
-    const releases: BuildSummary['releases'] = [];
-    const summaries: ReleaseSummary[] = [];
-    let current = 'the list of releases';
-    try {
-      await pruneReleases(layout, idSet);
-      for (const c of calibrated) {
-        const r = c.results;
-        current = `release ${r.release.id}`;
-        progress.step(`figures and pages of release ${r.release.id}`);
-        const notes = await readIfExists(join(c.dir, 'notes.md'));
-        const previousBuilt = r.release.previous !== null && idSet.has(r.release.previous);
-        // A recovery summary beside the release (rungbook recover) gives it a recovery page.
-        const recoveryFile = join(c.dir, RECOVERY_FILE);
-        const recoveryText = await readIfExists(recoveryFile);
-        const recovery = recoveryText === null ? null : parseRecoverySummary(recoveryFile, recoveryText);
-        const l = loos.get(r.release.id)!;
-        // Only the history of this release's systems enters its pages (and its stamp).
-        const own = Object.fromEntries(r.systems.map((s) => [s.id, history[s.id] ?? []]));
-        const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, figures, comparisons.get(r.release.id) ?? null, nextOf(r.release.id), {
-          leaveOneOut: l.loo,
-          looMissing: l.missing,
-          systemHistory: own,
-          releasesBuilt: ids,
-        }, recovery);
-        if (!g.regenerated) progress.step('  unchanged, kept');
-        summaries.push(g.summary);
-        releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });
-      }
-      current = 'the home page';
-      await generateSite(
-        layout,
-        calibrated.map((c) => c.results),
-        summaries,
+/** 1. Calibrate every release (or reuse its cached results); a published release shows its published results. */
+async function calibrateAll(ctx: BuildContext, dirs: readonly string[]): Promise<Calibrated[]> {
+  const calibrated: Calibrated[] = [];
+  for (const [i, dir] of dirs.entries()) {
+    ctx.progress.step(`calibrating ${i + 1}/${dirs.length}: ${dir}`);
+    const frozen = verifyPublishedFolder(dir);
+    if (frozen.length > 0) {
+      throw new ReportBuildError(
+        `release ${dir} is published and ${frozen.length === 1 ? 'a file has' : `${frozen.length} files have`} changed since: ${frozen.map((f) => f.file).join(', ')}`,
+        'a published release is frozen: restore its files as published, or put new data in a new release folder',
+        { cause: new InputError(frozen) },
       );
-    } catch (e) {
-      throw new ReportBuildError(`figures and pages of ${current} failed: ${messageOf(e)}`, null, { cause: e });
     }
-    const t2 = performance.now();
-
-    // 4. The static site.
-    progress.step('building the site with Astro');
-    astroStarts();
+    let out;
     try {
-      await buildSite({
-        root: REPO_ROOT,
-        outDir,
-        genDir: layout.root,
-        methodsDir,
-        base: normaliseBase(opts.base),
-        site: siteUrl,
-        verify: async (dir) => {
-          try {
-            await verifySite(dir);
-          } catch (e) {
-            throw e instanceof ReportBuildError ? new ReportBuildError(`site check failed: ${e.message}`, null, { cause: e }) : e;
-          }
-        },
-      });
+      out = await calibrateCached(dir, ctx.opts.calibrate, ctx.settings.cacheDir, ctx.codeHash, ctx.work);
     } catch (e) {
-      if (e instanceof ReportBuildError) throw e;
-      throw new ReportBuildError(`site build (Astro) failed: ${messageOf(e)}`, null, { cause: e });
+      throw new ReportBuildError(`calibration of ${dir} failed: ${messageOf(e)}`, null, { cause: e });
     }
-    const t3 = performance.now();
-    const measured = await measureSite(outDir);
-    progress.step(`done: ${measured.pages} pages, ${(measured.bytes / 1e6).toFixed(1)} MB in ${outDir}`);
-    return {
-      outDir,
-      releases,
-      comparisons: compared,
-      ...measured,
-      timingsMs: { calibrate: t1 - t0, compare: tc - t1, leaveOneOut: tl - tc, generate: t2 - tl, site: t3 - t2, total: t3 - t0 },
-    };
+    checkResults(out.results, dir);
+    calibrated.push({ dir, cached: out.cached, ...publishedResults(dir, out.results) });
+    ctx.progress.step(`  release ${out.results.release.id}${out.cached ? ' (cached results.json)' : ''}`);
+  }
+  const ids = calibrated.map((c) => c.results.release.id);
+  const dup = ids.find((id, i) => ids.indexOf(id) !== i);
+  if (dup !== undefined) throw new ReportBuildError(`release id ${dup} appears in more than one folder`, 'release ids must be unique; each id names its pages');
+  return calibrated;
+}
+
+/** 2. Each release against its previous one, when both are in this report; the links point into this report. */
+async function compareAll(ctx: BuildContext, calibrated: readonly Calibrated[]): Promise<{ comparisons: Map<string, DiffReport>; compared: BuildSummary['comparisons'] }> {
+  const comparisons = new Map<string, DiffReport>();
+  const compared: BuildSummary['comparisons'] = [];
+  const compare = ctx.opts.compare === null ? null : (ctx.opts.compare ?? (await defaultCompare()));
+  if (compare === null) return { comparisons, compared };
+  const dirOf = new Map(calibrated.map((c) => [c.results.release.id, c.dir]));
+  const compareHash = sha256(ctx.codeHash, await comparisonCodeHash(REPO_ROOT));
+  for (const c of calibrated) {
+    const b = c.results.release.id;
+    const a = c.results.release.previous;
+    const dirA = a === null ? undefined : dirOf.get(a);
+    if (a === null || dirA === undefined) continue;
+    ctx.progress.step(`comparing ${b} with ${a}`);
+    let out;
+    try {
+      out = await compareCached(dirA, c.dir, compare, ctx.settings.cacheDir, compareHash, ctx.work);
+    } catch (e) {
+      throw new ReportBuildError(`comparison of release ${b} with ${a} failed: ${messageOf(e)}`, null, { cause: e });
+    }
+    // Links for this report's address (the cached comparison carries none).
+    comparisons.set(b, { ...out.report, links: linksFor(out.report, buildLinks(ctx.settings.site, ctx.settings.base, a, b, a)) });
+    compared.push({ a, b, cached: out.cached });
+    if (out.cached) ctx.progress.step('  (cached comparison)');
+  }
+  return { comparisons, compared };
+}
+
+/** 3. Generated pages, figures and downloads of every release (kept when unchanged), then the home page's. */
+async function generatePages(
+  ctx: BuildContext,
+  calibrated: readonly Calibrated[],
+  comparisons: ReadonlyMap<string, DiffReport>,
+  loos: ReadonlyMap<string, LooState>,
+): Promise<BuildSummary['releases']> {
+  const { layout, progress } = ctx;
+  const ids = calibrated.map((c) => c.results.release.id);
+  const history = systemHistory(calibrated.map((c) => c.results));
+  const reportHash = await reportCodeHash(REPO_ROOT);
+  const idSet = new Set(ids);
+  const nextOf = (id: string): PageLink[] =>
+    calibrated
+      .filter((c) => c.results.release.previous === id && comparisons.has(c.results.release.id))
+      .map((c) => ({ path: releasePagePath(c.results.release.id, 'compare'), title: `Release ${c.results.release.id} compared with ${id}` }));
+  const releases: BuildSummary['releases'] = [];
+  const summaries: ReleaseSummary[] = [];
+  let current = 'the list of releases';
+  try {
+    await pruneReleases(layout, idSet);
+    for (const c of calibrated) {
+      const r = c.results;
+      current = `release ${r.release.id}`;
+      progress.step(`figures and pages of release ${r.release.id}`);
+      const notes = await readIfExists(join(c.dir, 'notes.md'));
+      const previousBuilt = r.release.previous !== null && idSet.has(r.release.previous);
+      // A recovery summary beside the release (rungbook recover) gives it a recovery page.
+      const recoveryFile = join(c.dir, RECOVERY_FILE);
+      const recoveryText = await readIfExists(recoveryFile);
+      const recovery = recoveryText === null ? null : parseRecoverySummary(recoveryFile, recoveryText);
+      const l = loos.get(r.release.id)!;
+      // Only the history of this release's systems enters its pages (and its stamp).
+      const own = Object.fromEntries(r.systems.map((s) => [s.id, history[s.id] ?? []]));
+      const drill = { leaveOneOut: l.loo, looMissing: l.missing, systemHistory: own, releasesBuilt: ids };
+      const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, ctx.opts.figures ?? RELEASE_FIGURES, comparisons.get(r.release.id) ?? null, nextOf(r.release.id), drill, recovery);
+      if (!g.regenerated) progress.step('  unchanged, kept');
+      summaries.push(g.summary);
+      releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });
+    }
+    current = 'the home page';
+    await generateSite(
+      layout,
+      calibrated.map((c) => c.results),
+      summaries,
+    );
+  } catch (e) {
+    throw new ReportBuildError(`figures and pages of ${current} failed: ${messageOf(e)}`, null, { cause: e });
+  }
+  return releases;
+}
+
+/** 4. The static site, built by Astro from the generated files and checked before it replaces the previous one. */
+async function siteWithAstro(ctx: BuildContext): Promise<void> {
+  ctx.progress.step('building the site with Astro');
+  try {
+    await buildSite(ctx.settings, async (dir) => {
+      try {
+        await verifySite(dir);
+      } catch (e) {
+        throw e instanceof ReportBuildError ? new ReportBuildError(`site check failed: ${e.message}`, null, { cause: e }) : e;
+      }
+    });
+  } catch (e) {
+    if (e instanceof ReportBuildError) throw e;
+    throw new ReportBuildError(`site build (Astro) failed: ${messageOf(e)}`, null, { cause: e });
   }
 }

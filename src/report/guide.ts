@@ -10,13 +10,6 @@ import { TABLE_NAMES } from '../types/release.ts';
 import { tableView } from './tables.ts';
 import type { TableView } from './types.ts';
 
-/** The authored guide pages (content/guide/<slug>.md) and the generated tables each shows. */
-export interface GuidePageData {
-  generated: string;
-  slug: string;
-  tables: TableView[];
-}
-
 /** What the format page says of a column besides its meaning: optional, its default, its rules. */
 function columnRules(c: ColumnSpec, key: string, systemRef: string | undefined): string {
   const rules: string[] = [];
@@ -62,6 +55,6 @@ function analysisTable(): TableView {
 }
 
 /** The format page's tables: one per input table, then the analysis keys. */
-export function inputFormatPage(generated: string): GuidePageData {
-  return { generated, slug: 'input-format', tables: [...TABLE_NAMES.map(tableOfColumns), analysisTable()] };
+export function inputFormatTables(): TableView[] {
+  return [...TABLE_NAMES.map(tableOfColumns), analysisTable()];
 }

@@ -6,6 +6,7 @@
  * are marked as everywhere else (src/report/blinding.ts).
  */
 import type { Results } from '../types/results.ts';
+import { releasePath } from '../layout/routes.ts';
 import { parameterBlinded } from './blinding.ts';
 import { fixed, pm } from './format.ts';
 import { tableView } from './tables.ts';
@@ -63,7 +64,7 @@ export function parameterHistory(all: readonly Results[]): HistoryView | null {
       {
         caption: 'Each release’s baseline fit: value ± statistical error. Parameters a release does not fit are shown as “—”.',
         marks: sorted.map((r): RowMark => (r.blinded ? 'blinded' : null)),
-        links: sorted.map((r) => [`releases/${r.release.id}/`, null, null, ...HISTORY_PARAMETERS.map(() => null)]),
+        links: sorted.map((r) => [releasePath(r.release.id), null, null, ...HISTORY_PARAMETERS.map(() => null)]),
         sortable: true,
       },
     ),

@@ -5,7 +5,7 @@
  */
 import { DEFAULT_ANALYSIS, type AnalysisKey } from '../types/analysis.ts';
 import type { Results, SystemResult } from '../types/results.ts';
-import { objectLink, systemPagePath } from '../layout/anchors.ts';
+import { objectLink, releasePagePath, releasePath, rungPath, systemPagePath } from '../layout/routes.ts';
 import { parameterBlinded } from './blinding.ts';
 import { changesParagraph } from './compare/view.ts';
 import { analysisValueText, distanceText, fixed, int, percent, pm, sig, valueErr } from './format.ts';
@@ -60,21 +60,18 @@ export interface PageInputs {
   systems?: SystemsIndexView;
 }
 
-export function releasePath(id: string, rest = ''): string {
-  return `releases/${id}/${rest}`;
-}
-
+/** A release's pages in navigation order (the recovery page, when there is one, is put before the figures). */
 export function releasePages(id: string): PageLink[] {
   return [
     { path: releasePath(id), title: 'Summary' },
-    ...RUNG_PAGES.map((r) => ({ path: releasePath(id, `${r.slug}/`), title: r.title })),
-    { path: releasePath(id, 'global-fit/'), title: 'Global fit' },
-    { path: releasePath(id, 'error-budget/'), title: 'Error budget' },
-    { path: releasePath(id, 'variants/'), title: 'Variants' },
-    { path: releasePath(id, 'systems/'), title: 'Systems' },
-    { path: releasePath(id, 'data/'), title: 'Data & provenance' },
-    { path: releasePath(id, 'compare/'), title: 'Comparison' },
-    { path: releasePath(id, 'figures/'), title: 'Figures' },
+    ...RUNG_PAGES.map((r) => ({ path: rungPath(id, r.slug), title: r.title })),
+    { path: releasePagePath(id, 'globalFit'), title: 'Global fit' },
+    { path: releasePagePath(id, 'errorBudget'), title: 'Error budget' },
+    { path: releasePagePath(id, 'variants'), title: 'Variants' },
+    { path: releasePagePath(id, 'systems'), title: 'Systems' },
+    { path: releasePagePath(id, 'data'), title: 'Data & provenance' },
+    { path: releasePagePath(id, 'compare'), title: 'Comparison' },
+    { path: releasePagePath(id, 'figures'), title: 'Figures' },
   ];
 }
 
@@ -692,7 +689,7 @@ export function releaseData(p: PageInputs): ReleaseData {
     headline: headline(r),
     summaryProse: p.summaryProse,
     notesProse: p.notesProse,
-    changes: { text: p.comparison ? changesParagraph(p.comparison) : null, page: releasePath(id, 'compare/') },
+    changes: { text: p.comparison ? changesParagraph(p.comparison) : null, page: releasePagePath(id, 'compare') },
     comparison: p.comparison ?? null,
     comparisonState: p.comparison ? 'shown' : r.release.previous === null ? 'first' : p.previousBuilt ? 'not-computed' : 'previous-missing',
     next: p.next ?? [],

@@ -7,14 +7,14 @@ import { describeQuantity, isBlindedQuantity } from '../recover/quantities.ts';
 import type { RecoverySummary, Statistic } from '../recover/summary.ts';
 import type { Results } from '../types/results.ts';
 import { fixed, int } from './format.ts';
-import { releasePath } from './pageData.ts';
+import { releasePagePath } from '../layout/routes.ts';
 import { tableView } from './tables.ts';
 import type { KeyValue, PageLink, RecoveryView, RowMark } from './types.ts';
 
 export const RECOVERY_FIGURES = ['recovery-pulls'];
 
 export function recoveryPage(id: string): PageLink {
-  return { path: releasePath(id, 'recovery/'), title: 'Recovery' };
+  return { path: releasePagePath(id, 'recovery'), title: 'Recovery' };
 }
 
 function statText(s: Statistic, percent: boolean): string {

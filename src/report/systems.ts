@@ -5,7 +5,8 @@
  * Pure: from results.json, the leave-one-out refits and the other releases' system distances.
  */
 import type { Results, SystemResult } from '../types/results.ts';
-import { assertUnique, objectAnchor, systemPagePath, systemSegment } from '../layout/anchors.ts';
+import { assertUnique, objectAnchor, systemSegment } from '../layout/anchors.ts';
+import { systemPagePath } from '../layout/routes.ts';
 import { distanceMpcFromModulus } from '../ladder/distance.ts';
 import { largestShift, shiftedEntries, type LeaveOneOut, type LeaveOneOutEntry } from './leaveOneOut.ts';
 import { signedText } from './compare/words.ts';

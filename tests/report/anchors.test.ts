@@ -8,7 +8,8 @@
  */
 import { JSDOM } from 'jsdom';
 import { describe, expect, it } from 'vitest';
-import { assertUnique, objectAnchor, objectLink, readableSlug, systemPagePath, systemSegment } from '../../src/layout/anchors.ts';
+import { assertUnique, objectAnchor, readableSlug, systemSegment } from '../../src/layout/anchors.ts';
+import { objectLink, systemPagePath } from '../../src/layout/routes.ts';
 import { HOSTILE, LONG_ID } from '../trust/hostile.ts';
 
 /** RFC 3986 unreserved characters: safe in a path segment and a fragment, never percent-encoded. */

@@ -11,7 +11,7 @@
  * from the comparison's one vocabulary (src/diff/vocabulary.ts), as the command
  * line's does.
  */
-import { objectLink, systemPagePath } from '../../layout/anchors.ts';
+import { objectLink, systemPagePath } from '../../layout/routes.ts';
 import { renderMarkdown, tableLine, unitSuffix } from '../../diff/render.ts';
 import { tableTouched } from '../../diff/inputs.ts';
 import { h0Headline, rankedContributions, rankedInputChanges, TYPOGRAPHIC, type RankedInputChange } from '../../diff/vocabulary.ts';

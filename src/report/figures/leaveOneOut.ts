@@ -6,7 +6,7 @@
  */
 import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
-import { systemPagePath } from '../../layout/anchors.ts';
+import { systemPagePath } from '../../layout/routes.ts';
 import { fixed } from '../format.ts';
 import { largestShift, type LeaveOneOut } from '../leaveOneOut.ts';
 import { blindedStamp, clip, col, type FigureSpec, GREY, INK, legend, listText, r5, renderSvg } from './plotting.ts';

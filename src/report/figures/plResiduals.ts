@@ -4,7 +4,7 @@
  */
 import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
-import { objectLink } from '../../layout/anchors.ts';
+import { objectLink } from '../../layout/routes.ts';
 import { fixed, int } from '../format.ts';
 import { col, type FigureSpec, GREY, INK, legend, type LegendItem, r5, renderSvg, thin } from './plotting.ts';
 

@@ -6,7 +6,7 @@
 import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
 import { parameterBlinded } from '../blinding.ts';
-import { objectLink } from '../../layout/anchors.ts';
+import { objectLink } from '../../layout/routes.ts';
 import { pm } from '../format.ts';
 import { blindedStamp, clip, col, type FigureSpec, GREY, INK, legend, type LegendItem, listText, PALE, r5, renderSvg } from './plotting.ts';
 

@@ -7,7 +7,7 @@
  */
 import * as Plot from '@observablehq/plot';
 import type { Results } from '../../types/results.ts';
-import { objectLink } from '../../layout/anchors.ts';
+import { objectLink } from '../../layout/routes.ts';
 import { fixed, int } from '../format.ts';
 import { locusCurve } from './msLocus.ts';
 import { residualCsv, residualLayers } from './plResiduals.ts';
