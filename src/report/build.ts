@@ -40,6 +40,7 @@ import { parseRecoverySummary, RECOVERY_FILE, type RecoverySummary } from '../re
 import type { PageLink, PublishedView, ReleaseSummary } from './types.ts';
 import { acquireLock } from './lock.ts';
 import { beginWork, type WorkState } from './workState.ts';
+import { readMeasuredRecovery, type MeasuredRecovery } from './measured.ts';
 
 export { REPO_ROOT };
 
@@ -285,7 +286,7 @@ async function generateReleaseCached(
   figures: readonly ReleaseFigure[],
   comparison: DiffReport | null,
   next: PageLink[],
-  drill: { leaveOneOut: LeaveOneOut | null; looMissing: string | null; systemHistory: SystemHistory; releasesBuilt: string[] },
+  drill: { leaveOneOut: LeaveOneOut | null; looMissing: string | null; systemHistory: SystemHistory; releasesBuilt: string[]; measuredRecovery: MeasuredRecovery | null },
   recovery: RecoverySummary | null = null,
 ): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
   const id = results.release.id;
@@ -558,6 +559,8 @@ async function generatePages(
   let current = 'the list of releases';
   try {
     await pruneReleases(layout, idSet);
+    // the recovery test's measured table, shown with the global-fit note of every release
+    const measuredRecovery = await readMeasuredRecovery(ctx.settings.methodsDir);
     for (const c of calibrated) {
       const r = c.results;
       current = `release ${r.release.id}`;
@@ -571,7 +574,7 @@ async function generatePages(
       const l = loos.get(r.release.id)!;
       // Only the history of this release's systems enters its pages (and its stamp).
       const own = Object.fromEntries(r.systems.map((s) => [s.id, history[s.id] ?? []]));
-      const drill = { leaveOneOut: l.loo, looMissing: l.missing, systemHistory: own, releasesBuilt: ids };
+      const drill = { leaveOneOut: l.loo, looMissing: l.missing, systemHistory: own, releasesBuilt: ids, measuredRecovery };
       const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, ctx.opts.figures ?? RELEASE_FIGURES, comparisons.get(r.release.id) ?? null, nextOf(r.release.id), drill, recovery);
       if (!g.regenerated) progress.step('  unchanged, kept');
       summaries.push(g.summary);

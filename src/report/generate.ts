@@ -26,6 +26,7 @@ import { leaveOneOutFigure } from './figures/leaveOneOut.ts';
 import { systemCmd, systemPlResiduals, systemSnCalibrators } from './figures/systemFigures.ts';
 import { parameterHistory } from './history.ts';
 import { inputFormatTables } from './guide.ts';
+import type { MeasuredRecovery } from './measured.ts';
 import type { LeaveOneOut } from './leaveOneOut.ts';
 import { type SystemHistory, systemPages, systemsIndex } from './systems.ts';
 import { headline, releaseData } from './pageData.ts';
@@ -140,6 +141,8 @@ export interface ReleaseGenInput {
   systemHistory?: SystemHistory;
   /** Ids of the releases in this report. */
   releasesBuilt?: readonly string[];
+  /** The recovery test's measured table (src/report/measured.ts), or null. */
+  measuredRecovery?: MeasuredRecovery | null;
 }
 
 /**
@@ -271,6 +274,7 @@ export async function generateRelease(layout: GenLayout, input: ReleaseGenInput,
     published: input.published ?? null,
     comparison,
     next: input.next ?? [],
+    measuredRecovery: input.measuredRecovery ?? null,
   });
   if (input.recovery) await addRecovery(layout, data, input.recovery, r);
   const { generated: _mark, ...rest } = data;

@@ -13,6 +13,7 @@ import { type ColumnSpec, tableView } from './tables.ts';
 import type { SystemsIndexView } from './types.ts';
 import type { CheckView, ComparisonView, DownloadLink, FigureRef, Headline, InputUsed, KeyValue, PageLink, PublishedView, ReleaseData, RowMark, RungData, TableView } from './types.ts';
 import { GENERATED_MARK } from './types.ts';
+import { measuredRecoveryTable, type MeasuredRecovery } from './measured.ts';
 
 /** The rung pages: URL segment, method note (file under content/methods), input tables, figures. */
 export const RUNG_PAGES = [
@@ -58,6 +59,8 @@ export interface PageInputs {
   next?: PageLink[];
   /** The systems index and leave-one-out summary (src/report/systems.ts). */
   systems?: SystemsIndexView;
+  /** The recovery test's measured table, shown with the global-fit note (src/report/measured.ts). */
+  measuredRecovery?: MeasuredRecovery | null;
 }
 
 /** A release's pages in navigation order (the recovery page, when there is one, is put before the figures). */
@@ -433,6 +436,13 @@ const RUNG_BUILDERS = {
 
 // --- other pages --------------------------------------------------------------------
 
+/** A parameter's value as the table shows it: fixed, value ± error, and for the scatters their asymmetric 68 % interval. */
+function parameterValueText(x: Results['parameters'][string]): string {
+  if (x.fixed) return `${sig(x.value, 4)} (fixed)`;
+  const text = pm(x.value, x.err);
+  return x.interval68 ? `${text} (68 % interval ${sig(x.interval68[0], 3)}–${sig(x.interval68[1], 3)})` : text;
+}
+
 function parametersTable(r: Results, p: PageInputs): TableView {
   const entries = Object.entries(r.parameters);
   return tableView(
@@ -444,7 +454,7 @@ function parametersTable(r: Results, p: PageInputs): TableView {
       ['unit', 'Unit', null, false],
       ['description', 'Meaning', null, false],
     ],
-    entries.map(([name, x]) => [name, x.fixed ? `${sig(x.value, 4)} (fixed)` : pm(x.value, x.err), x.unit || '—', x.description]),
+    entries.map(([name, x]) => [name, parameterValueText(x), x.unit || '—', x.description]),
     { marks: entries.map(([name]): RowMark => (parameterBlinded(r, name) ? 'blinded' : null)), downloads: p.tableDownload('parameters') },
   );
 }
@@ -467,6 +477,7 @@ function globalFit(r: Results, p: PageInputs): ReleaseData['globalFit'] {
   if (rej) tables.push(rej);
   const q = f.quality ?? null;
   if (q) tables.push(hostScatterTable(q, p));
+  if (p.measuredRecovery) tables.push(measuredRecoveryTable(p.measuredRecovery));
   return {
     note: 'global-fit',
     tables,

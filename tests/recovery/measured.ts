@@ -8,23 +8,15 @@
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { MEASURED_RECOVERY_SCHEMA, measuredRecoveryFile, measuredRecoverySchema, type MeasuredRecovery } from '../../src/report/measured.ts';
 import type { PullSummary } from './harness.ts';
 
-export const MEASURED_FILE = fileURLToPath(new URL('../../content/methods/measured/recovery.json', import.meta.url));
-export const MEASURED_SCHEMA = 'rungbook.measured-recovery/1';
-
-export interface MeasuredRecovery {
-  schema: typeof MEASURED_SCHEMA;
-  /** How to make it again. */
-  command: string;
-  seeds: { base: number; count: number };
-  blend_fraction: number;
-  quantities: PullSummary[];
-}
+/** The file the report reads (src/report/measured.ts), in this repository's method notes. */
+export const MEASURED_FILE = measuredRecoveryFile(fileURLToPath(new URL('../../content/methods', import.meta.url)));
 
 export function measuredRecovery(base: number, count: number, blendFraction: number, quantities: PullSummary[]): MeasuredRecovery {
   return {
-    schema: MEASURED_SCHEMA,
+    schema: MEASURED_RECOVERY_SCHEMA,
     command: `npm run recovery:campaign -- --base ${base} --seeds ${count} --write`,
     seeds: { base, count },
     blend_fraction: blendFraction,
@@ -34,9 +26,9 @@ export function measuredRecovery(base: number, count: number, blendFraction: num
 
 export function writeMeasured(m: MeasuredRecovery): void {
   mkdirSync(dirname(MEASURED_FILE), { recursive: true });
-  writeFileSync(MEASURED_FILE, `${JSON.stringify(m, null, 2)}\n`);
+  writeFileSync(MEASURED_FILE, `${JSON.stringify(measuredRecoverySchema.parse(m), null, 2)}\n`);
 }
 
 export function readMeasured(): MeasuredRecovery {
-  return JSON.parse(readFileSync(MEASURED_FILE, 'utf8')) as MeasuredRecovery;
+  return measuredRecoverySchema.parse(JSON.parse(readFileSync(MEASURED_FILE, 'utf8')));
 }
