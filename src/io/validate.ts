@@ -97,8 +97,8 @@ interface ColumnCheck {
   columnUnits: Record<string, string>;
 }
 
-/** The header-level checks: names unique, required columns present, datatypes and units fit. */
-function checkColumns(raw: RawTable, spec: TableSpec<unknown>, problems: Problem[]): ColumnCheck {
+/** Column name -> position, for the columns with a usable name (empty, control characters and repeats are problems). */
+function columnIndex(raw: RawTable, problems: Problem[]): Map<string, number> {
   const index = new Map<string, number>();
   raw.columns.forEach((c, i) => {
     const first = index.get(c.name);
@@ -117,6 +117,45 @@ function checkColumns(raw: RawTable, spec: TableSpec<unknown>, problems: Problem
       });
     } else index.set(c.name, i);
   });
+  return index;
+}
+
+/** Whether a present column's declared datatype and unit fit its spec, and the unit conversion to apply. */
+function checkColumnDeclaration(col: ColumnSpec, column: RawTable['columns'][number], problems: Problem[]): { ok: boolean; convert: (x: number) => number } {
+  let ok = true;
+  if (column.typeClass !== undefined) {
+    const fits = col.type === 'text' ? column.typeClass === 'string' : column.typeClass === 'float' || column.typeClass === 'int';
+    if (!fits) {
+      ok = false;
+      problems.push({
+        code: 'wrong-datatype',
+        line: column.line,
+        column: col.name,
+        message: `the column is declared with the wrong datatype`,
+        expected: col.type === 'text' ? 'a text datatype (ECSV string, VOTable char)' : 'a numeric datatype (float64, int64, double, ...)',
+        found: shown(column.datatype ?? column.typeClass),
+      });
+    }
+  }
+  const unit = checkUnit(col.unit, column.unit);
+  if (!unit.ok) {
+    ok = false;
+    problems.push({
+      code: 'wrong-unit',
+      line: column.unitLine ?? column.line,
+      column: col.name,
+      message: 'the unit cannot be converted to the unit this column is stored in',
+      expected: unit.expected,
+      found: unit.found,
+      hint: col.unit === null || col.unit === '' ? 'remove the unit' : 'units are converted exactly or refused, never guessed',
+    });
+  }
+  return { ok, convert: unit.ok ? unit.convert : (x) => x };
+}
+
+/** The header-level checks: names unique, required columns present, datatypes and units fit. */
+function checkColumns(raw: RawTable, spec: TableSpec<unknown>, problems: Problem[]): ColumnCheck {
+  const index = columnIndex(raw, problems);
 
   const known = new Set(spec.columns.map((c) => c.name));
   const extraColumns = raw.columns.map((c) => c.name).filter((n) => n !== '' && !known.has(n));
@@ -146,39 +185,68 @@ function checkColumns(raw: RawTable, spec: TableSpec<unknown>, problems: Problem
       continue;
     }
     const column = raw.columns[at];
-    let ok = true;
-    if (column.typeClass !== undefined) {
-      const fits = col.type === 'text' ? column.typeClass === 'string' : column.typeClass === 'float' || column.typeClass === 'int';
-      if (!fits) {
-        ok = false;
-        problems.push({
-          code: 'wrong-datatype',
-          line: column.line,
-          column: col.name,
-          message: `the column is declared with the wrong datatype`,
-          expected: col.type === 'text' ? 'a text datatype (ECSV string, VOTable char)' : 'a numeric datatype (float64, int64, double, ...)',
-          found: shown(column.datatype ?? column.typeClass),
-        });
-      }
-    }
-    const unit = checkUnit(col.unit, column.unit);
-    if (!unit.ok) {
-      ok = false;
-      problems.push({
-        code: 'wrong-unit',
-        line: column.unitLine ?? column.line,
-        column: col.name,
-        message: 'the unit cannot be converted to the unit this column is stored in',
-        expected: unit.expected,
-        found: unit.found,
-        hint: col.unit === null || col.unit === '' ? 'remove the unit' : 'units are converted exactly or refused, never guessed',
-      });
-    }
+    const { ok, convert } = checkColumnDeclaration(col, column, problems);
     if (!ok) complete = false;
-    present.push({ spec: col, column, at, convert: unit.ok ? unit.convert : (x) => x });
+    present.push({ spec: col, column, at, convert });
   }
 
   return { index, present, complete, extraColumns, columnUnits };
+}
+
+/**
+ * One data row: every present column's cell read and converted, the values that need a partner
+ * checked; the row's value (absent optional columns filled in) or null when any cell is wrong.
+ */
+function validateRow<Row>(
+  row: RawTable['rows'][number],
+  spec: TableSpec<Row>,
+  present: readonly PresentColumn[],
+  index: ReadonlyMap<string, number>,
+  complete: boolean,
+  problems: Problem[],
+): Row | null {
+  let rowOk = complete;
+  const out: Record<string, unknown> = {};
+  // Columns of this row with a bad value; created only for a row that has one (most have none).
+  let bad: Set<string> | null = null;
+  for (const { spec: col, column, at, convert } of present) {
+    const cell = row.cells[at];
+    if (cell.trim() === '') {
+      if (col.required) {
+        rowOk = false;
+        problems.push({ code: 'missing-value', line: row.line, column: col.name, message: 'a required value is empty', expected: 'a value', found: 'an empty cell' });
+      }
+      continue;
+    }
+    const result = col.type === 'number' ? readNumberCell(cell, column, col, convert) : readTextCell(cell, col);
+    if ('problem' in result) {
+      rowOk = false;
+      (bad ??= new Set<string>()).add(col.name);
+      problems.push({ ...result.problem, line: row.line, column: col.name });
+    } else out[col.field] = result.value;
+  }
+  for (const { spec: col, at } of present) {
+    if (col.needs === undefined || row.cells[at].trim() === '' || bad?.has(col.name) || bad?.has(col.needs)) continue;
+    const partner = index.get(col.needs);
+    if (partner === undefined || row.cells[partner].trim() === '') {
+      rowOk = false;
+      problems.push({
+        code: 'value-without-partner',
+        line: row.line,
+        column: col.name,
+        message: `${col.name} is given without ${col.needs}`,
+        expected: `a value of ${col.needs} in the same row, or no ${col.name}`,
+        found: `${col.name} = ${row.cells[at]} and no ${col.needs}`,
+      });
+    }
+  }
+  if (rowOk) {
+    for (const col of spec.columns as ColumnSpec[]) if (col.absent !== undefined && out[col.field] === undefined) out[col.field] = col.absent;
+    // `line` last, as a spread would put it, without copying the row
+    out.line = row.line;
+    return out as Row;
+  }
+  return null;
 }
 
 export function validateTable<Row>(raw: RawTable, spec: TableSpec<Row>): ValidatedTable<Row> {
@@ -218,47 +286,8 @@ export function validateTable<Row>(raw: RawTable, spec: TableSpec<Row>): Validat
     }
     if (refAt !== undefined && row.cells[refAt].trim() !== '') systemRefs.push({ system: row.cells[refAt], line: row.line });
 
-    let rowOk = complete;
-    const out: Record<string, unknown> = {};
-    // Columns of this row with a bad value; created only for a row that has one (most have none).
-    let bad: Set<string> | null = null;
-    for (const { spec: col, column, at, convert } of present) {
-      const cell = row.cells[at];
-      if (cell.trim() === '') {
-        if (col.required) {
-          rowOk = false;
-          problems.push({ code: 'missing-value', line: row.line, column: col.name, message: 'a required value is empty', expected: 'a value', found: 'an empty cell' });
-        }
-        continue;
-      }
-      const result = col.type === 'number' ? readNumberCell(cell, column, col, convert) : readTextCell(cell, col);
-      if ('problem' in result) {
-        rowOk = false;
-        (bad ??= new Set<string>()).add(col.name);
-        problems.push({ ...result.problem, line: row.line, column: col.name });
-      } else out[col.field] = result.value;
-    }
-    for (const { spec: col, at } of present) {
-      if (col.needs === undefined || row.cells[at].trim() === '' || bad?.has(col.name) || bad?.has(col.needs)) continue;
-      const partner = index.get(col.needs);
-      if (partner === undefined || row.cells[partner].trim() === '') {
-        rowOk = false;
-        problems.push({
-          code: 'value-without-partner',
-          line: row.line,
-          column: col.name,
-          message: `${col.name} is given without ${col.needs}`,
-          expected: `a value of ${col.needs} in the same row, or no ${col.name}`,
-          found: `${col.name} = ${row.cells[at]} and no ${col.needs}`,
-        });
-      }
-    }
-    if (rowOk) {
-      for (const col of spec.columns as ColumnSpec[]) if (col.absent !== undefined && out[col.field] === undefined) out[col.field] = col.absent;
-      // `line` last, as a spread would put it, without copying the row
-      out.line = row.line;
-      rows.push(out as Row);
-    }
+    const out = validateRow<Row>(row, spec, present, index, complete, problems);
+    if (out !== null) rows.push(out);
   }
 
   if (raw.rows.length === 0) {

@@ -74,6 +74,22 @@ function collectTables(resources: XmlNode[], out: XmlNode[]): XmlNode[] {
   return out;
 }
 
+/** The TABLE's FIELDs as columns (name, line, datatype, unit); an unknown datatype is a problem. */
+function readFields(table: XmlNode, scannable: string, tableLine: number, problems: Problem[]): RawColumn[] {
+  const fieldLines = tagLines(scannable, 'FIELD');
+  return asArray(table.FIELD).map((f, i) => {
+    const line = fieldLines[i] ?? tableLine;
+    const name = String(f['@_name'] ?? '');
+    const datatype = f['@_datatype'] === undefined ? undefined : String(f['@_datatype']);
+    const column: RawColumn = { name, line, datatype, typeClass: datatype === undefined ? undefined : (VOT_DATATYPES[datatype] ?? 'other') };
+    if (datatype === undefined || !(datatype in VOT_DATATYPES)) {
+      problems.push({ code: 'bad-datatype', line, column: name, message: 'unknown or missing VOTable datatype', expected: 'one of ' + Object.keys(VOT_DATATYPES).join(', '), found: shown(datatype) });
+    }
+    if (f['@_unit'] !== undefined) column.unit = String(f['@_unit']);
+    return column;
+  });
+}
+
 export function readVotable(bytes: Uint8Array): ParsedTable {
   const decoded = decodeUtf8(bytes);
   if ('problem' in decoded) return { problems: [decoded.problem] };
@@ -121,18 +137,7 @@ export function readVotable(bytes: Uint8Array): ParsedTable {
   const table = tables[0];
   const tableLine = tableLines[0] ?? 1;
 
-  const fieldLines = tagLines(scannable, 'FIELD');
-  const columns: RawColumn[] = asArray(table.FIELD).map((f, i) => {
-    const line = fieldLines[i] ?? tableLine;
-    const name = String(f['@_name'] ?? '');
-    const datatype = f['@_datatype'] === undefined ? undefined : String(f['@_datatype']);
-    const column: RawColumn = { name, line, datatype, typeClass: datatype === undefined ? undefined : (VOT_DATATYPES[datatype] ?? 'other') };
-    if (datatype === undefined || !(datatype in VOT_DATATYPES)) {
-      problems.push({ code: 'bad-datatype', line, column: name, message: 'unknown or missing VOTable datatype', expected: 'one of ' + Object.keys(VOT_DATATYPES).join(', '), found: shown(datatype) });
-    }
-    if (f['@_unit'] !== undefined) column.unit = String(f['@_unit']);
-    return column;
-  });
+  const columns = readFields(table, scannable, tableLine, problems);
   if (columns.length === 0) {
     problems.push({ code: 'no-columns', line: tableLine, message: 'the TABLE declares no FIELD', expected: 'one FIELD per column', found: 'none' });
     return { problems };

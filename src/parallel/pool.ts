@@ -59,6 +59,28 @@ parentPort.postMessage({ ready: true });
  * JavaScript module) on `workers` worker threads; results in task order. `onResult`, when
  * given, hears of each result as it arrives (in completion order), e.g. for progress.
  */
+/** No worker left: the remaining tasks run in this thread, in order; returns the first failure, or null. */
+async function runRestHere<D, T, R>(
+  moduleUrl: URL,
+  data: D,
+  tasks: readonly T[],
+  rest: number[],
+  results: R[],
+  onResult?: (index: number, result: R) => void,
+): Promise<Error | null> {
+  try {
+    const mod = (await import(moduleUrl.href)) as TaskModule<D, unknown, T, R>;
+    const ctx = mod.setup(data);
+    for (const i of rest.sort((x, y) => x - y)) {
+      results[i] = mod.handle(ctx, tasks[i]);
+      onResult?.(i, results[i]);
+    }
+    return null;
+  } catch (e) {
+    return e as Error;
+  }
+}
+
 export async function mapOnWorkers<D, T, R>(
   moduleUrl: URL,
   data: D,
@@ -95,17 +117,8 @@ export async function mapOnWorkers<D, T, R>(
       slot.w.postMessage({ i, task: tasks[i] });
     };
     const leftToThisThread = async (rest: number[]) => {
-      // no worker left: the remaining tasks run here, in order
-      try {
-        const mod = (await import(moduleUrl.href)) as TaskModule<D, unknown, T, R>;
-        const ctx = mod.setup(data);
-        for (const i of rest.sort((x, y) => x - y)) {
-          results[i] = mod.handle(ctx, tasks[i]);
-          onResult?.(i, results[i]);
-        }
-      } catch (e) {
-        failure ??= e as Error;
-      }
+      const e = await runRestHere(moduleUrl, data, tasks, rest, results, onResult);
+      if (e) failure ??= e;
       finish();
     };
     const all: Slot[] = [];
