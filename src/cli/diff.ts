@@ -38,7 +38,7 @@ export async function runDiff(args: string[], io: DiffIO): Promise<number> {
   const env = io.env ?? process.env;
   const siteGiven = values.site ?? env.RUNGBOOK_SITE;
   if (siteGiven !== undefined) {
-    let ok = false;
+    let ok: boolean;
     try {
       const u = new URL(siteGiven);
       ok = u.protocol === 'http:' || u.protocol === 'https:';

@@ -154,7 +154,7 @@ const YAML_RESERVED = /^(?:y|n|yes|no|on|off|true|false|null|~)$/i;
  * double-quoted with escapes.
  */
 export function yamlString(s: string): string {
-  if (/^[A-Za-z_][A-Za-z0-9_ .\/()*+-]*$/.test(s) && !/ $/.test(s) && !YAML_RESERVED.test(s)) return s;
+  if (/^[A-Za-z_][A-Za-z0-9_ ./()*+-]*$/.test(s) && !/ $/.test(s) && !YAML_RESERVED.test(s)) return s;
   let out = '"';
   for (let i = 0; i < s.length; i++) {
     const code = s.charCodeAt(i);

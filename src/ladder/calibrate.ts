@@ -8,7 +8,6 @@ import type { Release } from '../types/release.ts';
 import type { CheckResult, Results, VariantResult } from '../types/results.ts';
 import { RESULTS_SCHEMA } from '../types/results.ts';
 import { AnalysisError, type AnalysisProblem } from '../types/issues.ts';
-import type { DistancePriorBlock } from './types.ts';
 import { fitParallaxRung } from './parallax.ts';
 import { fitMainSequenceRung } from './mainSequence.ts';
 import { buildDistancePriors } from './mainSequencePriors.ts';
@@ -150,7 +149,6 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
     calibrators: release.snCalibrators,
     hubbleFlow: flowInFit,
   });
-  reached = 'cepheids';
   const supernovae = [...release.snCalibrators, ...flowInFit.map((h) => h.row)];
   const stepProblem = supernovae.length > 0 ? massStepProblem(analysis, supernovae) : null;
   checks.push({

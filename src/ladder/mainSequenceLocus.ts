@@ -183,7 +183,6 @@ function locusExpectationMaximisation(lp: LocusProblem): LocusEm {
     v = ph.map((p) => p + tau2);
     const llNew = mixtureLogLikelihood(r, v, fraction, delta);
     if (Math.abs(llNew - ll) < LOGLIK_TOL * Math.max(1, Math.abs(llNew)) && change < COEFF_TOL) {
-      ll = llNew;
       converged = true;
       break;
     }

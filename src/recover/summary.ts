@@ -262,7 +262,7 @@ export function parseRecoverySummary(file: string, text: string): RecoverySummar
   try {
     v = JSON.parse(text);
   } catch (e) {
-    throw new Error(`${file}: not JSON (${(e as Error).message}); write it with rungbook recover`);
+    throw new Error(`${file}: not JSON (${(e as Error).message}); write it with rungbook recover`, { cause: e });
   }
   const bad = (what: string) => new Error(`${file}: ${what}; write it again with rungbook recover`);
   const s = v as RecoverySummary;

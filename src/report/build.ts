@@ -324,7 +324,7 @@ async function generateReleaseCached(
 /** Remove generated files of releases that are no longer in the report. */
 async function pruneReleases(layout: GenLayout, keep: Set<string>): Promise<void> {
   const stampsDir = join(layout.root, 'stamps');
-  let stamps: string[] = [];
+  let stamps: string[];
   try {
     stamps = await readdir(stampsDir);
   } catch {

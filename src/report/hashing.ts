@@ -52,7 +52,7 @@ export function sha256(...parts: (string | Uint8Array)[]): string {
  */
 export async function calibrationCodeHash(root: string): Promise<string> {
   const src = await hashTree(join(root, 'src'), (rel) => rel === 'report' || rel === 'cli' || rel === 'diff');
-  let lock = '';
+  let lock: string;
   try {
     lock = await readFile(join(root, 'package-lock.json'), 'utf8');
   } catch {

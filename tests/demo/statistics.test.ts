@@ -20,7 +20,7 @@ import { generateUniverse, type Universe } from '../../src/demo/universe.ts';
 import { distanceModulusFromMpc } from '../../src/ladder/distance.ts';
 import { astropyFlatLcdmLuminosityDistances } from '../reference/astropy.ts';
 import { MAG_1E9, STAT_SIGMAS } from '../tolerances.ts';
-import { ecsvRecords, mean, numbers, sd } from './ecsvText.ts';
+import { ecsvRecords, mean, sd } from './ecsvText.ts';
 
 const SEED = 11;
 const SCALE = 4;

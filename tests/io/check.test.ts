@@ -36,7 +36,7 @@ describe('rungbook check', () => {
     expect(r.stdout).toEqual([]);
     let refusal = '';
     await calibrateReleaseDir(dir).catch((e: Error & { hint?: string }) => (refusal = `${e.message}\n  hint: ${e.hint}`));
-    expect(refusal).toMatch(/^1 anchor main-sequence star\(s\) lie in the colour range \[0\.4, 1\.2\]; a degree-3 locus needs at least 20\n  hint: /);
+    expect(refusal).toMatch(/^1 anchor main-sequence star\(s\) lie in the colour range \[0\.4, 1\.2\]; a degree-3 locus needs at least 20\n {2}hint: /);
     expect(r.stderr).toEqual([`rungbook check: ${dir}: ${refusal}`, `${dir}: 1 problem(s): the ladder cannot be calibrated`]);
   });
 

@@ -275,7 +275,7 @@ export function loadValid(dir: string): Release {
   try {
     return loadRelease(dir);
   } catch (err) {
-    if (err instanceof InputError) throw new Error('expected a valid release:\n' + err.issues.map((i) => JSON.stringify(i)).join('\n'));
+    if (err instanceof InputError) throw new Error('expected a valid release:\n' + err.issues.map((i) => JSON.stringify(i)).join('\n'), { cause: err });
     throw err;
   }
 }

@@ -194,7 +194,7 @@ describe('release.yaml: analysis values', () => {
 });
 
 describe('release.yaml: variants', () => {
-  const variants = (items: string): string => VALID_MANIFEST.replace(/  variants:\n[\s\S]*$/, `  variants:\n${items}`);
+  const variants = (items: string): string => VALID_MANIFEST.replace(/ {2}variants:\n[\s\S]*$/, `  variants:\n${items}`);
 
   test('several valid variants', () => {
     const r = parseManifest(variants('    - { name: "a", z_min: 0.01 }\n    - name: "b"\n      sn_alpha: 0.15\n      ms_color_range: [0.5, 1.1]\n'), RELEASE_ID);

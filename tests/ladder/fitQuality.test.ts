@@ -46,7 +46,7 @@ print(json.dumps([t, p]))
     try {
       ref = JSON.parse(execFileSync(scipyPython(), ['-c', py, JSON.stringify(samples)], { encoding: 'utf8' }));
     } catch (e) {
-      throw new Error(`python3 with scipy is required for this reference check (Debian python3-scipy, installed by scripts/test-setup.mjs): ${(e as Error).message}`);
+      throw new Error(`python3 with scipy is required for this reference check (Debian python3-scipy, installed by scripts/test-setup.mjs): ${(e as Error).message}`, { cause: e });
     }
     // scipy uses the sample variance about each sample's mean: chi2 = sum (x - mean)^2, dof = n - 1.
     const groups = samples.map((x) => {
