@@ -37,7 +37,9 @@ function main(): void {
       : files;
     const written = writeReleaseFiles(dir, published);
     const others = readdirSync(dir).filter((f) => !written.includes(f) && f !== 'blinding.json');
-    const rows = Object.entries(truth.rows).map(([t, n]) => `${t} ${n}`).join(', ');
+    const rows = Object.entries(truth.rows)
+      .map(([t, n]) => `${t} ${n}`)
+      .join(', ');
     process.stdout.write(`${dir}: ${written.length} files (${rows})${blindForPublication ? ', BLINDED' : ''}\n`);
     if (others.length > 0) process.stderr.write(`  note: other files present, left alone: ${others.join(', ')}\n`);
   }

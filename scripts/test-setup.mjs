@@ -52,8 +52,7 @@ function hasAptGet() {
  * What the reference tests ask of astropy: its cosmology module computes a
  * luminosity distance (this needs scipy, only a Recommends of python3-astropy).
  */
-const ASTROPY_PROBE =
-  'from astropy.cosmology import FlatLambdaCDM; FlatLambdaCDM(H0=70, Om0=0.3, Tcmb0=0).luminosity_distance(0.1)';
+const ASTROPY_PROBE = 'from astropy.cosmology import FlatLambdaCDM; FlatLambdaCDM(H0=70, Om0=0.3, Tcmb0=0).luminosity_distance(0.1)';
 
 /** First candidate interpreter that can run the astropy probe, or null. */
 function findAstropyPython() {
@@ -68,10 +67,7 @@ let aptUpdated = false;
 function aptInstall(debianPackages, why) {
   const list = debianPackages.join(' ');
   if (!isRoot() || !hasAptGet()) {
-    fail(
-      `${why} is missing. Install the Debian package(s) ${list} ` +
-        `(as root: apt-get update && apt-get install -y ${list}), then run npm test again.`,
-    );
+    fail(`${why} is missing. Install the Debian package(s) ${list} ` + `(as root: apt-get update && apt-get install -y ${list}), then run npm test again.`);
   }
   const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
   if (!aptUpdated) {

@@ -11,7 +11,7 @@ import { readFileSync } from 'node:fs';
 const args = process.argv.slice(2);
 const tolIdx = args.indexOf('--tol');
 const tol = tolIdx >= 0 ? Number(args[tolIdx + 1]) : 1e-9;
-const [fa, fb] = args.filter((a, i) => !a.startsWith("--") && (tolIdx < 0 || i !== tolIdx + 1));
+const [fa, fb] = args.filter((a, i) => !a.startsWith('--') && (tolIdx < 0 || i !== tolIdx + 1));
 const a = JSON.parse(readFileSync(fa!, 'utf8'));
 const b = JSON.parse(readFileSync(fb!, 'utf8'));
 const SKIP = new Set(['provenance', 'code_version']);

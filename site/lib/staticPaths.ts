@@ -18,7 +18,9 @@ export async function perRung() {
 
 /** One page per figure of each release (releases/[id]/figures/[figure]/). */
 export async function perReleaseFigure() {
-  return (await allReleases()).flatMap((release) => Object.values(release.figures).map((fig) => ({ params: { id: release.id, figure: fig.id }, props: { release, fig } })));
+  return (await allReleases()).flatMap((release) =>
+    Object.values(release.figures).map((fig) => ({ params: { id: release.id, figure: fig.id }, props: { release, fig } })),
+  );
 }
 
 /** The recovery page, for the releases with a recovery summary (releases/[id]/recovery/). */

@@ -93,7 +93,10 @@ async function enhance(fig: HTMLElement): Promise<void> {
   box.classList.add('hoverable');
   box.tabIndex = 0;
   box.setAttribute('role', 'group');
-  box.setAttribute('aria-label', `${svg.getAttribute('aria-label') ?? 'Figure'}: ${points.length} points; use the arrow keys to read them one by one and Enter to open one`);
+  box.setAttribute(
+    'aria-label',
+    `${svg.getAttribute('aria-label') ?? 'Figure'}: ${points.length} points; use the arrow keys to read them one by one and Enter to open one`,
+  );
 
   let current = -1;
   const show = (i: number) => {

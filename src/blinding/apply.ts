@@ -44,7 +44,12 @@ export function verifiedOffsetUnits(record: BlindingRecord, file: string): numbe
   if (!u) return null;
   const units = unitsOfOffsetMag(u.offset_mag);
   if (units === null || !offsetInRange(units)) {
-    throw recordIssue(file, 'blinding.json: the recorded offset is not one the scheme can produce', 'a multiple of 0.0001 mag with |offset| <= 0.25', String(u.offset_mag));
+    throw recordIssue(
+      file,
+      'blinding.json: the recorded offset is not one the scheme can produce',
+      'a multiple of 0.0001 mag with |offset| <= 0.25',
+      String(u.offset_mag),
+    );
   }
   if (commitment(Buffer.from(u.salt, 'hex'), units) !== record.commitment) {
     throw recordIssue(
@@ -81,7 +86,7 @@ export function applyBlindingRecord(release: Release, record: BlindingRecord | n
   if (hubbleFile !== record.table || release.snHubbleFlow.length !== record.rows) {
     throw recordIssue(
       file,
-      'the blinding record does not describe this release\'s Hubble-flow table',
+      "the blinding record does not describe this release's Hubble-flow table",
       `${record.table} with ${record.rows} rows`,
       `${hubbleFile ?? 'no Hubble-flow table'} with ${release.snHubbleFlow.length} rows`,
     );

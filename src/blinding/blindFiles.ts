@@ -14,16 +14,7 @@ import { addDecimal, formatDecimal, rescale, sameDecimal, survivesDouble } from 
 import { BlindingError } from './errors.ts';
 import { setBlindedTrue } from './manifestText.ts';
 import { BLINDING_SCHEMA, currentScheme, isIsoDate, serializeBlindingRecord, type BlindingRecord } from './record.ts';
-import {
-  BLINDING_ID_PATTERN,
-  commitment,
-  deriveOffsetUnits,
-  deriveSalt,
-  keyCheck,
-  MIN_KEY_BYTES,
-  OFFSET_DECIMALS,
-  offsetDecimal,
-} from './scheme.ts';
+import { BLINDING_ID_PATTERN, commitment, deriveOffsetUnits, deriveSalt, keyCheck, MIN_KEY_BYTES, OFFSET_DECIMALS, offsetDecimal } from './scheme.ts';
 import { rewriteColumn, TableTextError, type DelimitedFormat } from './tableText.ts';
 
 export type FileContent = string | Uint8Array;
@@ -58,10 +49,16 @@ function asText(name: string, content: FileContent): string {
 
 export function checkBlindingInputs(key: Uint8Array, options: BlindOptions): void {
   if (key.length < MIN_KEY_BYTES) {
-    throw new BlindingError(`the blinding key is too short (${key.length} bytes; at least ${MIN_KEY_BYTES})`, 'make one with, for example, `openssl rand -hex 32`');
+    throw new BlindingError(
+      `the blinding key is too short (${key.length} bytes; at least ${MIN_KEY_BYTES})`,
+      'make one with, for example, `openssl rand -hex 32`',
+    );
   }
   if (!BLINDING_ID_PATTERN.test(options.blindingId)) {
-    throw new BlindingError(`blinding id ${JSON.stringify(options.blindingId)} is not valid`, 'use 1-64 letters, digits, ".", "_" or "-", starting with a letter or digit');
+    throw new BlindingError(
+      `blinding id ${JSON.stringify(options.blindingId)} is not valid`,
+      'use 1-64 letters, digits, ".", "_" or "-", starting with a letter or digit',
+    );
   }
   if (!isIsoDate(options.date)) throw new BlindingError(`date ${JSON.stringify(options.date)} is not a date YYYY-MM-DD`);
 }
@@ -80,14 +77,20 @@ export function blindReleaseFiles(files: Record<string, FileContent>, key: Uint8
     throw new BlindingError(`release.yaml cannot be read: ${(e as Error).message}`);
   }
   if ((parsed as { blinded?: unknown } | null)?.blinded === true) {
-    throw new BlindingError('release.yaml already says "blinded: true" but the release has no blinding.json', 'rungbook blinds only releases that are not blinded yet');
+    throw new BlindingError(
+      'release.yaml already says "blinded: true" but the release has no blinding.json',
+      'rungbook blinds only releases that are not blinded yet',
+    );
   }
 
   const layout = classifyFolder(Object.keys(files));
   const ref = layout.tables.sn_hubble_flow;
   if (!ref) throw new BlindingError('the release has no Hubble-flow table (sn_hubble_flow): there is no H0 to hide');
   if (ref.format === 'votable') {
-    throw new BlindingError(`${ref.fileName} is a VOTable; blinding edits the table text cell by cell and supports ECSV and CSV`, 'convert the table to sn_hubble_flow.ecsv first');
+    throw new BlindingError(
+      `${ref.fileName} is a VOTable; blinding edits the table text cell by cell and supports ECSV and CSV`,
+      'convert the table to sn_hubble_flow.ecsv first',
+    );
   }
   const tableText = asText(ref.fileName, files[ref.fileName]!);
 

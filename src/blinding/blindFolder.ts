@@ -86,11 +86,16 @@ function revealedBy(parent: string, key: Uint8Array, blindingId: string): string
 /** The blinded release must read back as the original with only m_b shifted by the offset. */
 function verifyBlinded(original: Release, blinded: Release, units: number): void {
   const same = (what: string, a: unknown, b: unknown): void => {
-    if (!isDeepStrictEqual(a, b)) throw new BlindingError(`internal check failed: the blinded release differs from the original in ${what}; nothing was written`);
+    if (!isDeepStrictEqual(a, b))
+      throw new BlindingError(`internal check failed: the blinded release differs from the original in ${what}; nothing was written`);
   };
   same('release.yaml', { ...original.manifest, blinded: true }, blinded.manifest);
   same('the analysis choices', [original.analysis, original.analysisKeysSet, original.variants], [blinded.analysis, blinded.analysisKeysSet, blinded.variants]);
-  same('the tables', [original.systems, original.parallax, original.mainSequence, original.cepheids, original.snCalibrators, original.absentTables, original.notes], [blinded.systems, blinded.parallax, blinded.mainSequence, blinded.cepheids, blinded.snCalibrators, blinded.absentTables, blinded.notes]);
+  same(
+    'the tables',
+    [original.systems, original.parallax, original.mainSequence, original.cepheids, original.snCalibrators, original.absentTables, original.notes],
+    [blinded.systems, blinded.parallax, blinded.mainSequence, blinded.cepheids, blinded.snCalibrators, blinded.absentTables, blinded.notes],
+  );
   same('the Hubble-flow table (after adding the offset back)', original.snHubbleFlow, restoreHubbleFlowMagnitudes(blinded.snHubbleFlow, units));
   const unchanged = (r: Release) => r.inputs.filter((i) => i.table !== 'release' && i.table !== 'sn_hubble_flow');
   same('the input files', unchanged(original), unchanged(blinded));
@@ -101,7 +106,8 @@ export function blindReleaseFolder(sourceDir: string, key: Uint8Array, options: 
   const original = loadRelease(source);
   const notes: string[] = [];
   if (original.manifest.blinded) throw new BlindingError('release.yaml already says "blinded: true"', 'rungbook blinds only releases that are not blinded yet');
-  if (statSync(join(source, BLINDING_FILE), { throwIfNoEntry: false })) throw new BlindingError('the release already has a blinding.json: it was blinded before');
+  if (statSync(join(source, BLINDING_FILE), { throwIfNoEntry: false }))
+    throw new BlindingError('the release already has a blinding.json: it was blinded before');
 
   const dest = options.out === undefined ? source : resolve(options.out);
   const tracked = gitTrackedFiles(source);
@@ -117,7 +123,8 @@ export function blindReleaseFolder(sourceDir: string, key: Uint8Array, options: 
     if (basename(dest) !== original.manifest.id) {
       throw new BlindingError(`--out folder must be named as the release id "${original.manifest.id}" (found "${basename(dest)}")`);
     }
-    if (tracked && tracked.length > 0) notes.push(`the source folder is tracked by Git: its true magnitudes are in the repository history, which defeats the blinding`);
+    if (tracked && tracked.length > 0)
+      notes.push(`the source folder is tracked by Git: its true magnitudes are in the repository history, which defeats the blinding`);
   }
   const parent = dirname(dest);
   const revealed = revealedBy(parent, key, options.blindingId);
@@ -154,4 +161,3 @@ export function blindReleaseFolder(sourceDir: string, key: Uint8Array, options: 
   }
   return { dir: dest, record: blinded.record, notes };
 }
-

@@ -48,5 +48,8 @@ export function compareH0Blinding(a: Side, b: Side, names: { a: string; b: strin
     }
     return { meaning: 'different-offsets', message: 'Both releases are BLINDED, not with the same offset: their H0 values cannot be compared.' };
   }
-  return { meaning: 'one-blinded', message: `Release ${a.blinded ? names.a : names.b} is BLINDED and release ${a.blinded ? names.b : names.a} is not: their H0 values cannot be compared.` };
+  return {
+    meaning: 'one-blinded',
+    message: `Release ${a.blinded ? names.a : names.b} is BLINDED and release ${a.blinded ? names.b : names.a} is not: their H0 values cannot be compared.`,
+  };
 }

@@ -32,12 +32,6 @@ export {
 export { blindReleaseFiles, type BlindOptions, type BlindedFiles, type FileContent } from './blindFiles.ts';
 export { blindReleaseFolder, type BlindFolderOptions, type BlindFolderResult } from './blindFolder.ts';
 export { unblindRecord, unblindReleaseDir, type UnblindOptions } from './unblind.ts';
-export {
-  applyBlindingRecord,
-  loadReleaseWithBlinding,
-  restoreHubbleFlowMagnitudes,
-  unblindingSummary,
-  withBlindingRecord,
-} from './apply.ts';
+export { applyBlindingRecord, loadReleaseWithBlinding, restoreHubbleFlowMagnitudes, unblindingSummary, withBlindingRecord } from './apply.ts';
 export { compareH0Blinding, sameBlinding, type H0Comparison, type H0ShiftMeaning } from './compare.ts';
 export { KEY_ENV, readBlindingKey, normaliseKey } from './key.ts';

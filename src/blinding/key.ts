@@ -66,7 +66,8 @@ export function readBlindingKey(keyFile: string | undefined, env: NodeJS.Process
     const real = realpathSync(path);
     for (const g of guarded) {
       const gReal = realExisting(g);
-      if (inside(real, gReal)) throw new BlindingError(`the key file ${keyFile} is inside the release folder; refusing to use it`, 'keep the key outside the repository');
+      if (inside(real, gReal))
+        throw new BlindingError(`the key file ${keyFile} is inside the release folder; refusing to use it`, 'keep the key outside the repository');
       const root = repositoryRoot(gReal);
       if (root && inside(real, realpathSync(root))) {
         throw new BlindingError(
@@ -85,7 +86,10 @@ export function readBlindingKey(keyFile: string | undefined, env: NodeJS.Process
     throw new BlindingError(`no blinding key: give --key-file FILE or set ${KEY_ENV}`, 'the key is never read from the repository');
   }
   if (key.length < MIN_KEY_BYTES) {
-    throw new BlindingError(`the blinding key from ${source} is too short (${key.length} bytes; at least ${MIN_KEY_BYTES})`, 'make one with, for example, `openssl rand -hex 32`');
+    throw new BlindingError(
+      `the blinding key from ${source} is too short (${key.length} bytes; at least ${MIN_KEY_BYTES})`,
+      'make one with, for example, `openssl rand -hex 32`',
+    );
   }
   return { key, source, notes };
 }

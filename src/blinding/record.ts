@@ -131,16 +131,34 @@ export function isIsoDate(s: string): boolean {
 export function parseBlindingRecord(text: string, file: string): BlindingRecord {
   const issues: InputIssue[] = [];
   const bad = (field: string, expected: string, found: unknown): void => {
-    issues.push({ code: 'bad-blinding-record', file, column: field, message: `blinding.json: ${field} is not valid`, expected, found: JSON.stringify(found) ?? String(found) });
+    issues.push({
+      code: 'bad-blinding-record',
+      file,
+      column: field,
+      message: `blinding.json: ${field} is not valid`,
+      expected,
+      found: JSON.stringify(found) ?? String(found),
+    });
   };
   let data: unknown;
   try {
     data = JSON.parse(text.replace(/^\uFEFF/, ''));
   } catch (e) {
-    throw new InputError([{ code: 'bad-json', file, message: `not valid JSON (${(e as Error).message})`, expected: 'the record written by rungbook blind', found: 'unreadable text', hint: 'blinding.json is written by the tool, never by hand' }]);
+    throw new InputError([
+      {
+        code: 'bad-json',
+        file,
+        message: `not valid JSON (${(e as Error).message})`,
+        expected: 'the record written by rungbook blind',
+        found: 'unreadable text',
+        hint: 'blinding.json is written by the tool, never by hand',
+      },
+    ]);
   }
   if (!data || typeof data !== 'object' || Array.isArray(data)) {
-    throw new InputError([{ code: 'bad-blinding-record', file, message: 'blinding.json must hold one JSON object', expected: 'an object', found: typeof data }]);
+    throw new InputError([
+      { code: 'bad-blinding-record', file, message: 'blinding.json must hold one JSON object', expected: 'an object', found: typeof data },
+    ]);
   }
   const o = data as Record<string, unknown>;
   const str = (k: string, test: (s: string) => boolean, expected: string): string => {
@@ -156,7 +174,13 @@ export function parseBlindingRecord(text: string, file: string): BlindingRecord 
   const s = o.scheme as Record<string, unknown> | undefined;
   // the current scheme, or the first one (LEGACY_V1) of releases blinded before zero was a possible offset
   const ours = [currentScheme(), legacySchemeV1()].find(
-    (x) => s && typeof s === 'object' && s.description === x.description && s.offset_step_mag === x.offset_step_mag && s.offset_min_abs_mag === x.offset_min_abs_mag && s.offset_max_abs_mag === x.offset_max_abs_mag,
+    (x) =>
+      s &&
+      typeof s === 'object' &&
+      s.description === x.description &&
+      s.offset_step_mag === x.offset_step_mag &&
+      s.offset_min_abs_mag === x.offset_min_abs_mag &&
+      s.offset_max_abs_mag === x.offset_max_abs_mag,
   );
   if (!ours) {
     bad('scheme', 'the scheme this rungbook implements (see src/blinding/scheme.ts)', s);
@@ -203,7 +227,9 @@ export function readBlindingRecord(dir: string): BlindingRecord | null {
   const stat = statSync(path, { throwIfNoEntry: false });
   if (!stat) return null;
   if (!stat.isFile()) {
-    throw new InputError([{ code: 'bad-blinding-record', file: path, message: 'blinding.json is not a file', expected: 'a file', found: 'a folder or other entry' }]);
+    throw new InputError([
+      { code: 'bad-blinding-record', file: path, message: 'blinding.json is not a file', expected: 'a file', found: 'a folder or other entry' },
+    ]);
   }
   return parseBlindingRecord(readFileSync(path, 'utf8'), path);
 }

@@ -97,7 +97,10 @@ export function unitsOfOffsetMag(mag: number): number | null {
 }
 
 export function commitment(salt: Uint8Array, units: number): string {
-  return createHash('sha256').update(salt).update(COMMITMENT_PREFIX + offsetText(units), 'utf8').digest('hex');
+  return createHash('sha256')
+    .update(salt)
+    .update(COMMITMENT_PREFIX + offsetText(units), 'utf8')
+    .digest('hex');
 }
 
 /** Whether an offset lies in the scheme's range (a record claiming another offset is not ours). */

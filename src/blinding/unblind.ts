@@ -29,7 +29,10 @@ export function unblindRecord(record: BlindingRecord, key: Uint8Array, options: 
   if (by === '' || /[\r\n]/.test(by)) throw new BlindingError('--by must name who unblinds (one line of text)');
   if (!isIsoDate(options.date)) throw new BlindingError(`date ${JSON.stringify(options.date)} is not a date YYYY-MM-DD`);
   if (record.unblinded) {
-    throw new BlindingError(`the release was already unblinded on ${record.unblinded.date} by ${record.unblinded.by}`, 'unblinding is done once; the record stays as it is');
+    throw new BlindingError(
+      `the release was already unblinded on ${record.unblinded.date} by ${record.unblinded.by}`,
+      'unblinding is done once; the record stays as it is',
+    );
   }
   if (keyCheck(key) !== record.key_check) {
     throw new BlindingError(

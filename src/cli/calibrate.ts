@@ -40,7 +40,9 @@ export function summaryText(r: Results): string {
   }
   if (r.unblinding) {
     const o = r.unblinding.offset_mag;
-    lines.push(`Unblinded on ${r.unblinding.date} by ${r.unblinding.by} (offset ${o >= 0 ? '+' : ''}${fmt(o, 4)} mag added back): the values below are the true ones.`);
+    lines.push(
+      `Unblinded on ${r.unblinding.date} by ${r.unblinding.by} (offset ${o >= 0 ? '+' : ''}${fmt(o, 4)} mag added back): the values below are the true ones.`,
+    );
   }
   if (r.h0) {
     const tag = r.blinded ? '  [BLINDED: carries a hidden offset]' : '';

@@ -32,7 +32,8 @@ export async function runDiff(args: string[], io: DiffIO): Promise<number> {
   if (!FORMATS.includes(format)) throw new UsageError(`--format must be one of ${FORMATS.join(', ')}, found ${JSON.stringify(values.format)}`);
   let workers: number | 'auto' = 'auto';
   if (values.workers !== undefined && values.workers !== 'auto') {
-    if (!/^\d+$/.test(values.workers)) throw new UsageError(`--workers must be a whole number (0: no worker threads) or auto, found ${JSON.stringify(values.workers)}`);
+    if (!/^\d+$/.test(values.workers))
+      throw new UsageError(`--workers must be a whole number (0: no worker threads) or auto, found ${JSON.stringify(values.workers)}`);
     workers = Number(values.workers);
   }
   const env = io.env ?? process.env;

@@ -26,7 +26,9 @@ export async function runPublish(args: string[], io: CliIO): Promise<number> {
   const { calibrateReleaseDir } = await import('./calibrate.ts');
   const record = await publishRelease(dir, { date, by, calibrate: calibrateReleaseDir });
   const r = record.results;
-  const h0 = r.h0 ? `H0 = ${r.h0.value.toFixed(2)} ± ${r.h0.stat.toFixed(2)} (stat) ± ${r.h0.sys.toFixed(2)} (sys) km/s/Mpc` : `no H0 (the ladder stops at the ${r.reached.replace('_', ' ')} rung)`;
+  const h0 = r.h0
+    ? `H0 = ${r.h0.value.toFixed(2)} ± ${r.h0.stat.toFixed(2)} (stat) ± ${r.h0.sys.toFixed(2)} (sys) km/s/Mpc`
+    : `no H0 (the ladder stops at the ${r.reached.replace('_', ' ')} rung)`;
   io.stdout(
     `Published release ${record.release} on ${record.published_on}${by ? ` by ${by}` : ''}: ${h0}, computed by code ${record.code_version}.\n` +
       `${record.files.length} files recorded with their SHA-256 in ${join(dir, PUBLISHED_FILE)}.\n` +

@@ -25,11 +25,11 @@ export const RECOVER_USAGE =
   'usage: rungbook recover <release-dir> --seeds N [--first S] [--shard K/M] [--workers W] [--out FILE] [--summary FILE]\n' +
   '       rungbook recover --merge FILES... [--summary FILE]';
 
-
 function integer(name: string, text: string | undefined, fallback: number, min: number): number {
   if (text === undefined) return fallback;
   const v = Number(text);
-  if (!/^\d+$/.test(text.trim()) || !Number.isSafeInteger(v) || v < min) throw new UsageError(`--${name} must be an integer >= ${min}, found ${JSON.stringify(text)}`);
+  if (!/^\d+$/.test(text.trim()) || !Number.isSafeInteger(v) || v < min)
+    throw new UsageError(`--${name} must be an integer >= ${min}, found ${JSON.stringify(text)}`);
   return v;
 }
 
@@ -50,7 +50,9 @@ function fmtStat(s: Statistic, percent: boolean): string {
 export function summaryReport(s: RecoverySummary, file: string): string {
   const b = s.bounds;
   const out: string[] = [];
-  out.push(`Recovery of release ${s.release.id}: ${s.seeds.count} simulated releases (seeds ${s.seeds.first}..${s.seeds.first + s.seeds.count - 1}), ${s.seeds.failed} refused`);
+  out.push(
+    `Recovery of release ${s.release.id}: ${s.seeds.count} simulated releases (seeds ${s.seeds.first}..${s.seeds.first + s.seeds.count - 1}), ${s.seeds.failed} refused`,
+  );
   out.push('Internal result for collaboration review.');
   out.push(`Truth: ${s.truth}.`);
   out.push('Recovery tests the model against itself: it cannot find an effect the simulation leaves out.');
@@ -62,7 +64,9 @@ export function summaryReport(s: RecoverySummary, file: string): string {
   );
   out.push('');
   const w = Math.max(8, ...s.quantities.map((q) => describeQuantity(q.key).length));
-  out.push(`${'quantity'.padEnd(w)}  ${'n'.padStart(5)}  ${'mean pull'.padEnd(15)}  ${'SD of pulls'.padEnd(13)}  ${'1-sigma cover'.padEnd(16)}  ${'2-sigma cover'.padEnd(16)}  verdict`);
+  out.push(
+    `${'quantity'.padEnd(w)}  ${'n'.padStart(5)}  ${'mean pull'.padEnd(15)}  ${'SD of pulls'.padEnd(13)}  ${'1-sigma cover'.padEnd(16)}  ${'2-sigma cover'.padEnd(16)}  verdict`,
+  );
   for (const q of s.quantities) {
     out.push(
       `${describeQuantity(q.key).padEnd(w)}  ${String(q.n).padStart(5)}  ${fmtStat(q.mean, false).padEnd(15)}  ${fmtStat(q.sd, false).padEnd(13)}  ${fmtStat(q.coverage1, true).padEnd(16)}  ${fmtStat(q.coverage2, true).padEnd(16)}  ${q.verdict}`,
@@ -93,13 +97,22 @@ export async function runRecover(args: string[], io: CliIO): Promise<number> {
   const version = codeVersion();
   if (flags.has('merge')) {
     if (positional.length === 0) throw new UsageError(RECOVER_USAGE);
-    for (const v of ['seeds', 'first', 'shard', 'workers', 'out']) if (v in values) throw new UsageError(`--${v} does not apply to --merge (the files say which seeds they hold)`);
+    for (const v of ['seeds', 'first', 'shard', 'workers', 'out'])
+      if (v in values) throw new UsageError(`--${v} does not apply to --merge (the files say which seeds they hold)`);
     const files = positional.map((f) => {
       let text: string;
       try {
         text = readFileSync(f, 'utf8');
       } catch (e) {
-        throw new InputError([{ code: 'recovery-seeds-file', file: f, message: `cannot read the file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, expected: 'a seeds file written by rungbook recover', found: 'no readable file' }]);
+        throw new InputError([
+          {
+            code: 'recovery-seeds-file',
+            file: f,
+            message: `cannot read the file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`,
+            expected: 'a seeds file written by rungbook recover',
+            found: 'no readable file',
+          },
+        ]);
       }
       return { file: f, text };
     });

@@ -6,15 +6,7 @@
  *   writeGeneratedRelease(tmpDir, 'r1', { seed: 7 });         // tests and benchmarks
  */
 export { createRng, hashSeed, type Rng } from './random.ts';
-export {
-  DEMO_PARAMETERS,
-  kinematicDistanceMpc,
-  locusAbsMag,
-  type DemoParameters,
-  type FieldStarTruth,
-  type ReleaseTruth,
-  type SystemTruth,
-} from './truth.ts';
+export { DEMO_PARAMETERS, kinematicDistanceMpc, locusAbsMag, type DemoParameters, type FieldStarTruth, type ReleaseTruth, type SystemTruth } from './truth.ts';
 export { generateUniverse, roundTo, type Universe, type UniverseOptions } from './universe.ts';
 export { observeRelease, statedZeroPoint, type ObservedRelease } from './observe.ts';
 export type { ReleaseSpec, ParallaxCatalogue, CepheidCatalogue, HubbleFlowCatalogue, SimpleCatalogue } from './spec.ts';

@@ -129,7 +129,9 @@ function observeHubbleFlow(universe: Universe, cat: Catalogues, seed: number): T
   const hfFirst = hf.first ?? 0;
   const hfAvailable = universe.snHubbleFlow.length - hfFirst;
   if (!Number.isInteger(hfFirst) || hfFirst < 0 || hfAvailable < 1) {
-    throw new RangeError(`Hubble-flow first index must be an integer in 0..${universe.snHubbleFlow.length - 1}, found ${hfFirst} (is the universe's hubbleFlowPool large enough?)`);
+    throw new RangeError(
+      `Hubble-flow first index must be an integer in 0..${universe.snHubbleFlow.length - 1}, found ${hfFirst} (is the universe's hubbleFlowPool large enough?)`,
+    );
   }
   const hfCount = hf.count ?? hfAvailable;
   if (!Number.isInteger(hfCount) || hfCount < 1 || hfCount > hfAvailable) {
@@ -144,13 +146,7 @@ function observeHubbleFlow(universe: Universe, cat: Catalogues, seed: number): T
 }
 
 /** What the release was drawn from (never written beside it): for recovery tests and the demo's own checks. */
-function releaseTruth(
-  universe: Universe,
-  spec: ReleaseSpec,
-  seed: number,
-  statedZeroPointMas: number,
-  rows: Record<string, number>,
-): ReleaseTruth {
+function releaseTruth(universe: Universe, spec: ReleaseSpec, seed: number, statedZeroPointMas: number, rows: Record<string, number>): ReleaseTruth {
   const pc = spec.catalogues.parallax;
   const omit = new Set(spec.omitTables ?? []);
   const systems: SystemTruth[] = universe.systems.map((s) => ({
@@ -213,10 +209,7 @@ export function observeRelease(universe: Universe, spec: ReleaseSpec, seed: numb
 
   files['release.yaml'] = releaseYaml(spec, statedZeroPointMas, pc.statedZeroPointErrMas);
   if (spec.notes !== null) {
-    const text =
-      typeof spec.notes === 'string'
-        ? spec.notes
-        : spec.notes({ statedZeroPointMas, statedZeroPointErrMas: pc.statedZeroPointErrMas, rows });
+    const text = typeof spec.notes === 'string' ? spec.notes : spec.notes({ statedZeroPointMas, statedZeroPointErrMas: pc.statedZeroPointErrMas, rows });
     files['notes.md'] = text.endsWith('\n') ? text : text + '\n';
   }
   return { files, truth: releaseTruth(universe, spec, seed, statedZeroPointMas, rows), blindForPublication: spec.blindForPublication ?? null };

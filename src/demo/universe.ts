@@ -18,14 +18,7 @@
 import { C_KM_S } from '../constants/index.ts';
 import { distanceModulusFromMpc, distanceModulusFromPc, distancePcFromModulus } from '../ladder/distance.ts';
 import type { SystemKind } from '../types/release.ts';
-import {
-  ANCHOR_NAMES,
-  FIELD_NAME,
-  GALAXY_NAME,
-  MS_TARGET_NAMES,
-  hostName,
-  pad,
-} from './names.ts';
+import { ANCHOR_NAMES, FIELD_NAME, GALAXY_NAME, MS_TARGET_NAMES, hostName, pad } from './names.ts';
 import { createRng, type Rng } from './random.ts';
 import { DEMO_PARAMETERS, kinematicDistanceMpc, locusAbsMag, type DemoParameters, type SystemTruth } from './truth.ts';
 
@@ -439,12 +432,20 @@ function addHubbleFlow(u: UniverseDraft, hubbleFlowPool: number | undefined, sca
     const vPec = flowRng.gauss(0, p.sigmaPecKmS);
     const mu = distanceModulusFromMpc(kinematicDistanceMpc(zCos, p.h0KmSMpc, p.q0, p.j0));
     snHubbleFlow.push(
-      supernova(flowRng, p, `hf-${pad(i, pool >= 10000 ? 5 : 4)}`, null, mu, { zCos, zPec: zCos + vPec / C_KM_S, zErr: roundTo(flowRng.between(0.0001, 0.0004), 5) }, {
-        mbErr: 0.03 + 0.2 * zCos + flowRng.between(0, 0.015),
-        x1Err: Math.min(0.4, 0.1 + 1.5 * zCos + flowRng.between(0, 0.1)),
-        cErr: 0.02 + 0.12 * zCos + flowRng.between(0, 0.01),
-        logMass: [8.6, 11.4],
-      }),
+      supernova(
+        flowRng,
+        p,
+        `hf-${pad(i, pool >= 10000 ? 5 : 4)}`,
+        null,
+        mu,
+        { zCos, zPec: zCos + vPec / C_KM_S, zErr: roundTo(flowRng.between(0.0001, 0.0004), 5) },
+        {
+          mbErr: 0.03 + 0.2 * zCos + flowRng.between(0, 0.015),
+          x1Err: Math.min(0.4, 0.1 + 1.5 * zCos + flowRng.between(0, 0.1)),
+          cErr: 0.02 + 0.12 * zCos + flowRng.between(0, 0.01),
+          logMass: [8.6, 11.4],
+        },
+      ),
     );
   }
 }
@@ -488,8 +489,7 @@ function mainSequenceStar(rng: Rng, p: DemoParameters, star: string, sys: Univer
   const color0 = rng.between(cLo, cHi);
   const binary = rng.chance(p.binaryFraction);
   const scatter = rng.gauss(0, p.msScatterMag);
-  const magTrue =
-    locusAbsMag(p, color0) - p.msFehSlope * sys.feh! + sys.mu! + p.rV * sys.ebv! + scatter - (binary ? p.binaryOffsetMag : 0);
+  const magTrue = locusAbsMag(p, color0) - p.msFehSlope * sys.feh! + sys.mu! + p.rV * sys.ebv! + scatter - (binary ? p.binaryOffsetMag : 0);
   // Deep imaging of the nearby galaxy: its photometry reaches 3 mag fainter at the same error.
   const depth = sys.group === 'galaxy' ? 23 : 20;
   const magErr = roundTo(Math.min(0.25, Math.hypot(0.008, 0.02 * 10 ** (0.2 * (magTrue - depth)))), 3);
@@ -521,8 +521,7 @@ function cepheid(rng: Rng, p: DemoParameters, star: string, sys: UniverseSystem,
   const logP = Math.log10(periodDays);
   const oh = roundTo(o.oh, 3);
   const blended = o.blendable && rng.chance(p.blendFraction);
-  const wTrue =
-    mu + p.mW + p.bW * (logP - p.pivotLogP) + p.zW * oh + rng.gauss(0, p.sigmaIntCepMag) + (blended ? p.blendOffsetMag : 0);
+  const wTrue = mu + p.mW + p.bW * (logP - p.pivotLogP) + p.zW * oh + rng.gauss(0, p.sigmaIntCepMag) + (blended ? p.blendOffsetMag : 0);
   const vi0 = 0.7 + 0.25 * (logP - 1) + rng.gauss(0, 0.04);
   const ih0 = 0.55 + 0.15 * (logP - 1) + rng.gauss(0, 0.03);
   const eVI = o.eVI;

@@ -52,11 +52,7 @@ export interface GeneratedReleaseOptions extends UniverseOptions {
  * and benchmarks; truth.json is never written under a content/releases folder,
  * because a committed (possibly blinded) release must not carry its answer.
  */
-export function writeGeneratedRelease(
-  parentDir: string,
-  id: string,
-  options: GeneratedReleaseOptions,
-): ReleaseTruth & { dir: string } {
+export function writeGeneratedRelease(parentDir: string, id: string, options: GeneratedReleaseOptions): ReleaseTruth & { dir: string } {
   const { seed, scale = 1, release = 'clean', writeTruth = true } = options;
   // Demo releases observe the demo pool (2026.4 needs its second season); clean ones the default.
   const pool = options.hubbleFlowPool ?? (release === 'clean' ? undefined : DEMO_HUBBLE_FLOW_POOL);

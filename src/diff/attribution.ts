@@ -13,8 +13,8 @@ export const ATTRIBUTION_METHOD =
   'Shapley values over the input groups that differ (the tables and the analysis block of release.yaml): ' +
   'H0 is recalibrated (baseline, no variants) for release a with every subset of those groups taken from release b, ' +
   'and each group gets its change averaged over all orders of swapping, so the contributions add up exactly to the total and do not depend on any order. ' +
-  'Hybrid releases take each table whole from one side; the systems table of a hybrid is its side\'s version plus the other side\'s rows for systems ' +
-  'that the hybrid\'s other tables reference and that version lacks.';
+  "Hybrid releases take each table whole from one side; the systems table of a hybrid is its side's version plus the other side's rows for systems " +
+  "that the hybrid's other tables reference and that version lacks.";
 
 export type HybridOutcome = Extract<DiffJobResult, { kind: 'hybrid' }>;
 
@@ -78,9 +78,7 @@ export function attributeShift(x: AttributionInput): AttributionOutcome {
     entries,
     total: totalTrue * blindingScale,
     sum_rel_error: totalTrue !== 0 ? Math.abs(sum - totalTrue) / Math.abs(totalTrue) : Math.abs(sum),
-    hybrids: [...values.entries()]
-      .sort(([p], [q]) => p - q)
-      .map(([m, v]) => ({ groups: groups.filter((_, i) => m & (1 << i)), h0: x.hideValues ? null : v })),
+    hybrids: [...values.entries()].sort(([p], [q]) => p - q).map(([m, v]) => ({ groups: groups.filter((_, i) => m & (1 << i)), h0: x.hideValues ? null : v })),
     method: ATTRIBUTION_METHOD,
     blinding_scale: blindingScale,
   };

@@ -26,7 +26,18 @@ import { REFIT_TASK, type RefitTaskData } from './refitTask.ts';
 import { tableRows } from './rows.ts';
 import { h0Shift, linearSigma, parameterShifts, SN_TABLES, systemShifts, systemsWithChangedInputs } from './shifts.ts';
 import { prepareSide, SIGMA_METHOD, type PreparedSide } from './sigma.ts';
-import { DIFF_SCHEMA, GROUP_NAMES, type BlindingComparison, type DiffReport, type GroupName, type H0Shift, type InputChanges, type ObjectInfluence, type ParameterShift, type SystemShift } from './types.ts';
+import {
+  DIFF_SCHEMA,
+  GROUP_NAMES,
+  type BlindingComparison,
+  type DiffReport,
+  type GroupName,
+  type H0Shift,
+  type InputChanges,
+  type ObjectInfluence,
+  type ParameterShift,
+  type SystemShift,
+} from './types.ts';
 
 export { ATTRIBUTION_METHOD } from './attribution.ts';
 export { ROW_REFIT_CAP, TOP_OBJECTS } from './movers.ts';
@@ -235,13 +246,39 @@ async function compareWith(workers: number, a: Release, b: Release, options: Com
   let notEstimated = 0;
   if (!blinding.shift_hidden && lA !== null && lB !== null && shifts.prepA && shifts.prepB) {
     const { prepA, prepB } = shifts;
-    ({ objects, notEstimated } = rowsThatMovedH0({ a, b, sharing, cells: inputChanges.cells, prepA, prepB, lA, lB, swaps, swapResults: refits.swaps, blindingScale: attributed.blindingScale }));
+    ({ objects, notEstimated } = rowsThatMovedH0({
+      a,
+      b,
+      sharing,
+      cells: inputChanges.cells,
+      prepA,
+      prepB,
+      lA,
+      lB,
+      swaps,
+      swapResults: refits.swaps,
+      blindingScale: attributed.blindingScale,
+    }));
     if (attributed.attribution) addRowSums(attributed.attribution, objects);
   }
   objects.sort(byEffect);
   const statusOf = (t: TableName, id: string) => sharing.status(t, id) ?? 'same';
   const overlays = buildOverlays(resA, resB, statusOf, (id) => shifts.changedSystems.has(id), blinding.shift_hidden);
-  return diffReport({ a, b, resA, resB, blinding, identical: identicalInputs(a, b, inputChanges, groups), shifts, attributed, inputChanges, objects, notEstimated, overlays, options });
+  return diffReport({
+    a,
+    b,
+    resA,
+    resB,
+    blinding,
+    identical: identicalInputs(a, b, inputChanges, groups),
+    shifts,
+    attributed,
+    inputChanges,
+    objects,
+    notEstimated,
+    overlays,
+    options,
+  });
 }
 
 interface ReportParts {
@@ -289,7 +326,10 @@ function diffReport(p: ReportParts): DiffReport {
     overlays: p.overlays,
     links:
       options.site !== undefined
-        ? linksFor({ attribution: attribution?.entries ?? [], overlays: p.overlays }, buildLinks(options.site, options.base, a.manifest.id, b.manifest.id, b.manifest.previous))
+        ? linksFor(
+            { attribution: attribution?.entries ?? [], overlays: p.overlays },
+            buildLinks(options.site, options.base, a.manifest.id, b.manifest.id, b.manifest.previous),
+          )
         : null,
   };
 }

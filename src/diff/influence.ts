@@ -36,10 +36,10 @@ import { covTimes, log10H0Gradient, type FitSnapshot } from './snapshot.ts';
 import type { PreparedSide } from './sigma.ts';
 
 export const INFLUENCE_METHOD =
-  'Per-row estimates, no recalibration: for rows in the global fit (Cepheids, supernovae, field-star parallaxes) the exact change of the fit\'s ' +
+  "Per-row estimates, no recalibration: for rows in the global fit (Cepheids, supernovae, field-star parallaxes) the exact change of the fit's " +
   'GLS solution when the old version of the row is removed and the new one added (two rank-one updates of F^-1, at fixed intrinsic scatters ' +
-  'and outliers), plus the response of alpha and beta (one Newton step on the profile chi-square); for anchor parallaxes the anchor\'s modulus recomputed with the row swapped, propagated through the fit\'s ' +
-  'weights of the prior moduli including the main-sequence targets\' dependence on the anchors. Each estimate is made from both releases\' fits ' +
+  "and outliers), plus the response of alpha and beta (one Newton step on the profile chi-square); for anchor parallaxes the anchor's modulus recomputed with the row swapped, propagated through the fit's " +
+  "weights of the prior moduli including the main-sequence targets' dependence on the anchors. Each estimate is made from both releases' fits " +
   '(a with the row swapped to b, b with it swapped back) and averaged. Main-sequence and systems rows are estimated by recalibrating release a ' +
   'with the row (or, above a cap, all changed rows of one system) swapped. Estimates are first order and do not add up exactly to the ' +
   'group contributions; their sums are shown beside them.';
@@ -90,12 +90,7 @@ const EMPTY_PRIORS = { systems: [], method: [], mu: [], zpLoading: [], parts: []
  * The fit row of another version of a row under this side's analysis and fit state, built with
  * the fit's own model code; null when it needs a parameter the side's fit lacks or is cut.
  */
-function buildFitRow(
-  snap: FitSnapshot,
-  fieldSystems: ReadonlySet<string>,
-  table: RowTable,
-  row: AnyRow,
-): FitRow | null {
+function buildFitRow(snap: FitSnapshot, fieldSystems: ReadonlySet<string>, table: RowTable, row: AnyRow): FitRow | null {
   const analysis: AnalysisChoices = snap.analysis;
   const hasZeta = snap.paramNames.includes('zeta');
   const input: GlobalFitInput = {
@@ -117,7 +112,13 @@ function buildFitRow(
     if (mu0 === undefined) return null;
     // as the parallax rung builds a field star (parallax.ts): corrected parallax, floor in quadrature
     input.fieldStars = [
-      { star: p.star, system: p.system, line: p.line, parallaxCorrMas: p.parallaxMas - analysis.parallax_zero_point, parallaxErrMas: Math.hypot(p.parallaxErrMas, analysis.parallax_floor) },
+      {
+        star: p.star,
+        system: p.system,
+        line: p.line,
+        parallaxCorrMas: p.parallaxMas - analysis.parallax_zero_point,
+        parallaxErrMas: Math.hypot(p.parallaxErrMas, analysis.parallax_floor),
+      },
     ];
     linearisedMu.push(mu0);
   } else if (table === 'cepheids') {
@@ -187,11 +188,7 @@ function covTimesRow(snap: FitSnapshot, r: FitRow): Float64Array {
  * rank-one updates at fixed alpha, beta and scatters; null when removing the row would leave a
  * parameter undetermined (leverage 1). Also the residuals of the two rows used.
  */
-export function swapResponse(
-  snap: FitSnapshot,
-  oldRow: FitRow | null,
-  newRow: FitRow | null,
-): { dq: Float64Array; rOld: number; rNew: number } | null {
+export function swapResponse(snap: FitSnapshot, oldRow: FitRow | null, newRow: FitRow | null): { dq: Float64Array; rOld: number; rNew: number } | null {
   const p = snap.paramNames.length;
   const dq = new Float64Array(p);
   let r1 = 0;
@@ -253,11 +250,7 @@ function rowThetaGradient(sn: SupernovaLightCurve, r: number, v: number, snap: F
   return d.map((da, a) => (2 * r * da) / v - (r * r * dv[a]) / (v * v));
 }
 
-function standardisationResponse(
-  snap: FitSnapshot,
-  release: Release,
-  g: ArrayLike<number>,
-): StandardisationResponse | null {
+function standardisationResponse(snap: FitSnapshot, release: Release, g: ArrayLike<number>): StandardisationResponse | null {
   const free = snap.standardisation.names.filter((n): n is 'alpha' | 'beta' => n === 'alpha' || n === 'beta');
   const m = free.length;
   if (m === 0) return null;
@@ -280,7 +273,10 @@ function standardisationResponse(
       for (let a = 0; a < m; a++) {
         for (let b = 0; b < m; b++) {
           h[a][b] +=
-            (2 * d[a] * d[b]) / v - (2 * r * (d[a] * dv[b] + dv[a] * d[b])) / (v * v) + (2 * r * r * dv[a] * dv[b]) / (v * v * v) - (r * r * hv[a][b]) / (v * v);
+            (2 * d[a] * d[b]) / v -
+            (2 * r * (d[a] * dv[b] + dv[a] * d[b])) / (v * v) +
+            (2 * r * r * dv[a] * dv[b]) / (v * v * v) -
+            (r * r * hv[a][b]) / (v * v);
         }
         const w = d[a] / v - (r * dv[a]) / (v * v);
         for (let k = 0; k < row.idx.length; k++) u[row.idx[k] * m + a] += row.coef[k] * w;
@@ -472,7 +468,10 @@ function fitRowEffect(e: SideEstimator, fitTable: RowTable, id: string, mine: An
 /** A field star's parallax: the star enters the fit with its own parallax (only Cepheids do). */
 function fieldStarEffect(e: SideEstimator, system: string, id: string, pm: ParallaxRow | undefined, pt: ParallaxRow | undefined): number | null {
   const oldRow = pm && pm.system === system ? rowInFit(e.snap, 'field_parallax', id) : null;
-  const newRow = pt && pt.system === system && usedInFit(e.otherSnap, 'field_parallax', id) ? buildFitRow(e.snap, e.fieldSystems, 'field_parallax', pt as unknown as AnyRow) : null;
+  const newRow =
+    pt && pt.system === system && usedInFit(e.otherSnap, 'field_parallax', id)
+      ? buildFitRow(e.snap, e.fieldSystems, 'field_parallax', pt as unknown as AnyRow)
+      : null;
   if (pt && pt.system === system && usedInFit(e.otherSnap, 'field_parallax', id) && !newRow) return null;
   return swapEffect(e.snap, e.g, e.std, oldRow, newRow, null, null);
 }
@@ -493,7 +492,12 @@ function anchorEffect(e: SideEstimator, system: string, id: string, pt: Parallax
 }
 
 /** A parallax row: summed over the systems it belongs to on either side; null when any cannot be estimated. */
-function parallaxRowEffect(e: SideEstimator, id: string, pm: ParallaxRow | undefined, pt: ParallaxRow | undefined): { dLog10: number; kind: RowEstimate['kind'] } | null {
+function parallaxRowEffect(
+  e: SideEstimator,
+  id: string,
+  pm: ParallaxRow | undefined,
+  pt: ParallaxRow | undefined,
+): { dLog10: number; kind: RowEstimate['kind'] } | null {
   const systems = new Set([pm?.system, pt?.system].filter((s): s is string => s !== undefined));
   let total = 0;
   let kind: RowEstimate['kind'] = 'linear';

@@ -7,29 +7,8 @@
 import { ANALYSIS_KEYS } from '../types/analysis.ts';
 import { TABLE_NAMES, type InputFile, type Release, type TableName } from '../types/release.ts';
 import { editDistance } from '../io/suggest.ts';
-import {
-  changedColumns,
-  columnsOf,
-  idField,
-  indexById,
-  ROW_NOUN,
-  rowId,
-  rowSystem,
-  sameValue,
-  statusOfPair,
-  tableRows,
-  type AnyRow,
-} from './rows.ts';
-import type {
-  AnalysisChange,
-  ChangedCell,
-  ColumnChange,
-  ColumnSummary,
-  InputChanges,
-  RowChangeRef,
-  TableChange,
-  VariantChange,
-} from './types.ts';
+import { changedColumns, columnsOf, idField, indexById, ROW_NOUN, rowId, rowSystem, sameValue, statusOfPair, tableRows, type AnyRow } from './rows.ts';
+import type { AnalysisChange, ChangedCell, ColumnChange, ColumnSummary, InputChanges, RowChangeRef, TableChange, VariantChange } from './types.ts';
 
 /** Ids of added and removed rows listed in a table's summary (all of them are in input_changes). */
 export const LISTED_IDS = 20;
@@ -101,7 +80,13 @@ export function columnChanges(a: Release, b: Release, table: TableName): ColumnC
         unit_a: ua.unit,
         unit_b: ub.unit,
         contract: ua.contract || ub.contract,
-        detail: `column "${name}" is now "${best}"` + (ua.contract && !ub.contract ? ' (the ladder no longer reads it: not a contract column name)' : !ua.contract && ub.contract ? ' (now read by the ladder)' : ''),
+        detail:
+          `column "${name}" is now "${best}"` +
+          (ua.contract && !ub.contract
+            ? ' (the ladder no longer reads it: not a contract column name)'
+            : !ua.contract && ub.contract
+              ? ' (now read by the ladder)'
+              : ''),
       });
     } else {
       out.push({ kind: 'removed', column_a: name, column_b: null, unit_a: ua.unit, unit_b: null, contract: ua.contract, detail: `column "${name}" removed` });
@@ -242,7 +227,14 @@ export function diffTable(a: Release, b: Release, table: TableName): TableDiff {
       unchanged,
       order_changed: orderChanged,
       bytes_only:
-        bytesDiffer && changed === 0 && added.length === 0 && removed.length === 0 && !orderChanged && columnChangesList.length === 0 && fa?.format === fb?.format && fa?.file === fb?.file,
+        bytesDiffer &&
+        changed === 0 &&
+        added.length === 0 &&
+        removed.length === 0 &&
+        !orderChanged &&
+        columnChangesList.length === 0 &&
+        fa?.format === fb?.format &&
+        fa?.file === fb?.file,
       noun: ROW_NOUN[table],
       columns: summarise(table, pairs),
       column_changes: columnChangesList,
@@ -315,11 +307,6 @@ export function diffInputs(a: Release, b: Release): InputChanges {
 /** Whether a table has any change at all (rows, order, columns, units, file bytes). */
 export function tableTouched(t: TableChange): boolean {
   return (
-    t.added + t.removed + t.changed > 0 ||
-    t.order_changed ||
-    t.column_changes.length > 0 ||
-    t.bytes_only ||
-    t.file_a !== t.file_b ||
-    t.format_a !== t.format_b
+    t.added + t.removed + t.changed > 0 || t.order_changed || t.column_changes.length > 0 || t.bytes_only || t.file_a !== t.file_b || t.format_a !== t.format_b
   );
 }

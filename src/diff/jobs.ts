@@ -14,10 +14,7 @@ import { earlyRungKey, groupsOfMask, hybridRelease } from './hybrid.ts';
 import { indexById, rowId, tableField, tableRows, type AnyRow } from './rows.ts';
 import { fitSnapshot, type FitSnapshot } from './snapshot.ts';
 
-export type DiffJob =
-  | { kind: 'side'; side: 'a' | 'b' }
-  | { kind: 'hybrid'; mask: number }
-  | { kind: 'swap'; table: TableName; ids: string[] };
+export type DiffJob = { kind: 'side'; side: 'a' | 'b' } | { kind: 'hybrid'; mask: number } | { kind: 'swap'; table: TableName; ids: string[] };
 
 export type DiffJobResult =
   | { kind: 'side'; side: 'a' | 'b'; results: Results | null; snapshot: FitSnapshot | null; error: string | null; hint: string | null }

@@ -21,7 +21,9 @@ export const TOP_OBJECTS = 10;
 /** Tables whose rows are estimated without recalibrating (influence.ts), and those estimated by recalibrating release a with the row swapped: each table's `rowShift` in the registry. */
 const LINEAR_TABLES: TableName[] = TABLE_NAMES.filter((t) => TABLE_SPECS[t].rowShift === 'first-order');
 // the systems table last: a system's priors are planned after the rows of its stars
-const REFIT_TABLES: TableName[] = TABLE_NAMES.filter((t) => TABLE_SPECS[t].rowShift === 'refit').sort((x, y) => Number(x === 'systems') - Number(y === 'systems'));
+const REFIT_TABLES: TableName[] = TABLE_NAMES.filter((t) => TABLE_SPECS[t].rowShift === 'refit').sort(
+  (x, y) => Number(x === 'systems') - Number(y === 'systems'),
+);
 
 export interface SwapPlan {
   table: TableName;
@@ -71,7 +73,13 @@ export function planSwaps(a: Release, b: Release, sharing: NoiseSharing): SwapPl
   return [...bySystem.values()]
     .sort((x, y) => y.ids.length - x.ids.length || (x.table < y.table ? -1 : x.table > y.table ? 1 : x.system < y.system ? -1 : x.system > y.system ? 1 : 0))
     .slice(0, ROW_REFIT_CAP)
-    .map((e) => ({ table: e.table, ids: e.ids, level: e.ids.length > 1 ? 'system' : 'row', id: e.ids.length > 1 ? e.system : e.ids[0], system: e.system || null }));
+    .map((e) => ({
+      table: e.table,
+      ids: e.ids,
+      level: e.ids.length > 1 ? 'system' : 'row',
+      id: e.ids.length > 1 ? e.system : e.ids[0],
+      system: e.system || null,
+    }));
 }
 
 /**

@@ -52,9 +52,7 @@ export function noiseSharing(a: Release, b: Release): NoiseSharing {
   };
   const kinds = new Map<string, string>();
   for (const s of [...a.systems, ...b.systems]) if (s.kind !== 'field') kinds.set(s.system, s.kind);
-  const anchorSystems = new Set(
-    [...a.parallax, ...b.parallax].filter((r) => kinds.has(r.system)).map((r) => r.system),
-  );
+  const anchorSystems = new Set([...a.parallax, ...b.parallax].filter((r) => kinds.has(r.system)).map((r) => r.system));
   const parallaxAllCommon = allCommon('parallax', () => true);
   const anchorsCommon = allCommon('parallax', (s) => anchorSystems.has(s));
   const locusCommon = anchorsCommon && allCommon('main_sequence', (s) => anchorSystems.has(s));
@@ -80,10 +78,7 @@ export function noiseSharing(a: Release, b: Release): NoiseSharing {
       if (v === undefined) {
         if (anchorSystems.has(system)) v = allCommon('parallax', (s) => s === system);
         else {
-          v =
-            locusCommon &&
-            allCommon('main_sequence', (s) => s === system) &&
-            isCommon(statusOf('systems').get(system));
+          v = locusCommon && allCommon('main_sequence', (s) => s === system) && isCommon(statusOf('systems').get(system));
         }
         cache.set(system, v);
       }

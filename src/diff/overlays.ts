@@ -24,15 +24,7 @@ function thinModel(points: { x: number; y: number }[]): { x: number; y: number }
   return Array.from({ length: MODEL_POINTS_MAX }, (_, i) => points[Math.round(i * step)]);
 }
 
-function point(
-  id: string,
-  system: string | null,
-  x: number,
-  y: number,
-  yErr: number | null,
-  rejected: boolean,
-  status: RowStatus,
-): OverlayPoint {
+function point(id: string, system: string | null, x: number, y: number, yErr: number | null, rejected: boolean, status: RowStatus): OverlayPoint {
   return { id, system, x, y, y_err: yErr, rejected, changed: status !== 'same', status };
 }
 
@@ -88,13 +80,7 @@ const EMPTY: OverlaySide = { points: [], model: [] };
  * its status there is 'corrected' for any change). With `hideFlow` (the H0 shift is withheld by
  * blinding) the Hubble-flow supernovae are left out of every overlay.
  */
-export function buildOverlays(
-  a: Results,
-  b: Results,
-  statusOf: StatusOf,
-  systemChanged: (id: string) => boolean,
-  hideFlow = false,
-): Overlay[] {
+export function buildOverlays(a: Results, b: Results, statusOf: StatusOf, systemChanged: (id: string) => boolean, hideFlow = false): Overlay[] {
   const blinded = a.blinded || b.blinded;
   const withheld = hideFlow ? FLOW_WITHHELD : null;
   return [

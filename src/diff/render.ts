@@ -9,7 +9,17 @@ import { ANALYSIS_UNITS } from '../types/analysis.ts';
 import { tableTouched } from './inputs.ts';
 import type { ColumnSummary, DiffReport, ObjectInfluence, ParameterShift, SystemShift, TableChange } from './types.ts';
 import { objectLink, systemPagePath } from '../layout/routes.ts';
-import { GROUP_NAME_IN_TEXT, h0Headline, MESSAGE, PLAIN, rankedContributions, rankedInputChanges, sigmaWords, signedNumber, type RankedInputChange } from './vocabulary.ts';
+import {
+  GROUP_NAME_IN_TEXT,
+  h0Headline,
+  MESSAGE,
+  PLAIN,
+  rankedContributions,
+  rankedInputChanges,
+  sigmaWords,
+  signedNumber,
+  type RankedInputChange,
+} from './vocabulary.ts';
 
 export { rankedContributions };
 
@@ -21,7 +31,6 @@ export const TEXT_SYSTEMS_MAX = 30;
 export const MARKDOWN_CONTRIBUTIONS_MAX = 3;
 export const MARKDOWN_INPUTS_MAX = 4;
 export const MARKDOWN_OBJECTS_MAX = 5;
-
 
 /** x with a sign and `digits` decimals, as plain text ("+0.12", "-0.03", "0.00" for an exact zero). */
 export function signed(x: number, digits: number): string {
@@ -117,12 +126,14 @@ function systemRow(s: SystemShift): string {
 
 /** What moved H0: each differing group's Shapley share, the unchanged groups, the total. */
 function attributionSection(r: DiffReport): string[] {
-  const L = ['What moved H0 (each input group\'s share of the shift; they add up to it)'];
+  const L = ["What moved H0 (each input group's share of the shift; they add up to it)"];
   if (r.attribution.length === 0) return [...L, `  ${r.attribution_note ?? 'no attribution'}`];
   for (const e of r.attribution) {
     if (!e.differs) continue;
     const rows = e.rows_sum === null ? '' : `   (sum of its row estimates ${signed(e.rows_sum, 3)})`;
-    L.push(`  ${e.group.padEnd(16)} ${signed(e.delta_h0, 3).padStart(8)} km/s/Mpc${e.fraction === null ? '' : `  ${(100 * e.fraction).toFixed(0).padStart(4)} %`}${rows}`);
+    L.push(
+      `  ${e.group.padEnd(16)} ${signed(e.delta_h0, 3).padStart(8)} km/s/Mpc${e.fraction === null ? '' : `  ${(100 * e.fraction).toFixed(0).padStart(4)} %`}${rows}`,
+    );
   }
   const unchanged = r.attribution.filter((e) => !e.differs).map((e) => e.group);
   if (unchanged.length) L.push(`  unchanged (0): ${unchanged.join(', ')}`);
@@ -158,10 +169,12 @@ function inputSection(r: DiffReport): string[] {
     for (const c of t.columns) L.push(`    ${columnLine(t, c)}`);
     for (const c of t.column_changes) L.push(`    column: ${c.detail}`);
     if (t.added_ids.length) L.push(`    added: ${t.added_ids.join(', ')}${t.added > t.added_ids.length ? `, ... (${t.added - t.added_ids.length} more)` : ''}`);
-    if (t.removed_ids.length) L.push(`    removed: ${t.removed_ids.join(', ')}${t.removed > t.removed_ids.length ? `, ... (${t.removed - t.removed_ids.length} more)` : ''}`);
+    if (t.removed_ids.length)
+      L.push(`    removed: ${t.removed_ids.join(', ')}${t.removed > t.removed_ids.length ? `, ... (${t.removed - t.removed_ids.length} more)` : ''}`);
   }
   const ic = r.input_changes;
-  for (const c of ic.analysis) L.push(`  analysis: ${c.key} ${JSON.stringify(c.a)} -> ${JSON.stringify(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}${defaultsNote(c)}`);
+  for (const c of ic.analysis)
+    L.push(`  analysis: ${c.key} ${JSON.stringify(c.a)} -> ${JSON.stringify(c.b)}${unitSuffix(ANALYSIS_UNITS[c.key])}${defaultsNote(c)}`);
   for (const key of ic.analysis_set_only) L.push(`  analysis: ${key} has the same value, set in release.yaml on one side and left to its default on the other`);
   for (const v of ic.variants) L.push(`  variant ${v.kind}: "${v.name}"${v.kind === 'changed' ? ` ${JSON.stringify(v.a)} -> ${JSON.stringify(v.b)}` : ''}`);
   for (const m of ic.manifest) L.push(`  release.yaml ${m.field}: ${JSON.stringify(m.a)} -> ${JSON.stringify(m.b)}`);
@@ -299,7 +312,10 @@ export function renderMarkdown(r: DiffReport): string {
   if (top.length && h && h.delta !== null) {
     L.push('');
     L.push(cancelling ? 'What moved it (partly cancelling):' : 'What moved it:');
-    for (const e of top) L.push(`- ${GROUP_NAME_IN_TEXT[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`);
+    for (const e of top)
+      L.push(
+        `- ${GROUP_NAME_IN_TEXT[e.group]}: ${signed(e.delta_h0, 2)} km/s/Mpc${cancelling || e.fraction === null ? '' : ` (${(100 * e.fraction).toFixed(0)} %)`}`,
+      );
     const objs = r.top_objects.slice(0, MARKDOWN_OBJECTS_MAX);
     if (objs.length) {
       const named = (o: ObjectInfluence) => {
@@ -330,11 +346,15 @@ export function renderMarkdown(r: DiffReport): string {
     L.push(`BLINDED: ${r.blinding.note}.`);
   }
   L.push('');
-  L.push('σ of a difference: each row\'s error propagated through both fits, shared rows counted once (identical data → 0; nested samples → √(σa² − σb²)).');
+  L.push("σ of a difference: each row's error propagated through both fits, shared rows counted once (identical data → 0; nested samples → √(σa² − σb²)).");
   if (r.links) {
     L.push('');
-    const figs = Object.entries(r.links.figures).map(([k, url]) => `[${k}](${url})`).join(' · ');
-    L.push(`[Comparison page](${r.links.page})${r.links.matches_report ? '' : ` (it compares ${r.b} with ${r.releases.b.previous ?? 'no earlier release'})`}${figs ? ` · Figures: ${figs}` : ''}`);
+    const figs = Object.entries(r.links.figures)
+      .map(([k, url]) => `[${k}](${url})`)
+      .join(' · ');
+    L.push(
+      `[Comparison page](${r.links.page})${r.links.matches_report ? '' : ` (it compares ${r.b} with ${r.releases.b.previous ?? 'no earlier release'})`}${figs ? ` · Figures: ${figs}` : ''}`,
+    );
   }
   L.push('');
   L.push('_Internal results for collaboration review; not for citation._');

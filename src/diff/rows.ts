@@ -11,7 +11,6 @@ import type { RowStatus } from './types.ts';
 /** A row of any table: the typed fields plus `line`. */
 export type AnyRow = Record<string, unknown> & { line: number };
 
-
 /** Property of Release holding a table's rows. */
 export function tableField(table: TableName): keyof Release {
   return TABLE_SPECS[table].releaseField;

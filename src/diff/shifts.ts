@@ -142,7 +142,8 @@ function parameterSigma(
     const sigma = linear(FIT_PARAMETER[name], 1, 1);
     if (sigma !== null) return { sigma, rule: 'linear' };
   }
-  const nested = name === 'sigma_int_cepheid' ? sharing.nested(['cepheids']) : name === 'alpha' || name === 'beta' || name === 'sigma_int_sn' ? snNested : false;
+  const nested =
+    name === 'sigma_int_cepheid' ? sharing.nested(['cepheids']) : name === 'alpha' || name === 'beta' || name === 'sigma_int_sn' ? snNested : false;
   return { sigma: sigmaByRule(pa.err, pb.err, nested), rule: nested ? 'nested' : 'independent' };
 }
 

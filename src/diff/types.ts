@@ -13,15 +13,7 @@ export const DIFF_SCHEMA = 'rungbook.diff/1';
 export type GroupName = TableName | 'analysis';
 
 /** Fixed order of the groups in the attribution (tables in the ladder's order, analysis last). */
-export const GROUP_NAMES: readonly GroupName[] = [
-  'parallax',
-  'main_sequence',
-  'cepheids',
-  'sn_calibrators',
-  'sn_hubble_flow',
-  'systems',
-  'analysis',
-];
+export const GROUP_NAMES: readonly GroupName[] = ['parallax', 'main_sequence', 'cepheids', 'sn_calibrators', 'sn_hubble_flow', 'systems', 'analysis'];
 
 /** What happened to one row between the releases, matched by its id. */
 export type RowStatus =

@@ -143,7 +143,8 @@ export function rankedContributions(r: Pick<DiffReport, 'attribution'>): { movin
   return { moving, cancelling: moving.some((e) => Math.sign(e.delta_h0) !== Math.sign(moving[0]!.delta_h0)) };
 }
 
-export type RankedInputChange = { kind: 'table'; change: TableChange } | { kind: 'analysis'; change: AnalysisChange } | { kind: 'variant'; change: VariantChange };
+export type RankedInputChange =
+  { kind: 'table'; change: TableChange } | { kind: 'analysis'; change: AnalysisChange } | { kind: 'variant'; change: VariantChange };
 
 /**
  * A column added, removed or renamed touches every row of its table: it ranks above any count
@@ -159,7 +160,8 @@ const COLUMN_CHANGE_WEIGHT = 1e6;
  */
 export function rankedInputChanges(r: Pick<DiffReport, 'inputs' | 'input_changes'>): RankedInputChange[] {
   const out: { weight: number; item: RankedInputChange }[] = [];
-  for (const t of r.inputs.filter(tableTouched)) out.push({ weight: t.added + t.removed + t.changed + (t.column_changes.length ? COLUMN_CHANGE_WEIGHT : 0), item: { kind: 'table', change: t } });
+  for (const t of r.inputs.filter(tableTouched))
+    out.push({ weight: t.added + t.removed + t.changed + (t.column_changes.length ? COLUMN_CHANGE_WEIGHT : 0), item: { kind: 'table', change: t } });
   for (const c of r.input_changes.analysis) out.push({ weight: Infinity, item: { kind: 'analysis', change: c } });
   for (const v of r.input_changes.variants) out.push({ weight: 0, item: { kind: 'variant', change: v } });
   return out.sort((x, y) => y.weight - x.weight).map((x) => x.item);

@@ -114,7 +114,13 @@ function parseHeader(yamlLines: string[], secondLine: string, problems: Problem[
   }
   const header = doc.contents;
   if (!isMap(header)) {
-    problems.push({ code: 'bad-header', line: 2, message: 'the ECSV header is not a YAML mapping', expected: 'keys datatype, delimiter, meta', found: shown(doc.toJS()) });
+    problems.push({
+      code: 'bad-header',
+      line: 2,
+      message: 'the ECSV header is not a YAML mapping',
+      expected: 'keys datatype, delimiter, meta',
+      found: shown(doc.toJS()),
+    });
     return null;
   }
   return { header, lineOf };
@@ -141,13 +147,25 @@ function headerDelimiter(header: YAMLMap, lineOf: LineOf): { delimiter: ',' | ' 
 function headerColumn(item: unknown, lineOf: LineOf, problems: Problem[]): RawColumn | null {
   const itemLine = lineOf(item as YamlNode, 2);
   if (!isMap(item)) {
-    problems.push({ code: 'bad-header', line: itemLine, message: 'a column entry of the ECSV header is not a mapping', expected: '{name: ..., datatype: ...}', found: shown((item as { toJSON?: () => unknown })?.toJSON?.()) });
+    problems.push({
+      code: 'bad-header',
+      line: itemLine,
+      message: 'a column entry of the ECSV header is not a mapping',
+      expected: '{name: ..., datatype: ...}',
+      found: shown((item as { toJSON?: () => unknown })?.toJSON?.()),
+    });
     return null;
   }
   const nameNode = item.get('name', true);
   const name = isScalar(nameNode) ? nameNode.value : undefined;
   if (typeof name !== 'string' || name === '') {
-    problems.push({ code: 'bad-header', line: itemLine, message: 'a column entry of the ECSV header has no name', expected: 'a non-empty name', found: shown(name) });
+    problems.push({
+      code: 'bad-header',
+      line: itemLine,
+      message: 'a column entry of the ECSV header has no name',
+      expected: 'a non-empty name',
+      found: shown(name),
+    });
     return null;
   }
   const column: RawColumn = { name, line: itemLine };
@@ -172,7 +190,14 @@ function headerColumn(item: unknown, lineOf: LineOf, problems: Problem[]): RawCo
     column.unitLine = lineOf(unitNode as YamlNode, itemLine);
     if (typeof unit === 'string') column.unit = unit;
     else if (unit !== null) {
-      problems.push({ code: 'bad-unit', line: column.unitLine, column: name, message: 'a unit must be written as text', expected: 'a unit name such as "mas"', found: shown(unit) });
+      problems.push({
+        code: 'bad-unit',
+        line: column.unitLine,
+        column: name,
+        message: 'a unit must be written as text',
+        expected: 'a unit name such as "mas"',
+        found: shown(unit),
+      });
     }
   }
   return column;
@@ -200,7 +225,12 @@ function headerColumns(header: YAMLMap, lineOf: LineOf, problems: Problem[]): Ra
 }
 
 /** The column-name row's problem when it does not repeat the header's columns (with a hint for a comma file read with the default space). */
-function columnNamesProblem(namesRow: { cells: string[]; line: number }, columns: readonly RawColumn[], delimiter: ',' | ' ', delimiterDeclared: boolean): Problem | null {
+function columnNamesProblem(
+  namesRow: { cells: string[]; line: number },
+  columns: readonly RawColumn[],
+  delimiter: ',' | ' ',
+  delimiterDeclared: boolean,
+): Problem | null {
   const declared = columns.map((c) => c.name);
   if (namesRow.cells.join('\u0000') === declared.join('\u0000')) return null;
   const commaHint =

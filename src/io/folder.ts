@@ -92,7 +92,9 @@ function nearestTable(stem: string): { table: TableName; distance: number } | un
 function addTableFile(layout: FolderLayout, name: string, kind: EntryKind, table: TableName, format: TableFormat): void {
   if (kind !== 'file') {
     layout.notFiles.push(name);
-    layout.problems.push(notAFile(name, `the file of the table "${table}"`, kind, 'replace it with the table file, or remove it if the release does not provide this table'));
+    layout.problems.push(
+      notAFile(name, `the file of the table "${table}"`, kind, 'replace it with the table file, or remove it if the release does not provide this table'),
+    );
     return;
   }
   const already = layout.tables[table];
@@ -152,7 +154,9 @@ function nearMissProblem(name: string, stem: string, ext: string): Problem | nul
 /** Entries of a folder (plain names count as regular files). */
 export function classifyFolder(entries: readonly (string | FolderEntry)[]): FolderLayout {
   const layout: FolderLayout = { tables: {}, hasManifest: false, hasNotes: false, ignored: [], notFiles: [], problems: [] };
-  const sorted = entries.map((e): FolderEntry => (typeof e === 'string' ? { name: e, kind: 'file' } : e)).sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
+  const sorted = entries
+    .map((e): FolderEntry => (typeof e === 'string' ? { name: e, kind: 'file' } : e))
+    .sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
   for (const { name, kind } of sorted) {
     if (isIgnoredName(name)) {
       layout.ignored.push(name);

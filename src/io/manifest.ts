@@ -184,9 +184,23 @@ function readId(k: ManifestKeys, folderName: string): string | undefined {
   const quoted = isScalar(node) && (node.type === 'QUOTE_DOUBLE' || node.type === 'QUOTE_SINGLE');
   const value = jsOf(node);
   if (typeof value !== 'string' || !quoted) {
-    k.bad('id', 'bad-id', 'the release id must be a quoted string', `"${folderName}" (in quotes)`, shown(value), `unquoted, 2026.10 would be read as the number 2026.1; write id: "${folderName}"`);
+    k.bad(
+      'id',
+      'bad-id',
+      'the release id must be a quoted string',
+      `"${folderName}" (in quotes)`,
+      shown(value),
+      `unquoted, 2026.10 would be read as the number 2026.1; write id: "${folderName}"`,
+    );
   } else if (value !== folderName) {
-    k.bad('id', 'id-mismatch', 'the release id differs from the name of its folder', JSON.stringify(folderName), JSON.stringify(value), 'rename the folder or fix the id');
+    k.bad(
+      'id',
+      'id-mismatch',
+      'the release id differs from the name of its folder',
+      JSON.stringify(folderName),
+      JSON.stringify(value),
+      'rename the folder or fix the id',
+    );
   } else return value;
   return undefined;
 }
@@ -199,8 +213,10 @@ function readTitle(k: ManifestKeys): string | undefined {
     return undefined;
   }
   const value = jsOf(titlePair.value);
-  if (typeof value !== 'string' || value.trim() === '') k.bad('title', 'bad-title', 'the title must be non-empty text', 'text', shown(value), 'put the title in quotes');
-  else if (CONTROL_CHARACTER.test(value.trim())) k.bad('title', 'control-character', 'the title holds a control character', 'printable text on one line', shown(value));
+  if (typeof value !== 'string' || value.trim() === '')
+    k.bad('title', 'bad-title', 'the title must be non-empty text', 'text', shown(value), 'put the title in quotes');
+  else if (CONTROL_CHARACTER.test(value.trim()))
+    k.bad('title', 'control-character', 'the title holds a control character', 'printable text on one line', shown(value));
   else return value;
   return undefined;
 }
@@ -225,7 +241,14 @@ function readPrevious(k: ManifestKeys, folderName: string): string | null | unde
   const value = jsOf(previousPair.value);
   if (value === null) return null;
   if (typeof value !== 'string' || value.trim() === '') {
-    k.bad('previous', 'bad-previous', 'previous must be the id of an earlier release, as a quoted string, or null', 'a quoted id such as "2026.1", or null', shown(value), 'quote the id');
+    k.bad(
+      'previous',
+      'bad-previous',
+      'previous must be the id of an earlier release, as a quoted string, or null',
+      'a quoted id such as "2026.1", or null',
+      shown(value),
+      'quote the id',
+    );
     return undefined;
   }
   if (value === folderName) {
@@ -253,7 +276,12 @@ function readBlinded(k: ManifestKeys): boolean | undefined {
  */
 export function parseManifest(text: string, folderName: string): ManifestRead {
   const problems: Problem[] = [];
-  const result: ManifestRead = { analysis: { ...DEFAULT_ANALYSIS, ms_color_range: [...DEFAULT_ANALYSIS.ms_color_range] }, analysisKeysSet: [], variants: [], problems };
+  const result: ManifestRead = {
+    analysis: { ...DEFAULT_ANALYSIS, ms_color_range: [...DEFAULT_ANALYSIS.ms_color_range] },
+    analysisKeysSet: [],
+    variants: [],
+    problems,
+  };
   const lineCounter = new LineCounter();
   const doc = parseDocument(text, { lineCounter, uniqueKeys: true, prettyErrors: true });
   const lineOf: LineOf = (node, fallback) => {
@@ -327,7 +355,14 @@ function readAnalysisValues(map: YAMLMap, result: ManifestRead, lineOf: LineOf):
     const rule = ANALYSIS_RULES[k](value);
     if (!rule.ok) {
       valid = false;
-      problems.push({ code: 'bad-analysis-value', line: lineOf(pair.value, keyLine), column: `analysis.${k}`, message: `invalid value for ${k}`, expected: rule.expected, found: shown(value) });
+      problems.push({
+        code: 'bad-analysis-value',
+        line: lineOf(pair.value, keyLine),
+        column: `analysis.${k}`,
+        message: `invalid value for ${k}`,
+        expected: rule.expected,
+        found: shown(value),
+      });
       continue;
     }
     (result.analysis as unknown as Record<string, unknown>)[k] = value;
@@ -345,11 +380,25 @@ function variantNameProblem(value: unknown, line: number | undefined, where: str
     return { code: 'bad-variant-name', line, column: `${where}.name`, message: 'a variant name must be non-empty text', expected: 'text', found: shown(value) };
   }
   if (CONTROL_CHARACTER.test(value)) {
-    return { code: 'control-character', line, column: `${where}.name`, message: 'a variant name holds a control character', expected: 'printable text on one line', found: shown(value) };
+    return {
+      code: 'control-character',
+      line,
+      column: `${where}.name`,
+      message: 'a variant name holds a control character',
+      expected: 'printable text on one line',
+      found: shown(value),
+    };
   }
   const first = names.get(value);
   if (first !== undefined) {
-    return { code: 'duplicate-variant', line, column: `${where}.name`, message: 'two variants have the same name', expected: 'unique variant names', found: `${JSON.stringify(value)} (also at line ${first})` };
+    return {
+      code: 'duplicate-variant',
+      line,
+      column: `${where}.name`,
+      message: 'two variants have the same name',
+      expected: 'unique variant names',
+      found: `${JSON.stringify(value)} (also at line ${first})`,
+    };
   }
   names.set(value, keyLine);
   return null;
@@ -367,7 +416,14 @@ function readVariant(
   const where = `analysis.variants[${i + 1}]`;
   const itemLine = lineOf(item, variantsLine)!;
   if (!isMap(item)) {
-    problems.push({ code: 'bad-variant', line: itemLine, column: where, message: 'a variant must be a mapping', expected: '{ name: ..., <analysis key>: <value> }', found: shown(jsOf(item)) });
+    problems.push({
+      code: 'bad-variant',
+      line: itemLine,
+      column: where,
+      message: 'a variant must be a mapping',
+      expected: '{ name: ..., <analysis key>: <value> }',
+      found: shown(jsOf(item)),
+    });
     return null;
   }
   const knownInVariant = [VARIANT_NAME_KEY, ...ANALYSIS_KEYS];
@@ -398,7 +454,14 @@ function readVariant(
     const rule = ANALYSIS_RULES[k](value);
     if (!rule.ok) {
       ok = false;
-      problems.push({ code: 'bad-analysis-value', line: lineOf(pair.value, keyLine), column: `${where}.${k}`, message: `invalid value for ${k} in a variant`, expected: rule.expected, found: shown(value) });
+      problems.push({
+        code: 'bad-analysis-value',
+        line: lineOf(pair.value, keyLine),
+        column: `${where}.${k}`,
+        message: `invalid value for ${k} in a variant`,
+        expected: rule.expected,
+        found: shown(value),
+      });
       continue;
     }
     (overrides as Record<string, unknown>)[k] = value;
@@ -406,11 +469,25 @@ function readVariant(
   }
   if (name === undefined && ok) {
     ok = false;
-    problems.push({ code: 'bad-variant-name', line: itemLine, column: `${where}.name`, message: 'a variant has no name', expected: 'name: <text>', found: 'no name' });
+    problems.push({
+      code: 'bad-variant-name',
+      line: itemLine,
+      column: `${where}.name`,
+      message: 'a variant has no name',
+      expected: 'name: <text>',
+      found: 'no name',
+    });
   }
   if (Object.keys(overrides).length === 0 && ok) {
     ok = false;
-    problems.push({ code: 'empty-variant', line: itemLine, column: where, message: 'the variant overrides no analysis key, so it would repeat the baseline', expected: 'at least one analysis key', found: 'only a name' });
+    problems.push({
+      code: 'empty-variant',
+      line: itemLine,
+      column: where,
+      message: 'the variant overrides no analysis key, so it would repeat the baseline',
+      expected: 'at least one analysis key',
+      found: 'only a name',
+    });
   }
   return ok ? { name: name!, overrides, overrideLines, itemLine } : null;
 }
@@ -421,7 +498,14 @@ function readAnalysis(map: YAMLMap, result: ManifestRead, lineOf: LineOf): void 
   const { valid, variantsNode, variantsLine } = readAnalysisValues(map, result, lineOf);
   if (variantsNode === undefined || variantsNode === null || (isScalar(variantsNode) && variantsNode.value === null)) return;
   if (!isSeq(variantsNode)) {
-    problems.push({ code: 'bad-variants', line: lineOf(variantsNode, variantsLine), column: 'analysis.variants', message: 'variants must be a list', expected: 'a list of { name: ..., <analysis key>: <value> }', found: shown(jsOf(variantsNode)) });
+    problems.push({
+      code: 'bad-variants',
+      line: lineOf(variantsNode, variantsLine),
+      column: 'analysis.variants',
+      message: 'variants must be a list',
+      expected: 'a list of { name: ..., <analysis key>: <value> }',
+      found: shown(jsOf(variantsNode)),
+    });
     return;
   }
   const names = new Map<string, number>();
@@ -462,7 +546,13 @@ export function readManifestFile(path: string, folderName: string): ManifestRead
 export function parseManifestBytes(bytes: Uint8Array, folderName: string): ManifestRead & { bytes: Uint8Array } {
   const decoded = decodeUtf8(bytes);
   if ('problem' in decoded) {
-    return { analysis: { ...DEFAULT_ANALYSIS, ms_color_range: [...DEFAULT_ANALYSIS.ms_color_range] }, analysisKeysSet: [], variants: [], problems: [decoded.problem], bytes };
+    return {
+      analysis: { ...DEFAULT_ANALYSIS, ms_color_range: [...DEFAULT_ANALYSIS.ms_color_range] },
+      analysisKeysSet: [],
+      variants: [],
+      problems: [decoded.problem],
+      bytes,
+    };
   }
   return { ...parseManifest(decoded.text, folderName), bytes };
 }

@@ -92,7 +92,8 @@ function recordProblem(x: unknown): string | null {
     }
   }
   const res = r.results as Record<string, unknown> | null;
-  if (!res || typeof res !== 'object' || typeof res.schema !== 'string' || !res.schema.startsWith('rungbook.results/')) return '"results" is not a results.json object';
+  if (!res || typeof res !== 'object' || typeof res.schema !== 'string' || !res.schema.startsWith('rungbook.results/'))
+    return '"results" is not a results.json object';
   return null;
 }
 
@@ -142,7 +143,14 @@ export function verifyPublishedFolder(dir: string): InputIssue[] {
   for (const f of record.files) {
     const current = now.get(f.file);
     if (!current) {
-      issues.push({ code: 'published-file-missing', file: join(dir, f.file), message: `the release was ${when} with this file, which is now missing`, expected: `the file as published (sha256 ${short(f.sha256)})`, found: 'no such file', hint });
+      issues.push({
+        code: 'published-file-missing',
+        file: join(dir, f.file),
+        message: `the release was ${when} with this file, which is now missing`,
+        expected: `the file as published (sha256 ${short(f.sha256)})`,
+        found: 'no such file',
+        hint,
+      });
     } else if (current.sha256 !== f.sha256) {
       issues.push({
         code: 'published-file-changed',
@@ -157,7 +165,14 @@ export function verifyPublishedFolder(dir: string): InputIssue[] {
   const recorded = new Set(record.files.map((f) => f.file));
   for (const name of now.keys()) {
     if (!recorded.has(name)) {
-      issues.push({ code: 'published-file-added', file: join(dir, name), message: `the file was added after the release was ${when}`, expected: `only the files recorded in ${PUBLISHED_FILE}`, found: 'a new file', hint });
+      issues.push({
+        code: 'published-file-added',
+        file: join(dir, name),
+        message: `the file was added after the release was ${when}`,
+        expected: `only the files recorded in ${PUBLISHED_FILE}`,
+        found: 'a new file',
+        hint,
+      });
     }
   }
   return issues;

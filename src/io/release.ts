@@ -71,7 +71,15 @@ export function readManifest(dir: string): Pick<Release, 'manifest' | 'analysis'
   const fileName = join(dir, MANIFEST_FILE);
   const path = join(resolve(dir), MANIFEST_FILE);
   if (!statSync(path, { throwIfNoEntry: false })?.isFile()) {
-    throw new InputError([{ code: 'missing-file', file: fileName, message: 'the release has no release.yaml', expected: 'release.yaml with id, title and date', found: 'no such file' }]);
+    throw new InputError([
+      {
+        code: 'missing-file',
+        file: fileName,
+        message: 'the release has no release.yaml',
+        expected: 'release.yaml with id, title and date',
+        found: 'no such file',
+      },
+    ]);
   }
   const read = readManifestFile(path, basename(resolve(dir)));
   const c = newFileIssues(fileName);
@@ -109,12 +117,13 @@ function readManifestOf(layout: FolderLayout, abs: string, folderName: string, i
   }
   if (manifestBytes === null) {
     // release.yaml that is there but no file has its problem already (layout.problems).
-    if (!layout.notFiles.includes(MANIFEST_FILE)) issuesOf(MANIFEST_FILE).push({
-      code: 'missing-file',
-      message: 'the release has no release.yaml',
-      expected: 'release.yaml with id, title and date',
-      found: 'no such file',
-    });
+    if (!layout.notFiles.includes(MANIFEST_FILE))
+      issuesOf(MANIFEST_FILE).push({
+        code: 'missing-file',
+        message: 'the release has no release.yaml',
+        expected: 'release.yaml with id, title and date',
+        found: 'no such file',
+      });
     return undefined;
   }
   const read = parseManifestBytes(manifestBytes.bytes, folderName);
@@ -170,7 +179,10 @@ function readNotes(layout: FolderLayout, abs: string, issuesOf: IssuesOf, inputs
 }
 
 /** One error for the whole release: every file's issues, in the order the files were first named. */
-function throwCollectedIssues(collectors: Map<string, FileIssues>, manifest: ManifestRead | undefined): asserts manifest is ManifestRead & { manifest: NonNullable<ManifestRead['manifest']> } {
+function throwCollectedIssues(
+  collectors: Map<string, FileIssues>,
+  manifest: ManifestRead | undefined,
+): asserts manifest is ManifestRead & { manifest: NonNullable<ManifestRead['manifest']> } {
   const issues: InputIssue[] = [];
   let omitted = 0;
   for (const collector of collectors.values()) {

@@ -10,9 +10,7 @@ const BOM = [0xef, 0xbb, 0xbf];
 
 /** The bytes without a leading UTF-8 byte-order mark (a view, not a copy). */
 export function stripBom(bytes: Uint8Array): Uint8Array {
-  return bytes.length >= 3 && bytes[0] === BOM[0] && bytes[1] === BOM[1] && bytes[2] === BOM[2]
-    ? bytes.subarray(3)
-    : bytes;
+  return bytes.length >= 3 && bytes[0] === BOM[0] && bytes[1] === BOM[1] && bytes[2] === BOM[2] ? bytes.subarray(3) : bytes;
 }
 
 /**

@@ -63,9 +63,7 @@ const FAMILY: Record<Exclude<ContractUnit, ''>, Record<string, Factor>> = {
   dex: METALLICITY,
 };
 
-export type UnitCheck =
-  | { ok: true; convert: (x: number) => number; identity: boolean }
-  | { ok: false; expected: string; found: string };
+export type UnitCheck = { ok: true; convert: (x: number) => number; identity: boolean } | { ok: false; expected: string; found: string };
 
 const IDENTITY = (x: number): number => x;
 

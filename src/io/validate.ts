@@ -68,7 +68,12 @@ function readTextCell(cell: string, spec: ColumnSpec): CellResult {
   if (control) {
     const code = control[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, '0');
     return {
-      problem: { code: 'control-character', message: `the text holds the control character U+${code}; ids and names must be printable text`, expected: 'printable text', found: shown(cell) },
+      problem: {
+        code: 'control-character',
+        message: `the text holds the control character U+${code}; ids and names must be printable text`,
+        expected: 'printable text',
+        found: shown(cell),
+      },
     };
   }
   if (spec.oneOf && !spec.oneOf.includes(cell)) {
@@ -105,7 +110,13 @@ function columnIndex(raw: RawTable, problems: Problem[]): Map<string, number> {
     if (c.name === '') {
       problems.push({ code: 'empty-column-name', line: c.line, message: `column ${i + 1} has no name`, expected: 'a column name', found: 'an empty name' });
     } else if (CONTROL_CHARACTER.test(c.name)) {
-      problems.push({ code: 'control-character', line: c.line, message: `the name of column ${i + 1} holds a control character`, expected: 'printable text', found: shown(c.name) });
+      problems.push({
+        code: 'control-character',
+        line: c.line,
+        message: `the name of column ${i + 1} holds a control character`,
+        expected: 'printable text',
+        found: shown(c.name),
+      });
     } else if (first !== undefined) {
       problems.push({
         code: 'duplicate-column',
@@ -214,7 +225,14 @@ function validateRow<Row>(
     if (cell.trim() === '') {
       if (col.required) {
         rowOk = false;
-        problems.push({ code: 'missing-value', line: row.line, column: col.name, message: 'a required value is empty', expected: 'a value', found: 'an empty cell' });
+        problems.push({
+          code: 'missing-value',
+          line: row.line,
+          column: col.name,
+          message: 'a required value is empty',
+          expected: 'a value',
+          found: 'an empty cell',
+        });
       }
       continue;
     }

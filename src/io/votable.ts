@@ -83,7 +83,14 @@ function readFields(table: XmlNode, scannable: string, tableLine: number, proble
     const datatype = f['@_datatype'] === undefined ? undefined : String(f['@_datatype']);
     const column: RawColumn = { name, line, datatype, typeClass: datatype === undefined ? undefined : (VOT_DATATYPES[datatype] ?? 'other') };
     if (datatype === undefined || !(datatype in VOT_DATATYPES)) {
-      problems.push({ code: 'bad-datatype', line, column: name, message: 'unknown or missing VOTable datatype', expected: 'one of ' + Object.keys(VOT_DATATYPES).join(', '), found: shown(datatype) });
+      problems.push({
+        code: 'bad-datatype',
+        line,
+        column: name,
+        message: 'unknown or missing VOTable datatype',
+        expected: 'one of ' + Object.keys(VOT_DATATYPES).join(', '),
+        found: shown(datatype),
+      });
     }
     if (f['@_unit'] !== undefined) column.unit = String(f['@_unit']);
     return column;
@@ -98,7 +105,13 @@ export function readVotable(bytes: Uint8Array): ParsedTable {
 
   const declared = /^\s*<\?xml[^>]*encoding\s*=\s*["']([^"']+)["']/.exec(text);
   if (declared && !/^(utf-8|utf8|us-ascii|ascii)$/i.test(declared[1])) {
-    problems.push({ code: 'not-utf8', line: 1, message: 'the XML declaration names an encoding other than UTF-8', expected: 'encoding="UTF-8"', found: shown(declared[1]) });
+    problems.push({
+      code: 'not-utf8',
+      line: 1,
+      message: 'the XML declaration names an encoding other than UTF-8',
+      expected: 'encoding="UTF-8"',
+      found: shown(declared[1]),
+    });
     return { problems };
   }
   const valid = XMLValidator.validate(text);
@@ -119,7 +132,17 @@ export function readVotable(bytes: Uint8Array): ParsedTable {
   const scannable = blankNonMarkup(text);
   const root = doc.VOTABLE;
   if (root === undefined || typeof root !== 'object') {
-    problems.push({ code: 'not-votable', line: 1, message: 'the root element is not VOTABLE', expected: '<VOTABLE>', found: `root elements ${Object.keys(doc).filter((k) => !k.startsWith('?')).join(', ') || 'none'}` });
+    problems.push({
+      code: 'not-votable',
+      line: 1,
+      message: 'the root element is not VOTABLE',
+      expected: '<VOTABLE>',
+      found: `root elements ${
+        Object.keys(doc)
+          .filter((k) => !k.startsWith('?'))
+          .join(', ') || 'none'
+      }`,
+    });
     return { problems };
   }
   const tables = collectTables(asArray((root as XmlNode).RESOURCE), []);

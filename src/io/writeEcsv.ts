@@ -48,11 +48,7 @@ export class TableWriteError extends Error {
 }
 
 /** Write an ECSV 1.0 table (comma delimiter). See the module comment for the rules. */
-export function writeEcsv(
-  columns: readonly EcsvColumn[],
-  rows: readonly TableRow[],
-  meta?: Record<string, MetaValue>,
-): string {
+export function writeEcsv(columns: readonly EcsvColumn[], rows: readonly TableRow[], meta?: Record<string, MetaValue>): string {
   checkColumns(columns);
   const lines: string[] = ['# %ECSV 1.0', '# ---', "# delimiter: ','", '# datatype:'];
   for (const col of columns) {
@@ -137,11 +133,7 @@ export function formatFloat(x: number): string {
 
 /** Quote a CSV field when a reader could otherwise split, trim or skip it. */
 function csvField(s: string, ecsv: boolean): string {
-  const needsQuotes =
-    s === '' ||
-    /[",\r\n]/.test(s) ||
-    /^[ \t]|[ \t]$/.test(s) ||
-    (ecsv && s.startsWith('#'));
+  const needsQuotes = s === '' || /[",\r\n]/.test(s) || /^[ \t]|[ \t]$/.test(s) || (ecsv && s.startsWith('#'));
   return needsQuotes ? `"${s.replace(/"/g, '""')}"` : s;
 }
 

@@ -108,9 +108,12 @@ function parameterResults(release: Release, run: LadderRun, fp: FittedParameters
       put('beta', fit.beta.value, fit.beta.err, { fixed: fit.beta.fixed });
     }
     // errors of the scatters: the spread of their moment estimator (globalFit.ts, scatterStandardError)
-    if (release.cepheids.length) put('sigma_int_cepheid', fit.scatter.cepheids, fit.scatterErr.cepheids, { interval68: scatterInterval(fit.scatter.cepheids, fit.scatterErr.cepheids) });
+    if (release.cepheids.length)
+      put('sigma_int_cepheid', fit.scatter.cepheids, fit.scatterErr.cepheids, { interval68: scatterInterval(fit.scatter.cepheids, fit.scatterErr.cepheids) });
     if (release.snCalibrators.length + release.snHubbleFlow.length > 0) {
-      put('sigma_int_sn', fit.scatter.supernovae, fit.scatterErr.supernovae, { interval68: scatterInterval(fit.scatter.supernovae, fit.scatterErr.supernovae) });
+      put('sigma_int_sn', fit.scatter.supernovae, fit.scatterErr.supernovae, {
+        interval68: scatterInterval(fit.scatter.supernovae, fit.scatterErr.supernovae),
+      });
     }
     if (idx(PARAM.zeta) >= 0) {
       put('parallax_zero_point', analysis.parallax_zero_point + value(PARAM.zeta), err(PARAM.zeta));
@@ -176,8 +179,7 @@ function systemResults(release: Release, run: LadderRun, fp: FittedParameters): 
       muErr = priorErr(pi);
     }
     const target = targetBySystem.get(s.system);
-    const method: SystemResult['method'] =
-      rows.parallax > 0 ? 'parallax' : rows.main_sequence > 0 ? 'main_sequence' : mu !== null ? 'cepheid' : 'none';
+    const method: SystemResult['method'] = rows.parallax > 0 ? 'parallax' : rows.main_sequence > 0 ? 'main_sequence' : mu !== null ? 'cepheid' : 'none';
     return {
       id: s.system,
       kind: s.kind,
@@ -213,26 +215,28 @@ function residualIndex(fit: LadderRun['fit']): ResidualIndex {
 function cepheidResults(release: Release, run: LadderRun, fp: FittedParameters, residualByKey: ResidualIndex): CepheidResult[] {
   const { fit, analysis } = run;
   const fieldSystems = new Set(release.systems.filter((s) => s.kind === 'field').map((s) => s.system));
-  return release.cepheids.map((c) => {
-    const wm = wesenheitMagnitude(c, analysis.wesenheit_r);
-    const name = fieldSystems.has(c.system) ? `mu:${c.system}/${c.star}` : systemParam(c.system);
-    const mi = fp.idx(name);
-    const mu = mi >= 0 ? fit!.q[mi] : NaN;
-    const r = residualByKey.get(`cepheids:${c.star}`);
-    return {
-      star: c.star,
-      system: c.system,
-      line: c.line,
-      log_period: wm.logPeriod,
-      w: wm.w,
-      w_err: wm.wErr,
-      oh: c.oh,
-      abs_w: mi >= 0 ? wm.w - mu : NaN,
-      residual: r ? r.residual : NaN,
-      rejected: r ? r.rejected : false,
-      membership: r ? r.membership : 1,
-    };
-  }).filter((c) => Number.isFinite(c.abs_w));
+  return release.cepheids
+    .map((c) => {
+      const wm = wesenheitMagnitude(c, analysis.wesenheit_r);
+      const name = fieldSystems.has(c.system) ? `mu:${c.system}/${c.star}` : systemParam(c.system);
+      const mi = fp.idx(name);
+      const mu = mi >= 0 ? fit!.q[mi] : NaN;
+      const r = residualByKey.get(`cepheids:${c.star}`);
+      return {
+        star: c.star,
+        system: c.system,
+        line: c.line,
+        log_period: wm.logPeriod,
+        w: wm.w,
+        w_err: wm.wErr,
+        oh: c.oh,
+        abs_w: mi >= 0 ? wm.w - mu : NaN,
+        residual: r ? r.residual : NaN,
+        rejected: r ? r.rejected : false,
+        membership: r ? r.membership : 1,
+      };
+    })
+    .filter((c) => Number.isFinite(c.abs_w));
 }
 
 /** The supernovae, calibrators and Hubble flow: standardised magnitude, distance modulus, residual. */
@@ -272,27 +276,28 @@ function supernovaResults(
       })
     : [];
   const usedIds = new Set(run.hubbleFlow.used.map((h) => h.row.sn));
-  const hubbleFlow: SupernovaResult[] = fit && idx(PARAM.aB) >= 0
-    ? release.snHubbleFlow.map((sn) => {
-        const r = residualByKey.get(`sn_hubble_flow:${sn.sn}`);
-        const mCorr = correctedMagnitude(sn, alpha, beta);
-        return {
-          sn: sn.sn,
-          system: null,
-          line: sn.line,
-          z: sn.z,
-          m_b: sn.mB,
-          x1: sn.x1,
-          c: sn.c,
-          m_corr: mCorr,
-          m_corr_err: Math.sqrt(correctedMagnitudeVariance(sn, alpha, beta)),
-          mu: mCorr - mB - stepOf(sn),
-          residual: r ? r.residual : mCorr - stepOf(sn) - (5 * hubbleFlowLogFactor(sn.z, analysis.q0, analysis.j0) - 5 * aB),
-          in_sample: usedIds.has(sn.sn),
-          rejected: r ? r.rejected : false,
-        };
-      })
-    : [];
+  const hubbleFlow: SupernovaResult[] =
+    fit && idx(PARAM.aB) >= 0
+      ? release.snHubbleFlow.map((sn) => {
+          const r = residualByKey.get(`sn_hubble_flow:${sn.sn}`);
+          const mCorr = correctedMagnitude(sn, alpha, beta);
+          return {
+            sn: sn.sn,
+            system: null,
+            line: sn.line,
+            z: sn.z,
+            m_b: sn.mB,
+            x1: sn.x1,
+            c: sn.c,
+            m_corr: mCorr,
+            m_corr_err: Math.sqrt(correctedMagnitudeVariance(sn, alpha, beta)),
+            mu: mCorr - mB - stepOf(sn),
+            residual: r ? r.residual : mCorr - stepOf(sn) - (5 * hubbleFlowLogFactor(sn.z, analysis.q0, analysis.j0) - 5 * aB),
+            in_sample: usedIds.has(sn.sn),
+            rejected: r ? r.rejected : false,
+          };
+        })
+      : [];
   return { calibrators, hubble_flow: hubbleFlow };
 }
 
@@ -330,10 +335,7 @@ function globalFitChecks(fit: GlobalFit, clipSigma: number | null, nRejected: nu
       title: 'Outlier rejection',
       passed: nRejected <= 0.05 * fit.nData,
       severity: 'info',
-      detail:
-        clipSigma === null
-          ? 'outlier rejection disabled (clip_sigma: null)'
-          : `${nRejected} rows rejected beyond ${clipSigma} sigma`,
+      detail: clipSigma === null ? 'outlier rejection disabled (clip_sigma: null)' : `${nRejected} rows rejected beyond ${clipSigma} sigma`,
     },
   ];
 }

@@ -57,7 +57,7 @@ export function errorBudget(run: LadderRun, variants: readonly VariantResult[]):
 
 /** The rule of a source's error, as results.json and the budget page state it. */
 export const SOURCE_RULE =
-  'half the full range of H0 over the baseline and this source\'s alternatives, each shift first reduced by the ' +
+  "half the full range of H0 over the baseline and this source's alternatives, each shift first reduced by the " +
   'statistical noise of its own change of data (subtracted in quadrature, floored at 0); sources add in quadrature';
 
 /**

@@ -55,9 +55,7 @@ function cached<T>(map: Map<string, T>, key: string, compute: () => T): T {
 /** The parallax and main-sequence rungs for these choices, from the cache or computed into it. */
 export function earlyRungs(release: Release, analysis: AnalysisChoices, cache: RungCache) {
   const parallax = cached(cache.parallax, keyOf(analysis, PARALLAX_KEYS), () => fitParallaxRung(release, analysis));
-  const mainSequence = cached(cache.mainSequence, keyOf(analysis, MAIN_SEQUENCE_KEYS), () =>
-    fitMainSequenceRung(release, analysis, parallax),
-  );
+  const mainSequence = cached(cache.mainSequence, keyOf(analysis, MAIN_SEQUENCE_KEYS), () => fitMainSequenceRung(release, analysis, parallax));
   return { parallax, mainSequence };
 }
 
@@ -135,7 +133,11 @@ export function runLadder(release: Release, analysis: AnalysisChoices, cache: Ru
     return { analysis, parallax, mainSequence, priors, hubbleFlow, fit: null, log10H0: null, checks, reached };
   }
   // Checked by requireLadder on the release; asserted again on the rungs' own results.
-  const [unlinked] = linkageProblems(release, priors.systems, parallax.fieldStars.map((s) => s.star));
+  const [unlinked] = linkageProblems(
+    release,
+    priors.systems,
+    parallax.fieldStars.map((s) => s.star),
+  );
   if (unlinked !== undefined) throw AnalysisError.of(unlinked);
   const fit = fitGlobal({
     analysis,
@@ -236,7 +238,17 @@ export function variantResult(release: Release, variant: Release['variants'][num
   const { derived } = variantAnalysis(release.analysis, variant.overrides);
   const described = { source, ...(Object.keys(derived).length > 0 ? { derived } : {}), changes_data };
   if (outcome.error !== null) {
-    return { name: variant.name, overrides: variant.overrides, h0: null, h0_stat: null, delta_h0: null, error: outcome.error, ...described, noise_h0: null, delta_h0_net: null };
+    return {
+      name: variant.name,
+      overrides: variant.overrides,
+      h0: null,
+      h0_stat: null,
+      delta_h0: null,
+      error: outcome.error,
+      ...described,
+      noise_h0: null,
+      delta_h0_net: null,
+    };
   }
   const run = outcome.log10H0;
   const h0 = run ? 10 ** run.value : null;

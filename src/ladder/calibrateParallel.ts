@@ -11,15 +11,7 @@ import type { Release } from '../types/release.ts';
 import type { Results } from '../types/results.ts';
 import { mapOnWorkers, defaultWorkers } from '../parallel/pool.ts';
 import type { VariantTaskData } from './variantTask.ts';
-import {
-  calibrateRelease,
-  earlyRungs,
-  finishCalibration,
-  newRungCache,
-  runLadder,
-  type CalibrateOptions,
-  type VariantOutcome,
-} from './calibrate.ts';
+import { calibrateRelease, earlyRungs, finishCalibration, newRungCache, runLadder, type CalibrateOptions, type VariantOutcome } from './calibrate.ts';
 
 const VARIANT_TASK = new URL('./variantTask.ts', import.meta.url);
 

@@ -76,7 +76,7 @@ export function logNormalProbability(lo: number, hi: number): number {
 
 /** ln N(r; 0, v). */
 export function logCoreDensity(r: number, v: number): number {
-  return -0.5 * (r * r) / v - 0.5 * Math.log(v) - LOG_SQRT_2PI;
+  return (-0.5 * (r * r)) / v - 0.5 * Math.log(v) - LOG_SQRT_2PI;
 }
 
 /** ln g(r; v): the blend component, a Gaussian convolved with a uniform brightening in [a, b]. */
@@ -114,7 +114,7 @@ export function blendPosterior(r: number, v: number, fraction: number, range: re
     membership,
     // rounding in the far tails can step outside what a truncated normal allows: keep it inside
     offsetMean: Math.min(range[1], Math.max(range[0], mean)),
-    offsetVariance: Math.min(width * width / 4, Math.max(0, variance)),
+    offsetVariance: Math.min((width * width) / 4, Math.max(0, variance)),
   };
 }
 

@@ -92,7 +92,10 @@ export function cepheidHostHomogeneity(fit: GlobalFitResult): HomogeneityTest | 
       variance_ratio: g.chi2 / g.dof / t.pooled,
       p_value: twoSided(g.chi2, g.dof),
     })),
-    excluded: all.filter((g) => !used.includes(g)).map((g) => g.system).sort(),
+    excluded: all
+      .filter((g) => !used.includes(g))
+      .map((g) => g.system)
+      .sort(),
   };
 }
 

@@ -132,9 +132,7 @@ export interface GlobalFitResult {
 }
 
 function initialFieldMu(input: GlobalFitInput): Float64Array {
-  return Float64Array.from(input.fieldStars, (s) =>
-    distanceModulusFromParallaxMas(Math.max(s.parallaxCorrMas, 3 * s.parallaxErrMas)),
-  );
+  return Float64Array.from(input.fieldStars, (s) => distanceModulusFromParallaxMas(Math.max(s.parallaxCorrMas, 3 * s.parallaxErrMas)));
 }
 
 function solveOrExplain(model: BuiltModel, st?: GlsStructure): GlsSolution {
@@ -251,8 +249,8 @@ function standardisationStep(prep: PreparedModel, state: FitState, free: [boolea
     db = -(-h[1][0] * g[0] + h[0][0] * g[1]) / det;
   } else {
     // not convex here: a small gradient step
-    da = -0.01 * g[0] / Math.max(1, Math.abs(g[0]));
-    db = -0.1 * g[1] / Math.max(1, Math.abs(g[1]));
+    da = (-0.01 * g[0]) / Math.max(1, Math.abs(g[0]));
+    db = (-0.1 * g[1]) / Math.max(1, Math.abs(g[1]));
   }
   if (!free[0]) da = 0;
   if (!free[1]) db = 0;
@@ -582,9 +580,10 @@ function withStandardisationCovariance(covGls: ArrayLike<number>, p: number, jac
   for (let i = 0; i < p; i++) {
     for (let j = 0; j < p; j++) {
       let s = 0;
-      for (let a = 0; a < jacobian.length; a++) for (let b = 0; b < jacobian.length; b++) {
-        s += jacobian[a][i] * covTheta[a][b] * jacobian[b][j];
-      }
+      for (let a = 0; a < jacobian.length; a++)
+        for (let b = 0; b < jacobian.length; b++) {
+          s += jacobian[a][i] * covTheta[a][b] * jacobian[b][j];
+        }
       cov[i * p + j] += s;
     }
   }
@@ -599,12 +598,7 @@ function withStandardisationCovariance(covGls: ArrayLike<number>, p: number, jac
  * but it is carried: H0's statistical variance includes it (calibrate.ts) and the budget shows
  * it as a source of its own ('intrinsic_scatters'). The parameters' covariance does not.
  */
-function scatterUncertainty(
-  setup: FitSetup,
-  state: FitState,
-  model: BuiltModel,
-  sol: GlsSolution,
-): Pick<GlobalFitResult, 'scatterErr' | 'scatterVariance'> {
+function scatterUncertainty(setup: FitSetup, state: FitState, model: BuiltModel, sol: GlsSolution): Pick<GlobalFitResult, 'scatterErr' | 'scatterVariance'> {
   const p = setup.params.size;
   const finalStats = groupStats(model, sol, state, setup.snExtraParams);
   const scatterErr = {
@@ -683,9 +677,7 @@ export function fitGlobal(input: GlobalFitInput, options: GlobalFitOptions = {})
   if (free[0]) names.push('alpha');
   if (free[1]) names.push('beta');
   const jacobian = names.map((name) => standardisationJacobian(prep, state, name));
-  const covTheta = names.length
-    ? sandwichCovariance(input, params, prep, state, model, sol, sol.factor.blocks(), free, lastHessian)
-    : [];
+  const covTheta = names.length ? sandwichCovariance(input, params, prep, state, model, sol, sol.factor.blocks(), free, lastHessian) : [];
   const cov = withStandardisationCovariance(covGls, p, jacobian, covTheta);
   const { scatterErr, scatterVariance } = scatterUncertainty(setup, state, model, sol);
   const thetaErr = (name: 'alpha' | 'beta') => {
@@ -743,10 +735,7 @@ function scatterJacobian(prep: PreparedModel, state: FitState, which: 'scatterCe
 /** d q / d theta by central differences at fixed scatters and linearisation. */
 function standardisationJacobian(prep: PreparedModel, state: FitState, name: 'alpha' | 'beta'): number[] {
   const h = name === 'alpha' ? LIMITS.hAlpha : LIMITS.hBeta;
-  const at = (d: number) =>
-    solveOrExplain(
-      buildModel(prep, name === 'alpha' ? { ...state, alpha: state.alpha + d } : { ...state, beta: state.beta + d }),
-    ).q;
+  const at = (d: number) => solveOrExplain(buildModel(prep, name === 'alpha' ? { ...state, alpha: state.alpha + d } : { ...state, beta: state.beta + d })).q;
   const qp = at(h);
   const qm = at(-h);
   return Array.from(qp, (x, i) => (x - qm[i]) / (2 * h));
@@ -826,7 +815,7 @@ function scoreOuterProducts(
     for (let a = 0; a < m; a++) {
       const psiTheta = (r * t.dr[a]) / t.v - (r * r * t.dv[a]) / (2 * t.v * t.v);
       let proj = 0;
-      for (let k = 0; k < t.x.idx.length; k++) proj += gMat[a][t.x.idx[k]] * (-r * t.x.coef[k]) / t.v;
+      for (let k = 0; k < t.x.idx.length; k++) proj += (gMat[a][t.x.idx[k]] * (-r * t.x.coef[k])) / t.v;
       s[a] = psiTheta - proj;
     }
     if (coupled && t.sn) {
@@ -971,12 +960,7 @@ function invertSmall(a: number[][]): number[][] {
   return Array.from({ length: m }, (_, i) => Array.from(inv.subarray(i * m, (i + 1) * m)));
 }
 
-function rejectedResiduals(
-  prep: PreparedModel,
-  state: FitState,
-  sol: GlsSolution,
-  order: string[],
-): RowResidual[] {
+function rejectedResiduals(prep: PreparedModel, state: FitState, sol: GlsSolution, order: string[]): RowResidual[] {
   if (order.length === 0) return [];
   // rebuild the model with nothing rejected to get the rows, then keep the rejected ones
   const full = buildModel(prep, { ...state, rejected: new Set() });

@@ -126,8 +126,7 @@ export class ParameterIndex {
       } else add(systemParam(c.system));
     }
     for (const sn of input.calibrators) add(systemParam(sn.system));
-    const needsZeta =
-      input.zeroPointErrMas > 0 && (input.fieldStars.length > 0 || input.priors.zpLoading.some((k) => k !== 0));
+    const needsZeta = input.zeroPointErrMas > 0 && (input.fieldStars.length > 0 || input.priors.zpLoading.some((k) => k !== 0));
     if (needsZeta) add(PARAM.zeta);
     if (input.cepheids.length > 0) {
       add(PARAM.MW);

@@ -40,9 +40,7 @@ export interface SparseRow {
 }
 
 /** A covariance contribution of one source to a block (they add up to the block's covariance). */
-export type CovarianceComponent =
-  | { source: string; diagonal: number[] }
-  | { source: string; dense: number[][] };
+export type CovarianceComponent = { source: string; diagonal: number[] } | { source: string; dense: number[][] };
 
 export interface RowBlock {
   /** Rows of the design matrix. */
@@ -589,11 +587,7 @@ export function blockLeverages(block: RowBlock, cov: CovarianceAccess): number[]
  * w = C^-1 X F^-1 g (content/methods/error-budget.md). Returns source -> variance.
  * The parts add up to g^T F^-1 g exactly (up to rounding).
  */
-export function varianceBySource(
-  problem: GlsProblem,
-  factor: StructuredFactor,
-  g: ArrayLike<number>,
-): Map<string, number> {
+export function varianceBySource(problem: GlsProblem, factor: StructuredFactor, g: ArrayLike<number>): Map<string, number> {
   const u = factor.solve(g);
   const out = new Map<string, number>();
   const add = (source: string, v: number) => out.set(source, (out.get(source) ?? 0) + v);

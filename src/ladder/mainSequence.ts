@@ -210,11 +210,9 @@ interface LocusCovariances {
 
 function locusCovariances(fit: ReturnType<typeof fitLocus>, ebvErrA: number[], fehErrA: number[], anchorCovariance: Matrix): LocusCovariances {
   // Locus covariance parts: main-sequence-only (stat + anchors' E and feh) and anchors' moduli.
-  const locusMsOnly = symmetrize(addMatrices(
-    fit.covStat,
-    sandwich(fit.dCoeffsDEbv, diag(ebvErrA.map((e) => e * e))),
-    sandwich(fit.dCoeffsDFeh, diag(fehErrA.map((e) => e * e))),
-  ));
+  const locusMsOnly = symmetrize(
+    addMatrices(fit.covStat, sandwich(fit.dCoeffsDEbv, diag(ebvErrA.map((e) => e * e))), sandwich(fit.dCoeffsDFeh, diag(fehErrA.map((e) => e * e)))),
+  );
   const locusTotal = symmetrize(addMatrices(locusMsOnly, sandwich(fit.dCoeffsDMu, anchorCovariance)));
   // The same in the space of everything the targets take from the locus, lambda = (coefficients,
   // binary fraction, intrinsic scatter): the fraction's statistical covariance with the coefficients
@@ -261,9 +259,17 @@ function fitTargets(
     const feh = sys.feh ?? 0;
     let tf: TargetFit;
     try {
-      tf = fitTarget(rows, { coeffs: locus.coeffs, pivot: locus.color_pivot, colorRange: locus.color_range, scatter: locus.scatter, binaryFraction: locus.binary_fraction }, {
-        rV, fehSlope: s, feh, prior, minStars: MIN_TARGET_STARS,
-      });
+      tf = fitTarget(
+        rows,
+        { coeffs: locus.coeffs, pivot: locus.color_pivot, colorRange: locus.color_range, scatter: locus.scatter, binaryFraction: locus.binary_fraction },
+        {
+          rV,
+          fehSlope: s,
+          feh,
+          prior,
+          minStars: MIN_TARGET_STARS,
+        },
+      );
     } catch (e) {
       throw new AnalysisError(
         `main-sequence target "${sys.system}" (systems line ${sys.line}): ${(e as Error).message}`,
@@ -273,8 +279,14 @@ function fitTargets(
     fits.push({ sys, fit: tf, feh, fehErr: sys.fehErr ?? 0, prior });
     rows.forEach((row, i) => {
       starResults.set(row, {
-        star: row.star, system: row.system, line: row.line, color0: row.color - tf.ebv,
-        abs_mag: row.mag - tf.mu - rV * tf.ebv + s * feh, p_binary: tf.pBinary[i], used: tf.used[i], role: 'target',
+        star: row.star,
+        system: row.system,
+        line: row.line,
+        color0: row.color - tf.ebv,
+        abs_mag: row.mag - tf.mu - rV * tf.ebv + s * feh,
+        p_binary: tf.pBinary[i],
+        used: tf.used[i],
+        role: 'target',
       });
     });
   }
@@ -284,13 +296,23 @@ function fitTargets(
 /** A target's result: its (mu, E) with the total covariance (own fit, locus with all its sources, [Fe/H], floor). */
 function targetResult(f: TargetFitOf, fehSlope: number, lambdaTotal: Matrix): MainSequenceTargetResult {
   // Total covariance of (mu, E): own fit + locus (statistics, anchors incl. zero point, anchor E and feh) + target feh.
-  const total = addMatrices(f.fit.covFit, sandwich(lambdaJacobian(f.fit), lambdaTotal), [[(fehSlope * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2, 0], [0, 0]]);
+  const total = addMatrices(f.fit.covFit, sandwich(lambdaJacobian(f.fit), lambdaTotal), [
+    [(fehSlope * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2, 0],
+    [0, 0],
+  ]);
   const muErr = Math.sqrt(total[0][0]);
   const ebvErr = Math.sqrt(total[1][1]);
   return {
-    system: f.sys.system, n_stars: f.fit.used.length, n_used: f.fit.nUsed, mu: f.fit.mu, mu_err: muErr,
-    ebv: f.fit.ebv, ebv_err: ebvErr, corr_mu_ebv: ebvErr > 0 ? total[0][1] / (muErr * ebvErr) : 0,
-    feh: f.feh, binary_fraction: f.fit.binaryFraction,
+    system: f.sys.system,
+    n_stars: f.fit.used.length,
+    n_used: f.fit.nUsed,
+    mu: f.fit.mu,
+    mu_err: muErr,
+    ebv: f.fit.ebv,
+    ebv_err: ebvErr,
+    corr_mu_ebv: ebvErr > 0 ? total[0][1] / (muErr * ebvErr) : 0,
+    feh: f.feh,
+    binary_fraction: f.fit.binaryFraction,
   };
 }
 
@@ -306,8 +328,13 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
   const inputs: CheckInputs = { ignored: layout.ignored, anchorsNoEbv: [], noFeh: [], targets: [], locus: null, rV };
 
   const empty: MainSequenceRungResult = {
-    locus: null, targets: [], stars: [], checks: [], anchorSystems,
-    targetAnchorJacobian: [], targetCovarianceMainSequence: [],
+    locus: null,
+    targets: [],
+    stars: [],
+    checks: [],
+    anchorSystems,
+    targetAnchorJacobian: [],
+    targetCovarianceMainSequence: [],
   };
   const problem = mainSequenceProblem(release, analysis, anchorSystems);
   if (problem !== null) throw AnalysisError.of(problem);
@@ -320,14 +347,26 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
   const pBinaryByRow = new Map(locusStars.map((st, i) => [st.row, fit.pBinary[i]]));
   for (const { row, c0, y } of anchorRows) {
     starResults.set(row, {
-      star: row.star, system: row.system, line: row.line, color0: c0, abs_mag: y,
-      p_binary: pBinaryByRow.get(row) ?? 0, used: pBinaryByRow.has(row), role: 'anchor',
+      star: row.star,
+      system: row.system,
+      line: row.line,
+      color0: c0,
+      abs_mag: y,
+      p_binary: pBinaryByRow.get(row) ?? 0,
+      used: pBinaryByRow.has(row),
+      role: 'anchor',
     });
   }
   const { locusTotal, lambdaMsOnly, lambdaTotal } = locusCovariances(fit, ebvErrA, fehErrA, parallax.anchorCovariance);
   const locus: LocusResult = {
-    degree, coeffs: fit.coeffs, color_pivot: pivot, covariance: locusTotal, color_range: range,
-    scatter: fit.scatter, binary_fraction: fit.binaryFraction, n_stars: locusStars.length,
+    degree,
+    coeffs: fit.coeffs,
+    color_pivot: pivot,
+    covariance: locusTotal,
+    color_range: range,
+    scatter: fit.scatter,
+    binary_fraction: fit.binaryFraction,
+    n_stars: locusStars.length,
   };
   inputs.locus = { ...locus, converged: fit.converged, iterations: fit.iterations };
 
@@ -337,7 +376,13 @@ export function fitMainSequenceRung(release: Release, analysis: AnalysisChoices,
   // ---- propagation ----
   // B: d mu_target / d lambda. Targets share lambda, so they are correlated through it.
   const B = fits.map((f) => lambdaJacobian(f.fit)[0]);
-  const G = fits.length === 0 ? [] : matMul(fits.map((f) => f.fit.dThetaDCoeffs[0]), fit.dCoeffsDMu);
+  const G =
+    fits.length === 0
+      ? []
+      : matMul(
+          fits.map((f) => f.fit.dThetaDCoeffs[0]),
+          fit.dCoeffsDMu,
+        );
   const targetCov = fits.length === 0 ? [] : symmetrize(sandwich(B, lambdaMsOnly));
   fits.forEach((f, t) => (targetCov[t][t] += f.fit.covFit[0][0] + (s * f.fehErr) ** 2 + MS_METHOD_FLOOR_MAG ** 2));
 

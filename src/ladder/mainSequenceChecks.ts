@@ -28,31 +28,49 @@ export function mainSequenceChecks(c: CheckInputs): CheckResult[] {
   const checks: CheckResult[] = [];
   if (c.ignored.length > 0) {
     checks.push({
-      id: 'ms-rows-ignored', title: 'Main-sequence rows not used', passed: false, severity: 'warning',
+      id: 'ms-rows-ignored',
+      title: 'Main-sequence rows not used',
+      passed: false,
+      severity: 'warning',
       detail: `main-sequence rows of ${c.ignored.join(', ')} are not used: these systems have parallaxes but are of kind "field", so they are neither anchors nor targets`,
     });
   }
   if (c.locus === null) return checks;
   checks.push({
-    id: 'ms-anchor-reddening', title: 'Anchor reddening given', passed: c.anchorsNoEbv.length === 0, severity: 'warning',
-    detail: c.anchorsNoEbv.length === 0
-      ? 'every anchor used for the locus has an E(B-V)'
-      : `no ebv for anchor(s) ${c.anchorsNoEbv.join(', ')}: E(B-V) = 0 assumed; any true reddening shifts the locus and every target distance`,
+    id: 'ms-anchor-reddening',
+    title: 'Anchor reddening given',
+    passed: c.anchorsNoEbv.length === 0,
+    severity: 'warning',
+    detail:
+      c.anchorsNoEbv.length === 0
+        ? 'every anchor used for the locus has an E(B-V)'
+        : `no ebv for anchor(s) ${c.anchorsNoEbv.join(', ')}: E(B-V) = 0 assumed; any true reddening shifts the locus and every target distance`,
   });
   checks.push({
-    id: 'ms-metallicity', title: 'Metallicities given', passed: c.noFeh.length === 0, severity: 'warning',
-    detail: c.noFeh.length === 0
-      ? 'every anchor and target has [Fe/H]'
-      : `no feh for ${c.noFeh.join(', ')}: [Fe/H] = 0 assumed; 0.1 dex moves a main-sequence distance modulus by about 0.1 mag`,
+    id: 'ms-metallicity',
+    title: 'Metallicities given',
+    passed: c.noFeh.length === 0,
+    severity: 'warning',
+    detail:
+      c.noFeh.length === 0
+        ? 'every anchor and target has [Fe/H]'
+        : `no feh for ${c.noFeh.join(', ')}: [Fe/H] = 0 assumed; 0.1 dex moves a main-sequence distance modulus by about 0.1 mag`,
   });
   const conv = [c.locus.converged ? [] : ['locus'], c.targets.filter((t) => !t.fit.converged).map((t) => t.system)].flat();
   checks.push({
-    id: 'ms-fit-convergence', title: 'Main-sequence fits converged', passed: conv.length === 0, severity: 'warning',
+    id: 'ms-fit-convergence',
+    title: 'Main-sequence fits converged',
+    passed: conv.length === 0,
+    severity: 'warning',
     detail: conv.length === 0 ? `locus converged in ${c.locus.iterations} EM iterations; every target converged` : `not converged: ${conv.join(', ')}`,
   });
   checks.push({
-    id: 'ms-binaries', title: 'Unresolved binaries (mixture model)', passed: true, severity: 'info',
-    detail: `locus: binary fraction ${c.locus.binary_fraction.toFixed(3)}, intrinsic scatter ${c.locus.scatter.toFixed(3)} mag over ${c.locus.n_stars} stars` +
+    id: 'ms-binaries',
+    title: 'Unresolved binaries (mixture model)',
+    passed: true,
+    severity: 'info',
+    detail:
+      `locus: binary fraction ${c.locus.binary_fraction.toFixed(3)}, intrinsic scatter ${c.locus.scatter.toFixed(3)} mag over ${c.locus.n_stars} stars` +
       c.targets.map((t) => `; ${t.system}: binary fraction ${t.fit.binaryFraction.toFixed(3)}`).join(''),
   });
   const free = c.targets.filter((t) => t.prior === 'free');
@@ -62,14 +80,19 @@ export function mainSequenceChecks(c: CheckInputs): CheckResult[] {
   });
   if (free.length > 0) {
     checks.push({
-      id: 'ms-reddening-degeneracy', title: 'Freely fitted reddening constrained', passed: poor.length === 0, severity: 'warning',
-      detail: free.map((t) => {
-        const [[vmm, vme], [, vee]] = t.fit.covFit;
-        const head = `${t.system}: E(B-V) = ${t.fit.ebv.toFixed(3)} ± ${Math.sqrt(vee).toFixed(3)} fitted freely, corr(mu, E) = ${(vme / Math.sqrt(vmm * vee)).toFixed(2)}`;
-        return poor.includes(t)
-          ? `${head}; one colour-magnitude diagram mainly constrains mu + (R_V - s) E = mu + ${(c.rV - t.meanSlope).toFixed(2)} E (s = ${t.meanSlope.toFixed(2)}, the mean locus slope): give an E(B-V) prior (ebv, ebv_err) from a second colour or spectroscopy`
-          : head;
-      }).join('; '),
+      id: 'ms-reddening-degeneracy',
+      title: 'Freely fitted reddening constrained',
+      passed: poor.length === 0,
+      severity: 'warning',
+      detail: free
+        .map((t) => {
+          const [[vmm, vme], [, vee]] = t.fit.covFit;
+          const head = `${t.system}: E(B-V) = ${t.fit.ebv.toFixed(3)} ± ${Math.sqrt(vee).toFixed(3)} fitted freely, corr(mu, E) = ${(vme / Math.sqrt(vmm * vee)).toFixed(2)}`;
+          return poor.includes(t)
+            ? `${head}; one colour-magnitude diagram mainly constrains mu + (R_V - s) E = mu + ${(c.rV - t.meanSlope).toFixed(2)} E (s = ${t.meanSlope.toFixed(2)}, the mean locus slope): give an E(B-V) prior (ebv, ebv_err) from a second colour or spectroscopy`
+            : head;
+        })
+        .join('; '),
     });
   }
   return checks;

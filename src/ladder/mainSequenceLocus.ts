@@ -136,7 +136,10 @@ function locusProblem(stars: readonly LocusStarInput[], opts: LocusFitOptions): 
     resid: (coeffs) => y.map((yi, i) => yi - polyValue(coeffs, dc[i])),
     scatterUpdate: (ph, res, qq, v) => {
       const w = withinAnchor(stars, res, qq, v, delta);
-      return scatterSquaredUpdate(ph, w.map((wi, i) => expectedSquaredResidual(wi, qq[i], delta)));
+      return scatterSquaredUpdate(
+        ph,
+        w.map((wi, i) => expectedSquaredResidual(wi, qq[i], delta)),
+      );
     },
   };
 }
@@ -160,7 +163,11 @@ function locusExpectationMaximisation(lp: LocusProblem): LocusEm {
   const m0 = median(r);
   let q: number[] = r.map((ri) => (ri < m0 - delta / 2 ? 1 : 0));
   let fraction = Math.min(0.5, Math.max(0.05, q.reduce((a, b) => a + b, 0) / n));
-  coeffs = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), unit);
+  coeffs = weightedLeastSquares(
+    x,
+    y.map((yi, i) => yi + q[i] * delta),
+    unit,
+  );
   r = lp.resid(coeffs);
   let ph = lp.phot(coeffs);
   let tau2 = lp.scatterUpdate(ph, r, q, unit);
@@ -175,7 +182,11 @@ function locusExpectationMaximisation(lp: LocusProblem): LocusEm {
     r = lp.resid(coeffs);
     q = r.map((ri, i) => binaryProbability(ri, v[i], fraction, delta));
     fraction = q.reduce((a, b) => a + b, 0) / n;
-    const next = weightedLeastSquares(x, y.map((yi, i) => yi + q[i] * delta), v.map((vi) => 1 / vi));
+    const next = weightedLeastSquares(
+      x,
+      y.map((yi, i) => yi + q[i] * delta),
+      v.map((vi) => 1 / vi),
+    );
     const change = Math.max(...next.map((c, k) => Math.abs(c - coeffs[k])));
     coeffs = next;
     r = lp.resid(coeffs);
@@ -219,7 +230,10 @@ export function fitLocus(stars: readonly LocusStarInput[], opts: LocusFitOptions
   // Outside quantities of anchor a move the residuals of its members only:
   //   d r / d mu_a = -1,  d r / d E_a = P'(c0) - R_V,  d r / d feh_a = +s.
   const column = (a: number, dr: (i: number) => number) =>
-    mixtureSensitivity(curv, stars.map((s, i) => (s.anchor === a ? dr(i) : 0)));
+    mixtureSensitivity(
+      curv,
+      stars.map((s, i) => (s.anchor === a ? dr(i) : 0)),
+    );
   const byAnchor = (dr: (i: number) => number): Matrix => {
     const cols = Array.from({ length: opts.nAnchors }, (_, a) => column(a, dr));
     return coeffs.map((_, k) => cols.map((c) => c[k]));

@@ -106,12 +106,7 @@ export interface MixtureCurvature {
  * the complete-data weights 1/v (no f coupling) if the result is not positive
  * definite. Cost O(n p^2 + p^3).
  */
-export function mixtureCurvature(
-  stars: readonly MixtureStar[],
-  fraction: number,
-  offset: number,
-  priorInformation?: Matrix,
-): MixtureCurvature {
+export function mixtureCurvature(stars: readonly MixtureStar[], fraction: number, offset: number, priorInformation?: Matrix): MixtureCurvature {
   const p = stars.length === 0 ? 0 : stars[0].grad.length;
   const attempt = (observed: boolean): MixtureCurvature | null => {
     const withF = observed && fraction > FRACTION_EDGE && fraction < 1 - FRACTION_EDGE;

@@ -72,10 +72,7 @@ const LF_GRID_MAG = 0.01;
 /** A star's prior binary probability stays within f / 10 and 1 - (1 - f) / 10 (see binaryWeights). */
 const BINARY_WEIGHT_LIMIT = 10;
 
-export type ReddeningPrior =
-  | { kind: 'fixed'; ebv: number }
-  | { kind: 'gaussian'; ebv: number; ebvErr: number }
-  | { kind: 'free' };
+export type ReddeningPrior = { kind: 'fixed'; ebv: number } | { kind: 'gaussian'; ebv: number; ebvErr: number } | { kind: 'free' };
 
 export interface TargetStarInput {
   color: number;
@@ -144,7 +141,9 @@ function locusMap(locus: LocusForTargets): LocusMap {
   for (let k = 0; k <= MONOTONIC_GRID; k++) {
     const c = lo + ((hi - lo) * k) / MONOTONIC_GRID;
     if (!(dP(c) > 0)) {
-      throw new RangeError(`the locus is not monotonic over the colour range (dM/d(B-V) = ${dP(c).toFixed(3)} at B-V = ${c.toFixed(3)}): colours cannot be read from magnitudes`);
+      throw new RangeError(
+        `the locus is not monotonic over the colour range (dM/d(B-V) = ${dP(c).toFixed(3)} at B-V = ${c.toFixed(3)}): colours cannot be read from magnitudes`,
+      );
     }
   }
   const pLo = P(lo);
@@ -388,13 +387,14 @@ function fitTargetFrom(
   const map = locusMap(locus);
   const [lo, hi] = locus.colorRange;
   const tau2 = locus.scatter ** 2;
-  const weights = binaryWeights(stars.map((s) => s.mag), locus.binaryFraction);
+  const weights = binaryWeights(
+    stars.map((s) => s.mag),
+    locus.binaryFraction,
+  );
   let ebv = start.ebv;
   // Start: the median offset of the stars in the colour range read as singles.
   const inColour = stars.filter((s) => s.color - ebv >= lo && s.color - ebv <= hi);
-  let mu = start.mu ?? median(
-    (inColour.length > 0 ? inColour : stars).map((s) => s.mag - map.P(s.color - ebv) + opts.fehSlope * opts.feh - opts.rV * ebv),
-  );
+  let mu = start.mu ?? median((inColour.length > 0 ? inColour : stars).map((s) => s.mag - map.P(s.color - ebv) + opts.fehSlope * opts.feh - opts.rV * ebv));
   let used = selection(stars, map, mu, ebv, opts);
   let iterations = 0;
   let converged = false;
@@ -440,7 +440,10 @@ function fitTargetFrom(
  * both use).
  */
 function logLikelihoodOn(stars: readonly TargetStarInput[], locus: LocusForTargets, opts: TargetFitOptions, fit: TargetFit, on: boolean[]): number {
-  const weights = binaryWeights(stars.map((s) => s.mag), locus.binaryFraction).filter((_, i) => on[i]);
+  const weights = binaryWeights(
+    stars.map((s) => s.mag),
+    locus.binaryFraction,
+  ).filter((_, i) => on[i]);
   const x: Sample = { stars: stars.filter((_, i) => on[i]), map: locusMap(locus), tau2: locus.scatter ** 2, weights };
   return sampleLogLikelihood(x, fit.mu, fit.ebv, { ...opts, prior: { kind: 'free' } });
 }
@@ -470,9 +473,7 @@ function fitTargetFreeReddening(stars: readonly TargetStarInput[], locus: LocusF
     }
   }
   if (found.length === 0) {
-    throw new RangeError(
-      `E(B-V) is not constrained by the photometry: no start in [${a}, ${b}] gives a fit (${[...reasons].slice(0, 2).join('; ')})`,
-    );
+    throw new RangeError(`E(B-V) is not constrained by the photometry: no start in [${a}, ${b}] gives a fit (${[...reasons].slice(0, 2).join('; ')})`);
   }
   const beats = (x: TargetFit, y: TargetFit) => {
     const common = x.used.map((u, i) => u && y.used[i]);
@@ -521,13 +522,25 @@ function finish(
   const info = h.map((row) => row.map((v) => -v));
   const inv = spdInverse(info) ?? spdInverse(surrogateInformation({ ...base, frozen }, opts, freeE ? [mu, ebv] : [mu], ebv));
   if (inv === null) {
-    throw new RangeError(freeE ? 'E(B-V) is not constrained by the photometry (flat locus over the stars used)' : 'the distance is not constrained by the stars used');
+    throw new RangeError(
+      freeE ? 'E(B-V) is not constrained by the photometry (flat locus over the stars used)' : 'the distance is not constrained by the stars used',
+    );
   }
-  const covFit = freeE ? inv : [[inv[0][0], 0], [0, 0]];
+  const covFit = freeE
+    ? inv
+    : [
+        [inv[0][0], 0],
+        [0, 0],
+      ];
 
   // Re-maximise on the same stars with one locus quantity changed (no bounds: a derivative).
   const refit = (l: LocusForTargets): [number, number] => {
-    const x: Sample = { stars: sel, map: locusMap(l), tau2: l.scatter ** 2, weights: l.binaryFraction === locus.binaryFraction ? base.weights : selWeights(l.binaryFraction) };
+    const x: Sample = {
+      stars: sel,
+      map: locusMap(l),
+      tau2: l.scatter ** 2,
+      weights: l.binaryFraction === locus.binaryFraction ? base.weights : selWeights(l.binaryFraction),
+    };
     const r = maximise(x, opts, { mu, ebv }, [-Infinity, Infinity], STEP_TOL);
     return [r.mu, freeE ? r.ebv : 0];
   };
@@ -537,15 +550,12 @@ function finish(
     const m = refit(make(-d));
     return [(p[0] - m[0]) / (2 * d), (p[1] - m[1]) / (2 * d)];
   };
-  const cols = locus.coeffs.map((c, k) =>
-    centralDifference((d) => ({ ...locus, coeffs: locus.coeffs.map((ck, j) => (j === k ? ck + d : ck)) }), c),
-  );
+  const cols = locus.coeffs.map((c, k) => centralDifference((d) => ({ ...locus, coeffs: locus.coeffs.map((ck, j) => (j === k ? ck + d : ck)) }), c));
   const dThetaDCoeffs = [cols.map((c) => c[0]), cols.map((c) => c[1])];
   // The fraction is moved inside (0, 1) and the scatter kept positive.
   const fr = locus.binaryFraction;
-  const dThetaDFraction = fr > LOCUS_STEP && fr < 1 - LOCUS_STEP
-    ? centralDifference((d) => ({ ...locus, binaryFraction: fr + d }), 0)
-    : ([0, 0] as [number, number]);
+  const dThetaDFraction =
+    fr > LOCUS_STEP && fr < 1 - LOCUS_STEP ? centralDifference((d) => ({ ...locus, binaryFraction: fr + d }), 0) : ([0, 0] as [number, number]);
   const tau = locus.scatter;
   const dThetaDScatter = tau > LOCUS_STEP ? centralDifference((d) => ({ ...locus, scatter: tau + d }), 0) : ([0, 0] as [number, number]);
 

@@ -79,7 +79,11 @@ export function fitParallaxRung(release: Release, analysis: AnalysisChoices, opt
       parallaxErrMas: Math.hypot(r.parallaxErrMas, floor),
     }));
 
-  const checks = parallaxChecks(stars, anchorFits.map((f) => ({ ...f.result, chi2: f.chi2, dof: f.dof })), lengthKpc);
+  const checks = parallaxChecks(
+    stars,
+    anchorFits.map((f) => ({ ...f.result, chi2: f.chi2, dof: f.dof })),
+    lengthKpc,
+  );
   return {
     zeroPointMas: z0,
     zeroPointErrMas: zErr,

@@ -121,7 +121,10 @@ export function anchorParallaxProblem(system: string, rows: readonly ParallaxRow
   if (!(mean > 0) || frac > MAX_ANCHOR_FRACTIONAL_ERROR) {
     const what = mean > 0 ? `fractional error ${frac.toFixed(3)} > ${MAX_ANCHOR_FRACTIONAL_ERROR}` : 'is not positive';
     return {
-      message: `anchor "${system}": mean corrected parallax ${mean.toPrecision(4)} ± ${errTot.toPrecision(3)} mas ${what}; its distance modulus would be unreliable (parallax lines ${rows.map((r) => r.line).slice(0, 3).join(', ')}${rows.length > 3 ? ', ...' : ''})`,
+      message: `anchor "${system}": mean corrected parallax ${mean.toPrecision(4)} ± ${errTot.toPrecision(3)} mas ${what}; its distance modulus would be unreliable (parallax lines ${rows
+        .map((r) => r.line)
+        .slice(0, 3)
+        .join(', ')}${rows.length > 3 ? ', ...' : ''})`,
       hint: 'use more members, or make the system kind "field" so that its stars enter the global fit in parallax space',
     };
   }
@@ -140,13 +143,7 @@ export function anchorParallaxProblem(system: string, rows: readonly ParallaxRow
  * Throws AnalysisError (with a hint) for one member, a non-positive mean, or f > 0.2
  * (anchorParallaxProblem). Cost O(N).
  */
-export function fitAnchorParallax(
-  system: string,
-  rows: readonly ParallaxRow[],
-  zeroPointMas: number,
-  zeroPointErrMas: number,
-  floorMas: number,
-): AnchorFit {
+export function fitAnchorParallax(system: string, rows: readonly ParallaxRow[], zeroPointMas: number, zeroPointErrMas: number, floorMas: number): AnchorFit {
   const problem = anchorParallaxProblem(system, rows, zeroPointMas, floorMas);
   if (problem !== null) throw AnalysisError.of(problem);
   const n = rows.length;

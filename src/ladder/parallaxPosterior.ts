@@ -105,13 +105,7 @@ export function edsdCubicPositiveRoots(parallaxMas: number, errMas: number, leng
 }
 
 /** Root of a monotonic function on [lo, hi] with f(lo) f(hi) < 0 (Newton + bisection). */
-function safeguardedNewton(
-  f: (x: number) => number,
-  df: (x: number) => number,
-  lo0: number,
-  hi0: number,
-  flo: number,
-): number {
+function safeguardedNewton(f: (x: number) => number, df: (x: number) => number, lo0: number, hi0: number, flo: number): number {
   let lo = lo0;
   let hi = hi0;
   let x = 0.5 * (lo + hi);

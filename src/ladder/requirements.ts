@@ -31,7 +31,10 @@ import { anchorParallaxProblem } from './parallaxAnchors.ts';
 const NAMES_SHOWN = 10;
 
 const quoted = (names: readonly string[]): string =>
-  names.slice(0, NAMES_SHOWN).map((s) => `"${s}"`).join(', ') + (names.length > NAMES_SHOWN ? ` and ${names.length - NAMES_SHOWN} more` : '');
+  names
+    .slice(0, NAMES_SHOWN)
+    .map((s) => `"${s}"`)
+    .join(', ') + (names.length > NAMES_SHOWN ? ` and ${names.length - NAMES_SHOWN} more` : '');
 
 /** The geometric anchors of a release (systems not of kind field that have parallax rows), with their rows. */
 export function geometricAnchors(release: Release): { system: string; rows: ParallaxRow[] }[] {

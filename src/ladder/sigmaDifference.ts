@@ -39,10 +39,10 @@ export interface SharedErrors {
 }
 
 export const SIGMA_METHOD =
-  'sigma_diff: first-order propagation of every row\'s error through both releases\' fits. ' +
-  'Each estimate is a weighted sum of its rows\' errors (weights s = C^-1 X F^-1 g of the final GLS). ' +
+  "sigma_diff: first-order propagation of every row's error through both releases' fits. " +
+  "Each estimate is a weighted sum of its rows' errors (weights s = C^-1 X F^-1 g of the final GLS). " +
   'A row unchanged, or corrected with its uncertainties unchanged, carries one common error: it contributes ' +
-  '(s_b - s_a)^2 v (v: geometric mean of the two fits\' variances of the row). Added, removed and remeasured rows (uncertainty changed) carry independent errors: s^2 v on their side. ' +
+  "(s_b - s_a)^2 v (v: geometric mean of the two fits' variances of the row). Added, removed and remeasured rows (uncertainty changed) carry independent errors: s^2 v on their side. " +
   'Prior moduli of anchors and main-sequence targets count as common when all rows feeding them are. ' +
   'The alpha/beta term combines as |V_a - V_b| when the supernova rows are nested, else V_a + V_b. ' +
   'Identical data give 0; b = a + independent rows gives sigma_a^2 - sigma_b^2 (nested samples); nothing shared gives the quadrature sum. ' +
@@ -156,11 +156,7 @@ function quad(s: readonly number[], c: readonly (readonly number[])[]): number {
   return t;
 }
 
-function denseDifferenceVariance(
-  a: NonNullable<SideWeights['dense']> | null,
-  b: NonNullable<SideWeights['dense']> | null,
-  sharing: SharedErrors,
-): number {
+function denseDifferenceVariance(a: NonNullable<SideWeights['dense']> | null, b: NonNullable<SideWeights['dense']> | null, sharing: SharedErrors): number {
   if (!a && !b) return 0;
   if (!a) return quad(b!.s, b!.cov);
   if (!b) return quad(a.s, a.cov);

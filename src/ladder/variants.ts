@@ -80,10 +80,7 @@ export function changesData(base: AnalysisChoices, overrides: Partial<AnalysisCh
  * them. A variant that changes R_V and does not state its own Wesenheit coefficient gets the
  * coefficient derived from the extinction law with its R_V; `derived` lists such values.
  */
-export function variantAnalysis(
-  base: AnalysisChoices,
-  overrides: Partial<AnalysisChoices>,
-): { analysis: AnalysisChoices; derived: Partial<AnalysisChoices> } {
+export function variantAnalysis(base: AnalysisChoices, overrides: Partial<AnalysisChoices>): { analysis: AnalysisChoices; derived: Partial<AnalysisChoices> } {
   const analysis = withOverrides(base, overrides);
   const derived: Partial<AnalysisChoices> = {};
   if (overrides.r_v !== undefined && overrides.wesenheit_r === undefined && overrides.r_v !== base.r_v) {

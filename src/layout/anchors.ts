@@ -22,7 +22,20 @@ const SLUG_MAX = 40;
 const BASE32 = 'abcdefghijklmnopqrstuvwxyz234567';
 
 /** Element ids the pages use themselves; an object with one of these names gets the hashed form. */
-export const RESERVED_IDS: ReadonlySet<string> = new Set(['top', 'main', 'results', 'figures', 'objects', 'history', 'leave-one-out', 'cautions', 'cautions-title', 'method', 'inputs', 'pulls']);
+export const RESERVED_IDS: ReadonlySet<string> = new Set([
+  'top',
+  'main',
+  'results',
+  'figures',
+  'objects',
+  'history',
+  'leave-one-out',
+  'cautions',
+  'cautions-title',
+  'method',
+  'inputs',
+  'pulls',
+]);
 
 function hash10(id: string): string {
   const bytes = createHash('sha256').update(id, 'utf8').digest();
@@ -81,7 +94,9 @@ export function assertUnique(ids: readonly string[], name: (id: string) => strin
     const n = fold ? name(id).toLowerCase() : name(id);
     const other = seen.get(n);
     if (other !== undefined) {
-      throw new Error(`${what} ${JSON.stringify(other)} and ${JSON.stringify(id)} would share the name ${JSON.stringify(n)} in the report's links; rename one of them`);
+      throw new Error(
+        `${what} ${JSON.stringify(other)} and ${JSON.stringify(id)} would share the name ${JSON.stringify(n)} in the report's links; rename one of them`,
+      );
     }
     seen.set(n, id);
   }

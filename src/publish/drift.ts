@@ -89,7 +89,8 @@ export function compareResults(published: Results, recomputed: Results): Drift {
   const leaf = (path: string, a: Leaf, b: Leaf): void => {
     compared += 1;
     if (typeof a === 'number' && typeof b === 'number') {
-      if (numbersDiffer(a, b)) entries.push({ path, label: labelOf(path), published: a, recomputed: b, delta: b - a, relative: a !== 0 ? (b - a) / Math.abs(a) : null });
+      if (numbersDiffer(a, b))
+        entries.push({ path, label: labelOf(path), published: a, recomputed: b, delta: b - a, relative: a !== 0 ? (b - a) / Math.abs(a) : null });
     } else if (a !== b) {
       entries.push({ path, label: labelOf(path), published: a, recomputed: b, delta: null, relative: null });
     }

@@ -61,11 +61,22 @@ export async function publishRelease(dir: string, o: PublishOptions): Promise<Pu
   const issues: InputIssue[] = [];
   const recorded = new Map(after.map((f) => [f.file, f.sha256]));
   for (const f of before) {
-    if (recorded.get(f.file) !== f.sha256) issues.push({ code: 'changed-while-publishing', file: join(dir, f.file), message: 'the file changed while the release was being published', hint: 'publish again when nothing is writing to the folder' });
+    if (recorded.get(f.file) !== f.sha256)
+      issues.push({
+        code: 'changed-while-publishing',
+        file: join(dir, f.file),
+        message: 'the file changed while the release was being published',
+        hint: 'publish again when nothing is writing to the folder',
+      });
   }
   for (const input of results.provenance.inputs) {
     if (recorded.get(input.file) !== input.sha256) {
-      issues.push({ code: 'changed-while-publishing', file: join(dir, input.file), message: 'the file the calibration read differs from the file in the folder', hint: 'publish again when nothing is writing to the folder' });
+      issues.push({
+        code: 'changed-while-publishing',
+        file: join(dir, input.file),
+        message: 'the file the calibration read differs from the file in the folder',
+        hint: 'publish again when nothing is writing to the folder',
+      });
     }
   }
   if (issues.length > 0) throw new InputError(issues);

@@ -21,9 +21,7 @@ export interface SeedQuantity {
 }
 
 /** One line of the seeds file (JSON Lines): a calibrated seed, or one whose calibration refused the simulated data. */
-export type SeedLine =
-  | { seed: number; quantities: Record<string, SeedQuantity | null> }
-  | { seed: number; failed: string };
+export type SeedLine = { seed: number; quantities: Record<string, SeedQuantity | null> } | { seed: number; failed: string };
 
 export interface SeedContext {
   release: Release;

@@ -71,13 +71,31 @@ export function parseSeedsFile(file: string, text: string): { header: SeedsHeade
     try {
       return JSON.parse(rows[i]!);
     } catch {
-      throw new InputError([issue(file, i + 1, 'the line is not JSON', 'one JSON object per line', JSON.stringify(rows[i]!.slice(0, 60)), 'the file may be cut short: run that shard again')]);
+      throw new InputError([
+        issue(
+          file,
+          i + 1,
+          'the line is not JSON',
+          'one JSON object per line',
+          JSON.stringify(rows[i]!.slice(0, 60)),
+          'the file may be cut short: run that shard again',
+        ),
+      ]);
     }
   };
   if (rows.length === 0) throw new InputError([issue(file, 1, 'the file is empty', `a ${SEEDS_SCHEMA} header line`, 'nothing')]);
   const header = parse(0) as SeedsHeader;
   if (!header || header.schema !== SEEDS_SCHEMA) {
-    throw new InputError([issue(file, 1, 'the first line is not a recovery seeds header', `"schema": "${SEEDS_SCHEMA}"`, JSON.stringify((header as { schema?: unknown })?.schema ?? null), 'give the files written by `rungbook recover --shard K/M`')]);
+    throw new InputError([
+      issue(
+        file,
+        1,
+        'the first line is not a recovery seeds header',
+        `"schema": "${SEEDS_SCHEMA}"`,
+        JSON.stringify((header as { schema?: unknown })?.schema ?? null),
+        'give the files written by `rungbook recover --shard K/M`',
+      ),
+    ]);
   }
   const expected = shardSeeds(header.first, header.count, header.shard);
   const lines: SeedLine[] = [];
@@ -85,16 +103,39 @@ export function parseSeedsFile(file: string, text: string): { header: SeedsHeade
     const l = parse(i) as SeedLine;
     const want = expected[i - 1];
     if (!l || typeof l.seed !== 'number' || !('quantities' in l || 'failed' in l)) {
-      throw new InputError([issue(file, i + 1, 'the line is not a seed result', '{"seed": ..., "quantities": {...}} or {"seed": ..., "failed": "..."}', JSON.stringify(rows[i]!.slice(0, 60)))]);
+      throw new InputError([
+        issue(
+          file,
+          i + 1,
+          'the line is not a seed result',
+          '{"seed": ..., "quantities": {...}} or {"seed": ..., "failed": "..."}',
+          JSON.stringify(rows[i]!.slice(0, 60)),
+        ),
+      ]);
     }
     if (l.seed !== want) {
-      throw new InputError([issue(file, i + 1, `unexpected seed in shard ${header.shard.k}/${header.shard.m}`, want === undefined ? 'no more lines' : `seed ${want}`, `seed ${l.seed}`)]);
+      throw new InputError([
+        issue(
+          file,
+          i + 1,
+          `unexpected seed in shard ${header.shard.k}/${header.shard.m}`,
+          want === undefined ? 'no more lines' : `seed ${want}`,
+          `seed ${l.seed}`,
+        ),
+      ]);
     }
     lines.push(l);
   }
   if (lines.length !== expected.length) {
     throw new InputError([
-      issue(file, rows.length, `shard ${header.shard.k}/${header.shard.m} is incomplete`, `${expected.length} seeds (${expected[0]}..${expected.at(-1)})`, `${lines.length} seeds`, 'the run may have stopped early: run that shard again'),
+      issue(
+        file,
+        rows.length,
+        `shard ${header.shard.k}/${header.shard.m} is incomplete`,
+        `${expected.length} seeds (${expected[0]}..${expected.at(-1)})`,
+        `${lines.length} seeds`,
+        'the run may have stopped early: run that shard again',
+      ),
     ]);
   }
   return { header, lines };
@@ -102,7 +143,10 @@ export function parseSeedsFile(file: string, text: string): { header: SeedsHeade
 
 /** Combine the seeds files of one run (every shard exactly once) into its header and all its lines. */
 export function mergeSeedFiles(files: readonly { file: string; text: string }[]): { header: SeedsHeader; lines: SeedLine[] } {
-  if (files.length === 0) throw new InputError([{ code: 'recovery-seeds-file', file: '(none)', message: 'no seeds files to merge', expected: 'the files of every shard', found: 'none' }]);
+  if (files.length === 0)
+    throw new InputError([
+      { code: 'recovery-seeds-file', file: '(none)', message: 'no seeds files to merge', expected: 'the files of every shard', found: 'none' },
+    ]);
   const parsed = files.map((f) => ({ file: f.file, ...parseSeedsFile(f.file, f.text) }));
   const first = parsed[0]!;
   const byShard = new Map<number, string>();
@@ -110,18 +154,37 @@ export function mergeSeedFiles(files: readonly { file: string; text: string }[])
   for (const p of parsed) {
     const differs = sameRun(first.header, p.header);
     if (differs) {
-      issues.push(issue(p.file, 1, `the file belongs to another run than ${first.file} (its "${differs}" differs)`, JSON.stringify(differs === 'shard' ? first.header.shard.m : first.header[differs]), JSON.stringify(differs === 'shard' ? p.header.shard.m : p.header[differs]), 'merge the shards of one run: same release, code version, --seeds, --first and M'));
+      issues.push(
+        issue(
+          p.file,
+          1,
+          `the file belongs to another run than ${first.file} (its "${differs}" differs)`,
+          JSON.stringify(differs === 'shard' ? first.header.shard.m : first.header[differs]),
+          JSON.stringify(differs === 'shard' ? p.header.shard.m : p.header[differs]),
+          'merge the shards of one run: same release, code version, --seeds, --first and M',
+        ),
+      );
       continue;
     }
     const other = byShard.get(p.header.shard.k);
-    if (other !== undefined) issues.push(issue(p.file, 1, `shard ${p.header.shard.k}/${p.header.shard.m} is given twice`, 'each shard once', `also in ${other}`));
+    if (other !== undefined)
+      issues.push(issue(p.file, 1, `shard ${p.header.shard.k}/${p.header.shard.m} is given twice`, 'each shard once', `also in ${other}`));
     else byShard.set(p.header.shard.k, p.file);
   }
   if (issues.length === 0) {
     const m = first.header.shard.m;
     const missing = Array.from({ length: m }, (_, i) => i + 1).filter((k) => !byShard.has(k));
     if (missing.length > 0) {
-      issues.push(issue(first.file, 1, `shards missing from the run of ${m}`, `shards 1..${m}`, `no file for shard${missing.length > 1 ? 's' : ''} ${missing.map((k) => `${k}/${m}`).join(', ')}`, 'run the missing shards and merge again'));
+      issues.push(
+        issue(
+          first.file,
+          1,
+          `shards missing from the run of ${m}`,
+          `shards 1..${m}`,
+          `no file for shard${missing.length > 1 ? 's' : ''} ${missing.map((k) => `${k}/${m}`).join(', ')}`,
+          'run the missing shards and merge again',
+        ),
+      );
     }
   }
   if (issues.length > 0) throw new InputError(issues);

@@ -26,16 +26,7 @@ import { createRng, type Rng } from '../demo/random.ts';
 import { cholesky3 } from '../demo/observe.ts';
 import { distancePcFromModulus } from '../ladder/distance.ts';
 import { hubbleFlowLogFactor } from '../ladder/kinematics.ts';
-import type {
-  CepheidRow,
-  MainSequenceRow,
-  ParallaxRow,
-  Release,
-  SnCalibratorRow,
-  SnHubbleFlowRow,
-  SupernovaLightCurve,
-  SystemRow,
-} from '../types/release.ts';
+import type { CepheidRow, MainSequenceRow, ParallaxRow, Release, SnCalibratorRow, SnHubbleFlowRow, SupernovaLightCurve, SystemRow } from '../types/release.ts';
 import type { RecoveryTruth } from './truth.ts';
 
 /** Error columns a test may scale (stated error = factor x error the noise was drawn with). */
@@ -176,7 +167,12 @@ function simulateParallax(sim: Simulation): { parallax: ParallaxRow[]; statedZer
   const zRng = stream('parallax-zero-point');
   const statedZeroPoint = release.parallax.length > 0 ? truth.parallaxZeroPointMas + zRng.gauss(0, a.parallax_zero_point_err) : a.parallax_zero_point;
   const pRng = stream('parallax');
-  const pDonor = errorDonors(pRng, release.parallax, (r) => r.system, (r) => r.parallaxErrMas);
+  const pDonor = errorDonors(
+    pRng,
+    release.parallax,
+    (r) => r.system,
+    (r) => r.parallaxErrMas,
+  );
   const parallax: ParallaxRow[] = release.parallax.map((row, i) => {
     let trueMas: number;
     if (fieldSystems.has(row.system)) {
@@ -194,7 +190,12 @@ function simulateMainSequence(sim: Simulation): MainSequenceRow[] {
   const { release, truth, a, f, stream } = sim;
   // Main sequence.
   const msRng = stream('main-sequence');
-  const msDonor = errorDonors(msRng, release.mainSequence, (r) => r.system, (r) => r.mag);
+  const msDonor = errorDonors(
+    msRng,
+    release.mainSequence,
+    (r) => r.system,
+    (r) => r.mag,
+  );
   const mainSequence: MainSequenceRow[] = release.mainSequence.map((row, i) => {
     if (!truth.locus) throw new RangeError('recovery: the release has main-sequence rows but its fit has no main-sequence locus');
     const e = need(truth.systemEbv, row.system, 'E(B-V) of system');
@@ -202,7 +203,8 @@ function simulateMainSequence(sim: Simulation): MainSequenceRow[] {
     const mu = need(truth.systemMu, row.system, 'distance modulus of system');
     const c0 = row.color - e;
     const binary = msRng.chance(truth.locus.binary_fraction);
-    const vTrue = locusMag(truth, c0) - a.ms_feh_slope * feh + mu + a.r_v * e + msRng.gauss(0, truth.locus.scatter) - (binary ? EQUAL_MASS_BINARY_OFFSET_MAG : 0);
+    const vTrue =
+      locusMag(truth, c0) - a.ms_feh_slope * feh + mu + a.r_v * e + msRng.gauss(0, truth.locus.scatter) - (binary ? EQUAL_MASS_BINARY_OFFSET_MAG : 0);
     const d = release.mainSequence[msDonor[i]!]!;
     return {
       ...row,
@@ -230,9 +232,16 @@ function simulateCepheids(sim: Simulation): CepheidRow[] {
     return blended ? -u : 0;
   });
   const cRng = stream('cepheids');
-  const cDonor = errorDonors(cRng, release.cepheids, (r) => r.system, (r) => r.periodDays);
+  const cDonor = errorDonors(
+    cRng,
+    release.cepheids,
+    (r) => r.system,
+    (r) => r.periodDays,
+  );
   const cepheids: CepheidRow[] = release.cepheids.map((row, i) => {
-    const mu = fieldSystems.has(row.system) ? need(truth.fieldStarMu, row.star, 'distance modulus of the field Cepheid') : need(truth.systemMu, row.system, 'distance modulus of system');
+    const mu = fieldSystems.has(row.system)
+      ? need(truth.fieldStarMu, row.star, 'distance modulus of the field Cepheid')
+      : need(truth.systemMu, row.system, 'distance modulus of system');
     const w = mu + truth.mW + truth.bW * (Math.log10(row.periodDays) - a.pl_pivot_logp) + truth.zW * row.oh + cRng.gauss(0, truth.sigmaIntCepheid);
     // a blend brightens every band by the same amount: the colour stays, W moves with m_h
     const mhTrue = w + a.wesenheit_r * (row.mV - row.mI) + blendOffset[i]!;
@@ -255,7 +264,12 @@ function simulateCalibrators(sim: Simulation): SnCalibratorRow[] {
   const { release, truth, f, stream } = sim;
   // Calibrator supernovae: the row's x1 and c are kept as the true ones.
   const sRng = stream('sn-calibrators');
-  const sDonor = errorDonors(sRng, release.snCalibrators, () => '', (r) => r.mBErr);
+  const sDonor = errorDonors(
+    sRng,
+    release.snCalibrators,
+    () => '',
+    (r) => r.mBErr,
+  );
   const snCalibrators: SnCalibratorRow[] = release.snCalibrators.map((row, i) => {
     const mu = need(truth.systemMu, row.system, 'distance modulus of system');
     const mbTrue = mu + truth.mB - truth.alpha * row.x1 + truth.beta * row.c + sRng.gauss(0, truth.sigmaIntSn);
@@ -269,7 +283,12 @@ function simulateHubbleFlow(sim: Simulation): SnHubbleFlowRow[] {
   const { release, truth, a, f, stream } = sim;
   // Hubble flow: the row's z is the cosmological redshift; errors from neighbours in z.
   const hRng = stream('sn-hubble-flow');
-  const hDonor = errorDonors(hRng, release.snHubbleFlow, () => '', (r) => r.z);
+  const hDonor = errorDonors(
+    hRng,
+    release.snHubbleFlow,
+    () => '',
+    (r) => r.z,
+  );
   const snHubbleFlow: SnHubbleFlowRow[] = release.snHubbleFlow.map((row, i) => {
     const mbTrue = 5 * hubbleFlowLogFactor(row.z, a.q0, a.j0) - 5 * truth.aB - truth.alpha * row.x1 + truth.beta * row.c + hRng.gauss(0, truth.sigmaIntSn);
     const d = release.snHubbleFlow[hDonor[i]!]!;

@@ -224,7 +224,10 @@ export function summarise(header: SummaryHeader, lines: readonly SeedLine[]): Re
     if (failing.length > 0) reason += `, and ${failing.length} quantities fail the bounds`;
   } else if (failing.length > 0) {
     verdict = 'fail';
-    reason = `${failing.length} of ${quantities.length} quantities fail the bounds: ${failing.slice(0, 5).map((q) => q.key).join(', ')}${failing.length > 5 ? ', ...' : ''}`;
+    reason = `${failing.length} of ${quantities.length} quantities fail the bounds: ${failing
+      .slice(0, 5)
+      .map((q) => q.key)
+      .join(', ')}${failing.length > 5 ? ', ...' : ''}`;
   } else if (unclear.length > 0) {
     verdict = 'inconclusive';
     reason = `no quantity fails, but ${sorted.length} seeds are too few to tell for ${unclear.length} of ${quantities.length} quantities: run more seeds`;
@@ -267,9 +270,12 @@ export function parseRecoverySummary(file: string, text: string): RecoverySummar
   const bad = (what: string) => new Error(`${file}: ${what}; write it again with rungbook recover`);
   const s = v as RecoverySummary;
   if (!s || typeof s !== 'object' || s.schema !== RECOVERY_SCHEMA) throw bad(`"schema" is not "${RECOVERY_SCHEMA}"`);
-  if (!s.release || typeof s.release.id !== 'string' || typeof s.release.blinded !== 'boolean' || typeof s.release.inputs_hash !== 'string') throw bad('"release" is not { id, blinded, inputs_hash }');
-  if (!['pass', 'fail', 'inconclusive'].includes(s.verdict) || typeof s.verdict_reason !== 'string') throw bad('"verdict" is not pass, fail or inconclusive with its reason');
-  if (!s.seeds || !['first', 'count', 'calibrated', 'failed'].every((k) => Number.isInteger((s.seeds as unknown as Record<string, unknown>)[k]))) throw bad('"seeds" is not { first, count, calibrated, failed }');
+  if (!s.release || typeof s.release.id !== 'string' || typeof s.release.blinded !== 'boolean' || typeof s.release.inputs_hash !== 'string')
+    throw bad('"release" is not { id, blinded, inputs_hash }');
+  if (!['pass', 'fail', 'inconclusive'].includes(s.verdict) || typeof s.verdict_reason !== 'string')
+    throw bad('"verdict" is not pass, fail or inconclusive with its reason');
+  if (!s.seeds || !['first', 'count', 'calibrated', 'failed'].every((k) => Number.isInteger((s.seeds as unknown as Record<string, unknown>)[k])))
+    throw bad('"seeds" is not { first, count, calibrated, failed }');
   if (!Array.isArray(s.quantities)) throw bad('"quantities" is not a list');
   const num = (x: unknown) => x === null || typeof x === 'number';
   for (const [i, q] of s.quantities.entries()) {
@@ -277,7 +283,9 @@ export function parseRecoverySummary(file: string, text: string): RecoverySummar
       q &&
       typeof q.key === 'string' &&
       Number.isInteger(q.n) &&
-      (['mean', 'sd', 'coverage1', 'coverage2'] as const).every((k) => q[k] && num(q[k].value) && num(q[k].se) && ['pass', 'fail', 'inconclusive'].includes(q[k].verdict)) &&
+      (['mean', 'sd', 'coverage1', 'coverage2'] as const).every(
+        (k) => q[k] && num(q[k].value) && num(q[k].se) && ['pass', 'fail', 'inconclusive'].includes(q[k].verdict),
+      ) &&
       q.histogram &&
       Array.isArray(q.histogram.counts) &&
       q.histogram.counts.every((c) => Number.isInteger(c));

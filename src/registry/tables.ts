@@ -7,16 +7,7 @@
  * column name), the demo writer (src/demo/tables.ts), the comparison's row
  * tables (src/diff/rows.ts) and the format page of the report.
  */
-import type {
-  CepheidRow,
-  MainSequenceRow,
-  Release,
-  ParallaxRow,
-  SnCalibratorRow,
-  SnHubbleFlowRow,
-  SystemRow,
-  TableName,
-} from '../types/release.ts';
+import type { CepheidRow, MainSequenceRow, Release, ParallaxRow, SnCalibratorRow, SnHubbleFlowRow, SystemRow, TableName } from '../types/release.ts';
 
 /** Units the contract stores values in after reading ('' means dimensionless); src/io/units.ts converts to them or refuses. */
 export type ContractUnit = 'mas' | 'deg' | 'd' | 'Gyr' | 'mag' | 'mag2' | 'dex' | '';

@@ -97,7 +97,10 @@ async function leaveOneOutCached(
     if (looFn === null) loos.set(id, { loo: null, missing: 'The leave-one-out refits were not computed in this build.' });
     else if (c.results.h0 === null) loos.set(id, { loo: null, missing: 'The release does not reach the Hubble flow, so there is no H0 to shift.' });
     else {
-      const path = cacheDir === null ? null : join(cacheDir, `loo-${sha256('rungbook.loo-cache/1', codeHash, await reportCodeHash(REPO_ROOT), await hashTree(c.dir))}.json`);
+      const path =
+        cacheDir === null
+          ? null
+          : join(cacheDir, `loo-${sha256('rungbook.loo-cache/1', codeHash, await reportCodeHash(REPO_ROOT), await hashTree(c.dir))}.json`);
       const hit = path === null ? null : await readCached<LeaveOneOut>(path, LOO_SCHEMA);
       if (hit !== null) loos.set(id, { loo: hit, missing: null });
       else todo.push({ id, dir: c.dir, path });
@@ -286,7 +289,13 @@ async function generateReleaseCached(
   figures: readonly ReleaseFigure[],
   comparison: DiffReport | null,
   next: PageLink[],
-  drill: { leaveOneOut: LeaveOneOut | null; looMissing: string | null; systemHistory: SystemHistory; releasesBuilt: string[]; measuredRecovery: MeasuredRecovery | null },
+  drill: {
+    leaveOneOut: LeaveOneOut | null;
+    looMissing: string | null;
+    systemHistory: SystemHistory;
+    releasesBuilt: string[];
+    measuredRecovery: MeasuredRecovery | null;
+  },
   recovery: RecoverySummary | null = null,
 ): Promise<{ summary: ReleaseSummary; regenerated: boolean }> {
   const id = results.release.id;
@@ -349,7 +358,13 @@ export async function verifySite(dir: string): Promise<void> {
   for (const f of (await listFiles(dir)).filter((x) => x.endsWith('.html'))) {
     const text = await readFile(join(dir, f), 'utf8');
     const m = /class="katex-error"[^>]*title="([^"]*)"/.exec(text) ?? (text.includes('katex-error') ? ['', '(no message)'] : null);
-    if (m) problems.push(`${f}: ${m[1]!.replace(/&#x27;|&#39;/g, "'").replace(/&quot;/g, '"').slice(0, 200)}`);
+    if (m)
+      problems.push(
+        `${f}: ${m[1]!
+          .replace(/&#x27;|&#39;/g, "'")
+          .replace(/&quot;/g, '"')
+          .slice(0, 200)}`,
+      );
   }
   if (problems.length > 0) {
     throw new ReportBuildError(
@@ -432,7 +447,8 @@ export async function buildReport(opts: BuildReportOptions): Promise<BuildSummar
   // One build at a time in a work folder: the generated files and Astro's cache in it are this build's alone.
   const notice = opts.progressStream ?? process.stderr;
   const unlock = await acquireLock(join(settings.workDir, 'build.lock'), {
-    onWait: (pid) => notice.write(`rungbook build: another build${Number.isInteger(pid) ? ` (process ${pid})` : ''} is using ${settings.workDir}; waiting for it to finish\n`),
+    onWait: (pid) =>
+      notice.write(`rungbook build: another build${Number.isInteger(pid) ? ` (process ${pid})` : ''} is using ${settings.workDir}; waiting for it to finish\n`),
   });
   try {
     // Every cache moves forward only with a successful build (src/report/workState.ts).
@@ -463,7 +479,9 @@ async function buildWithin(ctx: BuildContext, dirs: readonly string[], t0: numbe
   const tc = performance.now();
   // What each system does to H0: the release refitted without it (cached like the results).
   const looFn = ctx.opts.leaveOneOut === null ? null : (ctx.opts.leaveOneOut ?? (await defaultLeaveOneOut()));
-  const loos = await leaveOneOutCached(calibrated, looFn, ctx.settings.cacheDir, ctx.codeHash, ctx.work, (id) => ctx.progress.step(`leaving each system of ${id} out`));
+  const loos = await leaveOneOutCached(calibrated, looFn, ctx.settings.cacheDir, ctx.codeHash, ctx.work, (id) =>
+    ctx.progress.step(`leaving each system of ${id} out`),
+  );
   const tl = performance.now();
   const releases = await generatePages(ctx, calibrated, comparisons, loos);
   const t2 = performance.now();
@@ -511,7 +529,10 @@ async function calibrateAll(ctx: BuildContext, dirs: readonly string[]): Promise
 }
 
 /** 2. Each release against its previous one, when both are in this report; the links point into this report. */
-async function compareAll(ctx: BuildContext, calibrated: readonly Calibrated[]): Promise<{ comparisons: Map<string, DiffReport>; compared: BuildSummary['comparisons'] }> {
+async function compareAll(
+  ctx: BuildContext,
+  calibrated: readonly Calibrated[],
+): Promise<{ comparisons: Map<string, DiffReport>; compared: BuildSummary['comparisons'] }> {
   const comparisons = new Map<string, DiffReport>();
   const compared: BuildSummary['comparisons'] = [];
   const compare = ctx.opts.compare === null ? null : (ctx.opts.compare ?? (await defaultCompare()));
@@ -575,7 +596,19 @@ async function generatePages(
       // Only the history of this release's systems enters its pages (and its stamp).
       const own = Object.fromEntries(r.systems.map((s) => [s.id, history[s.id] ?? []]));
       const drill = { leaveOneOut: l.loo, looMissing: l.missing, systemHistory: own, releasesBuilt: ids, measuredRecovery };
-      const g = await generateReleaseCached(layout, r, notes, previousBuilt, c.published, reportHash, ctx.opts.figures ?? RELEASE_FIGURES, comparisons.get(r.release.id) ?? null, nextOf(r.release.id), drill, recovery);
+      const g = await generateReleaseCached(
+        layout,
+        r,
+        notes,
+        previousBuilt,
+        c.published,
+        reportHash,
+        ctx.opts.figures ?? RELEASE_FIGURES,
+        comparisons.get(r.release.id) ?? null,
+        nextOf(r.release.id),
+        drill,
+        recovery,
+      );
       if (!g.regenerated) progress.step('  unchanged, kept');
       summaries.push(g.summary);
       releases.push({ id: r.release.id, dir: c.dir, cached: c.cached, regenerated: g.regenerated });

@@ -37,7 +37,17 @@ import { recoveryPage, recoveryView } from './recovery.ts';
 import { recoveryPulls } from './figures/recoveryPulls.ts';
 import type { RecoverySummary } from '../recover/summary.ts';
 import type { ZodType } from 'zod';
-import { downloadsFolder, figureFilePath, figurePagePath, releaseFiguresFolder, releasePagePath, releasePath, siteFiguresFolder, systemFigureLink, systemFiguresFolder } from '../layout/routes.ts';
+import {
+  downloadsFolder,
+  figureFilePath,
+  figurePagePath,
+  releaseFiguresFolder,
+  releasePagePath,
+  releasePath,
+  siteFiguresFolder,
+  systemFigureLink,
+  systemFiguresFolder,
+} from '../layout/routes.ts';
 import { proseFileSchema, releaseDataSchema, siteDataSchema, systemPageFileSchema } from '../layout/pageSchema.ts';
 import {
   type ComparisonView,
@@ -180,19 +190,37 @@ async function releaseFigures(
 }
 
 /** Downloads: results.json and every result table as CSV and ECSV; and where each table's files are. */
-async function writeDownloads(layout: GenLayout, r: Results): Promise<{ downloads: DownloadLink[]; tableDownload: (name: string) => { csv: string; ecsv: string } }> {
+async function writeDownloads(
+  layout: GenLayout,
+  r: Results,
+): Promise<{ downloads: DownloadLink[]; tableDownload: (name: string) => { csv: string; ecsv: string } }> {
   const id = r.release.id;
   const dl = downloadsFolder(id);
   const downloads: DownloadLink[] = [];
   const resultsJson = `${JSON.stringify(r, null, 2)}\n`;
-  downloads.push({ label: 'results.json (everything on these pages)', path: `${dl}results.json`, format: 'JSON', bytes: await put(join(layout.publicDir, dl, 'results.json'), resultsJson) });
+  downloads.push({
+    label: 'results.json (everything on these pages)',
+    path: `${dl}results.json`,
+    format: 'JSON',
+    bytes: await put(join(layout.publicDir, dl, 'results.json'), resultsJson),
+  });
   const tableFiles = new Map<string, { csv: string; ecsv: string }>();
   for (const t of resultTables(r)) {
     const csvPath = `${dl}${t.name}.csv`;
     const ecsvPath = `${dl}${t.name}.ecsv`;
     const meta = { release: id, table: t.name, title: t.title, source: `${RESULTS_SCHEMA} of release ${id}`, note: GENERATED_MARK };
-    downloads.push({ label: `${t.title} (${t.rows.length} rows)`, path: csvPath, format: 'CSV', bytes: await put(join(layout.publicDir, csvPath), writeCsv(t.columns, t.rows)) });
-    downloads.push({ label: `${t.title} (${t.rows.length} rows)`, path: ecsvPath, format: 'ECSV', bytes: await put(join(layout.publicDir, ecsvPath), writeEcsv(t.columns, t.rows, meta)) });
+    downloads.push({
+      label: `${t.title} (${t.rows.length} rows)`,
+      path: csvPath,
+      format: 'CSV',
+      bytes: await put(join(layout.publicDir, csvPath), writeCsv(t.columns, t.rows)),
+    });
+    downloads.push({
+      label: `${t.title} (${t.rows.length} rows)`,
+      path: ecsvPath,
+      format: 'ECSV',
+      bytes: await put(join(layout.publicDir, ecsvPath), writeEcsv(t.columns, t.rows, meta)),
+    });
     tableFiles.set(t.name, { csv: csvPath, ecsv: ecsvPath });
   }
   const tableDownload = (name: string) => {
@@ -254,7 +282,11 @@ async function addRecovery(layout: GenLayout, data: ReleaseData, recovery: Recov
 }
 
 /** Generate every file of one release; returns its entry for the home page. */
-export async function generateRelease(layout: GenLayout, input: ReleaseGenInput, figureList: readonly ReleaseFigure[] = RELEASE_FIGURES): Promise<ReleaseSummary> {
+export async function generateRelease(
+  layout: GenLayout,
+  input: ReleaseGenInput,
+  figureList: readonly ReleaseFigure[] = RELEASE_FIGURES,
+): Promise<ReleaseSummary> {
   const r = input.results;
   const id = r.release.id;
   await removeRelease(layout, id);
@@ -301,7 +333,14 @@ export async function generateSite(layout: GenLayout, all: readonly Results[], s
   const spec = h0History(all);
   const history = spec ? await writeFigure(layout, siteFiguresFolder(), spec) : null;
   const releases = newestFirst(summaries);
-  const site: SiteData = { generated: GENERATED_MARK, releases, latest: releases[0]?.id ?? null, history, parameterHistory: parameterHistory(all), inputFormat: inputFormatTables() };
+  const site: SiteData = {
+    generated: GENERATED_MARK,
+    releases,
+    latest: releases[0]?.id ?? null,
+    history,
+    parameterHistory: parameterHistory(all),
+    inputFormat: inputFormatTables(),
+  };
   const { generated: _mark, ...rest } = site;
   await writePageData(layout, join('data', 'site.json'), siteDataSchema, rest);
   return site;

@@ -47,11 +47,16 @@ function tableOfColumns(table: (typeof TABLE_NAMES)[number]): TableView {
 
 function analysisTable(): TableView {
   const rows = ANALYSIS_KEYS.map((k) => [k, JSON.stringify(DEFAULT_ANALYSIS[k]), ANALYSIS_UNITS[k]]);
-  return tableView('analysis-keys', 'Analysis choices (release.yaml, under analysis:) and their defaults', [
-    ['key', 'Key', null, false],
-    ['default', 'Default', null, false],
-    ['unit', 'Unit', null, false],
-  ], rows);
+  return tableView(
+    'analysis-keys',
+    'Analysis choices (release.yaml, under analysis:) and their defaults',
+    [
+      ['key', 'Key', null, false],
+      ['default', 'Default', null, false],
+      ['unit', 'Unit', null, false],
+    ],
+    rows,
+  );
 }
 
 /** The format page's tables: one per input table, then the analysis keys. */

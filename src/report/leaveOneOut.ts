@@ -114,7 +114,16 @@ export function looEntry(release: Release, system: string, refit: Refit, base: H
   if (fit === null) return { ...empty, error: refit.error ?? 'the refit failed' };
   if (base === null) return { ...empty, h0: fit.h0, h0_stat: fit.stat, error: 'the release itself does not reach the Hubble flow' };
   const dv = fit.variance - base.variance;
-  return { system, removed, h0: fit.h0, h0_stat: fit.stat, shift: fit.h0 - base.h0, shift_err: Math.sqrt(Math.abs(dv)), variance_reversed: dv < 0, error: null };
+  return {
+    system,
+    removed,
+    h0: fit.h0,
+    h0_stat: fit.stat,
+    shift: fit.h0 - base.h0,
+    shift_err: Math.sqrt(Math.abs(dv)),
+    variance_reversed: dv < 0,
+    error: null,
+  };
 }
 
 /** One system left out: refit and compare with the baseline. */

@@ -41,7 +41,8 @@ export async function readMeasuredRecovery(methodsDir: string): Promise<Measured
     return null;
   }
   const parsed = measuredRecoverySchema.safeParse(JSON.parse(text));
-  if (!parsed.success) throw new Error(`${file}: not a measured recovery table (${parsed.error.issues[0]?.message}); write it with npm run recovery:campaign -- --write`);
+  if (!parsed.success)
+    throw new Error(`${file}: not a measured recovery table (${parsed.error.issues[0]?.message}); write it with npm run recovery:campaign -- --write`);
   return parsed.data;
 }
 

@@ -11,7 +11,21 @@ import { changesParagraph } from './compare/view.ts';
 import { analysisValueText, distanceText, fixed, int, percent, pm, sig, valueErr } from './format.ts';
 import { type ColumnSpec, tableView } from './tables.ts';
 import type { SystemsIndexView } from './types.ts';
-import type { CheckView, ComparisonView, DownloadLink, FigureRef, Headline, InputUsed, KeyValue, PageLink, PublishedView, ReleaseData, RowMark, RungData, TableView } from './types.ts';
+import type {
+  CheckView,
+  ComparisonView,
+  DownloadLink,
+  FigureRef,
+  Headline,
+  InputUsed,
+  KeyValue,
+  PageLink,
+  PublishedView,
+  ReleaseData,
+  RowMark,
+  RungData,
+  TableView,
+} from './types.ts';
 import { GENERATED_MARK } from './types.ts';
 import { measuredRecoveryTable, type MeasuredRecovery } from './measured.ts';
 
@@ -81,7 +95,15 @@ export function releasePages(id: string): PageLink[] {
 export function headline(r: Results): Headline {
   const unit = 'km/s/Mpc';
   if (r.h0 === null) {
-    return { state: 'not_reached', value: null, stat: null, sys: null, total: null, unit, text: `No H0: the ladder stops at the ${r.reached.replace('_', ' ')} rung.` };
+    return {
+      state: 'not_reached',
+      value: null,
+      stat: null,
+      sys: null,
+      total: null,
+      unit,
+      text: `No H0: the ladder stops at the ${r.reached.replace('_', ' ')} rung.`,
+    };
   }
   const stat = pm(r.h0.value, r.h0.stat).split(' ± ');
   const sys = pm(r.h0.value, r.h0.sys).split(' ± ');
@@ -100,13 +122,25 @@ export function headline(r: Results): Headline {
       text: `H0 is blinded (scaled by a hidden factor); relative uncertainties ± ${rel(r.h0.stat)} % (stat) ± ${rel(r.h0.sys)} % (sys).`,
     };
   }
-  return { state: 'measured', value, stat: stat[1]!, sys: sys[1]!, total: total[1]!, unit, text: `H0 = ${value} ± ${stat[1]} (stat) ± ${sys[1]} (sys) ${unit}` };
+  return {
+    state: 'measured',
+    value,
+    stat: stat[1]!,
+    sys: sys[1]!,
+    total: total[1]!,
+    unit,
+    text: `H0 = ${value} ± ${stat[1]} (stat) ± ${sys[1]} (sys) ${unit}`,
+  };
 }
 
 function param(r: Results, name: string, label: string): KeyValue | null {
   const p = r.parameters[name];
   if (!p) return null;
-  return { label, value: `${pm(p.value, p.fixed ? null : p.err)}${p.unit ? ` ${p.unit}` : ''}${p.fixed ? ' (fixed)' : ''}`, blinded: parameterBlinded(r, name) };
+  return {
+    label,
+    value: `${pm(p.value, p.fixed ? null : p.err)}${p.unit ? ` ${p.unit}` : ''}${p.fixed ? ' (fixed)' : ''}`,
+    blinded: parameterBlinded(r, name),
+  };
 }
 
 const kv = (label: string, value: string, blinded = false): KeyValue => ({ label, value, blinded });
@@ -153,7 +187,15 @@ function rejectedTable(r: Results, id: string, tables: readonly string[], dl: Pa
       marks: rows.map(() => 'rejected'),
       downloads: dl('rejected'),
       // Each object links to its row on its system's page (Hubble-flow supernovae have no system).
-      links: rows.map((x) => [x.system === null ? null : objectLink(r.release.id, x.system, x.id), x.system === null ? null : systemPagePath(r.release.id, x.system), null, null, null, null, null]),
+      links: rows.map((x) => [
+        x.system === null ? null : objectLink(r.release.id, x.system, x.id),
+        x.system === null ? null : systemPagePath(r.release.id, x.system),
+        null,
+        null,
+        null,
+        null,
+        null,
+      ]),
     },
   );
 }
@@ -184,8 +226,19 @@ function parallaxRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note'
           ['mu', 'μ (with zero point)', 'mag', true],
           ['d', 'Distance', null, true],
         ],
-        anchors.map((x) => [x.system, int(x.n_stars), pm(x.mean_parallax_mas, x.mean_parallax_err_mas), fixed(x.error_scale, 2), pm(x.mu, x.mu_err_stat), pm(x.mu, x.mu_err), distanceText(10 ** ((x.mu - 25) / 5))]),
-        { caption: 'Inverse-variance mean of the zero-point corrected parallaxes of each anchor, and the distance modulus that follows.', downloads: p.tableDownload('parallax_anchors') },
+        anchors.map((x) => [
+          x.system,
+          int(x.n_stars),
+          pm(x.mean_parallax_mas, x.mean_parallax_err_mas),
+          fixed(x.error_scale, 2),
+          pm(x.mu, x.mu_err_stat),
+          pm(x.mu, x.mu_err),
+          distanceText(10 ** ((x.mu - 25) / 5)),
+        ]),
+        {
+          caption: 'Inverse-variance mean of the zero-point corrected parallaxes of each anchor, and the distance modulus that follows.',
+          downloads: p.tableDownload('parallax_anchors'),
+        },
       ),
     );
   }
@@ -268,8 +321,20 @@ function mainSequenceRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'n
           ['bin', 'Binary fraction', null, true],
           ['d', 'Distance', null, true],
         ],
-        ms.targets.map((t) => [t.system, `${int(t.n_used)} of ${int(t.n_stars)}`, pm(t.mu, t.mu_err), pm(t.ebv, t.ebv_err), fixed(t.corr_mu_ebv, 2), fixed(t.feh, 2), percent(t.binary_fraction), distanceText(10 ** ((t.mu - 25) / 5))]),
-        { caption: 'Distance modulus and reddening of each target from sliding the anchors’ locus onto its stars.', downloads: p.tableDownload('main_sequence_targets') },
+        ms.targets.map((t) => [
+          t.system,
+          `${int(t.n_used)} of ${int(t.n_stars)}`,
+          pm(t.mu, t.mu_err),
+          pm(t.ebv, t.ebv_err),
+          fixed(t.corr_mu_ebv, 2),
+          fixed(t.feh, 2),
+          percent(t.binary_fraction),
+          distanceText(10 ** ((t.mu - 25) / 5)),
+        ]),
+        {
+          caption: 'Distance modulus and reddening of each target from sliding the anchors’ locus onto its stars.',
+          downloads: p.tableDownload('main_sequence_targets'),
+        },
       ),
     );
   }
@@ -293,7 +358,9 @@ function mainSequenceRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'n
     ],
     tables,
     inputs: inputsFor(r, ['main_sequence', 'systems']),
-    rowsUsed: [`${int(nAnchorStars)} anchor stars and ${int(nTargetStars)} target stars from ${fileOf(r, 'main_sequence')}; ${int(ms.stars.filter((s) => s.used).length)} used in the fits.`],
+    rowsUsed: [
+      `${int(nAnchorStars)} anchor stars and ${int(nTargetStars)} target stars from ${fileOf(r, 'main_sequence')}; ${int(ms.stars.filter((s) => s.used).length)} used in the fits.`,
+    ],
   };
 }
 
@@ -323,9 +390,20 @@ function cepheidRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note' 
         ],
         systems.map((s) => {
           const e = bySystem.get(s.id)!;
-          return [s.id, s.kind, `${int(e.n)} (${int(e.rej)})`, s.mu_prior === null ? '—' : pm(s.mu_prior, s.mu_prior_err), systemMu(s), distanceText(s.distance_mpc)];
+          return [
+            s.id,
+            s.kind,
+            `${int(e.n)} (${int(e.rej)})`,
+            s.mu_prior === null ? '—' : pm(s.mu_prior, s.mu_prior_err),
+            systemMu(s),
+            distanceText(s.distance_mpc),
+          ];
         }),
-        { caption: 'Anchors enter with their geometric or main-sequence distance as a prior; hosts get their distance from the fit.', downloads: p.tableDownload('systems'), links: systems.map((s) => [systemPagePath(r.release.id, s.id), null, null, null, null, null]) },
+        {
+          caption: 'Anchors enter with their geometric or main-sequence distance as a prior; hosts get their distance from the fit.',
+          downloads: p.tableDownload('systems'),
+          links: systems.map((s) => [systemPagePath(r.release.id, s.id), null, null, null, null, null]),
+        },
       ),
     );
   }
@@ -377,8 +455,22 @@ function supernovaRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note
           ['mu', 'Host μ', 'mag', true],
           ['abs', 'm − μ', 'mag', true],
         ],
-        cal.map((s) => [s.sn, s.system ?? '—', String(s.line), fixed(s.m_b, 3), fixed(s.x1, 2), fixed(s.c, 3), pm(s.m_corr, s.m_corr_err), fixed(s.mu, 3), fixed(s.m_corr - s.mu, 3)]),
-        { caption: 'Standardised peak magnitude m_B + α x1 − β c of each calibrator and its host’s Cepheid distance.', marks: cal.map((s): RowMark => (s.rejected ? 'rejected' : null)), downloads: p.tableDownload('sn_calibrators') },
+        cal.map((s) => [
+          s.sn,
+          s.system ?? '—',
+          String(s.line),
+          fixed(s.m_b, 3),
+          fixed(s.x1, 2),
+          fixed(s.c, 3),
+          pm(s.m_corr, s.m_corr_err),
+          fixed(s.mu, 3),
+          fixed(s.m_corr - s.mu, 3),
+        ]),
+        {
+          caption: 'Standardised peak magnitude m_B + α x1 − β c of each calibrator and its host’s Cepheid distance.',
+          marks: cal.map((s): RowMark => (s.rejected ? 'rejected' : null)),
+          downloads: p.tableDownload('sn_calibrators'),
+        },
       ),
     );
   }
@@ -421,7 +513,9 @@ function hubbleFlowRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'not
     inputs: inputsFor(r, ['sn_hubble_flow']),
     rowsUsed:
       flow.length > 0
-        ? [`${int(flow.length)} rows of ${fileOf(r, 'sn_hubble_flow')}: ${int(inFit.length)} in the fit, ${int(outside.length)} outside the redshift range, ${int(flow.filter((s) => s.rejected).length)} rejected.`]
+        ? [
+            `${int(flow.length)} rows of ${fileOf(r, 'sn_hubble_flow')}: ${int(inFit.length)} in the fit, ${int(outside.length)} outside the redshift range, ${int(flow.filter((s) => s.rejected).length)} rejected.`,
+          ]
         : [],
   };
 }
@@ -594,7 +688,11 @@ function budget(r: Results, p: PageInputs): ReleaseData['budget'] {
       },
     ),
     figures: BUDGET_FIGURES.filter((id) => p.figures[id]),
-    keyValues: [kv('Statistical', `± ${h.stat} ${h.unit}`, r.blinded), kv('Systematic', `± ${h.sys} ${h.unit}`, r.blinded), kv('Total', `± ${h.total} ${h.unit}`, r.blinded)],
+    keyValues: [
+      kv('Statistical', `± ${h.stat} ${h.unit}`, r.blinded),
+      kv('Systematic', `± ${h.sys} ${h.unit}`, r.blinded),
+      kv('Total', `± ${h.total} ${h.unit}`, r.blinded),
+    ],
   };
 }
 
@@ -663,7 +761,10 @@ function provenance(r: Results, p: PageInputs): ReleaseData['provenance'] {
         const by = !set.has(k) ? 'default' : value === dflt ? 'release.yaml (same as the default)' : 'release.yaml (differs from the default)';
         return [k, value, dflt, by];
       }),
-      { caption: 'Keys the release sets in release.yaml, and the defaults used for the rest (marked “default”).', marks: keys.map((k): RowMark => (set.has(k) ? null : 'default')) },
+      {
+        caption: 'Keys the release sets in release.yaml, and the defaults used for the rest (marked “default”).',
+        marks: keys.map((k): RowMark => (set.has(k) ? null : 'default')),
+      },
     ),
     codeVersion: r.provenance.code_version,
     analysisHash: r.provenance.analysis_hash,
@@ -719,4 +820,3 @@ export function releaseData(p: PageInputs): ReleaseData {
     ...(p.systems ? { systems: p.systems } : {}),
   };
 }
-

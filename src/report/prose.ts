@@ -72,8 +72,31 @@ function proseSchema(math: boolean): Schema {
     required: {},
     strip: ['script', 'style'],
     tagNames: [
-      'p', 'br', 'hr', 'em', 'strong', 'del', 'code', 'pre', 'blockquote', 'ul', 'ol', 'li', 'a', 'sup',
-      'h3', 'h4', 'h5', 'h6', 'table', 'thead', 'tbody', 'tr', 'th', 'td', 'section',
+      'p',
+      'br',
+      'hr',
+      'em',
+      'strong',
+      'del',
+      'code',
+      'pre',
+      'blockquote',
+      'ul',
+      'ol',
+      'li',
+      'a',
+      'sup',
+      'h3',
+      'h4',
+      'h5',
+      'h6',
+      'table',
+      'thead',
+      'tbody',
+      'tr',
+      'th',
+      'td',
+      'section',
       ...(math ? ['span'] : []),
     ],
   };
@@ -138,7 +161,12 @@ export function proseHtml(tree: Root, prefix: string, options: { math: boolean }
     footnoteLabelProperties: {},
     // A formula of the summary becomes a placeholder holding its TeX as text (the node type is mdast-util-math's).
     handlers: {
-      inlineMath: (_state: unknown, node: InlineMath): Element => ({ type: 'element', tagName: 'span', properties: { className: [MATH_CLASS] }, children: [{ type: 'text', value: node.value }] }),
+      inlineMath: (_state: unknown, node: InlineMath): Element => ({
+        type: 'element',
+        tagName: 'span',
+        properties: { className: [MATH_CLASS] },
+        children: [{ type: 'text', value: node.value }],
+      }),
     } as unknown as Handlers,
   }) as HastRoot;
   const clean = sanitize(hast, proseSchema(options.math)) as HastRoot;
@@ -201,7 +229,9 @@ export function summaryTree(r: Results): Root {
           strong('BLINDED.'),
           t(' The Hubble-flow magnitudes of this release carry a hidden offset, which scales '),
           m('H_0'),
-          t(' and its errors by one unknown factor, so the number below is not the measurement; only relative errors and ratios between variants can be read: '),
+          t(
+            ' and its errors by one unknown factor, so the number below is not the measurement; only relative errors and ratios between variants can be read: ',
+          ),
           m(String.raw`H_0^{\mathrm{blinded}} = ${tex(v.value)} ${pmStat} ${pmSys}${H0_UNIT}`),
           t(`, a relative uncertainty of ${percent} %.`),
         ],
@@ -229,7 +259,9 @@ export function summaryTree(r: Results): Root {
   children.push({
     type: 'paragraph',
     children: [
-      t(`It rests on ${parts.slice(0, -1).join(', ')} and ${parts[parts.length - 1]}, after rejecting ${count(fit.n_rejected, 'row', 'rows')}. The global fit has `),
+      t(
+        `It rests on ${parts.slice(0, -1).join(', ')} and ${parts[parts.length - 1]}, after rejecting ${count(fit.n_rejected, 'row', 'rows')}. The global fit has `,
+      ),
       m(String.raw`\chi^2 = ${tex(fit.chi2.toFixed(1))}`),
       t(` for ${fit.dof} degrees of freedom (p = ${fit.p_value.toFixed(2)})${fit.converged ? '' : ' and did not converge'}.`),
     ],

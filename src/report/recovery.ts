@@ -22,14 +22,19 @@ function statText(s: Statistic, percent: boolean): string {
   return percent ? `${fixed(100 * s.value, 1)} ± ${fixed(100 * s.se, 1)} %` : `${fixed(s.value, 3)} ± ${fixed(s.se, 3)}`;
 }
 
-const range = (b: readonly [number, number], percent: boolean) => (percent ? `${fixed(100 * b[0], 1)}–${fixed(100 * b[1], 1)} %` : `${fixed(b[0], 2)} to ${fixed(b[1], 2)}`);
+const range = (b: readonly [number, number], percent: boolean) =>
+  percent ? `${fixed(100 * b[0], 1)}–${fixed(100 * b[1], 1)} %` : `${fixed(b[0], 2)} to ${fixed(b[1], 2)}`;
 
 export function recoveryView(s: RecoverySummary, r: Results, figures: string[]): RecoveryView {
   const b = s.bounds;
   const matches = s.release.inputs_hash === r.provenance.inputs_hash && s.release.id === r.release.id;
   const keyValues: KeyValue[] = [
     { label: 'Verdict', value: s.verdict.toUpperCase(), blinded: false },
-    { label: 'Simulated releases', value: `${int(s.seeds.count)} (seeds ${s.seeds.first}–${s.seeds.first + s.seeds.count - 1}); ${int(s.seeds.failed)} refused by the ladder`, blinded: false },
+    {
+      label: 'Simulated releases',
+      value: `${int(s.seeds.count)} (seeds ${s.seeds.first}–${s.seeds.first + s.seeds.count - 1}); ${int(s.seeds.failed)} refused by the ladder`,
+      blinded: false,
+    },
     { label: 'Truth', value: s.truth, blinded: false },
     { label: 'Code version', value: s.code_version, blinded: false },
   ];

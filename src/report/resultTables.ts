@@ -23,7 +23,15 @@ function parametersTable(r: Results): ResultTable {
   return {
     name: 'parameters',
     title: 'Fitted parameters',
-    columns: [col('name', 'string'), col('value', 'float64'), col('err', 'float64'), col('unit', 'string'), col('fixed', 'bool'), col('blinded', 'bool'), col('description', 'string')],
+    columns: [
+      col('name', 'string'),
+      col('value', 'float64'),
+      col('err', 'float64'),
+      col('unit', 'string'),
+      col('fixed', 'bool'),
+      col('blinded', 'bool'),
+      col('description', 'string'),
+    ],
     rows: Object.entries(r.parameters).map(([name, p]) => ({
       name,
       value: p.value,
@@ -168,8 +176,26 @@ function mainSequenceStarsTable(r: Results): ResultTable {
   return {
     name: 'main_sequence_stars',
     title: 'Main-sequence stars',
-    columns: [col('star', 'string'), col('system', 'string'), col('line', 'int64'), col('role', 'string'), col('color0', 'float64', 'mag'), col('abs_mag', 'float64', 'mag'), col('p_binary', 'float64'), col('used', 'bool')],
-    rows: r.rungs.main_sequence.stars.map((s) => ({ star: s.star, system: s.system, line: s.line, role: s.role, color0: s.color0, abs_mag: s.abs_mag, p_binary: s.p_binary, used: s.used })),
+    columns: [
+      col('star', 'string'),
+      col('system', 'string'),
+      col('line', 'int64'),
+      col('role', 'string'),
+      col('color0', 'float64', 'mag'),
+      col('abs_mag', 'float64', 'mag'),
+      col('p_binary', 'float64'),
+      col('used', 'bool'),
+    ],
+    rows: r.rungs.main_sequence.stars.map((s) => ({
+      star: s.star,
+      system: s.system,
+      line: s.line,
+      role: s.role,
+      color0: s.color0,
+      abs_mag: s.abs_mag,
+      p_binary: s.p_binary,
+      used: s.used,
+    })),
   };
 }
 
@@ -234,7 +260,14 @@ function variantsTable(r: Results): ResultTable {
   return {
     name: 'variants',
     title: 'Systematic variants',
-    columns: [col('name', 'string'), col('overrides', 'string', '', 'JSON object of the analysis keys it changes'), col('h0', 'float64', KMSMPC), col('h0_stat', 'float64', KMSMPC), col('delta_h0', 'float64', KMSMPC), col('error', 'string')],
+    columns: [
+      col('name', 'string'),
+      col('overrides', 'string', '', 'JSON object of the analysis keys it changes'),
+      col('h0', 'float64', KMSMPC),
+      col('h0_stat', 'float64', KMSMPC),
+      col('delta_h0', 'float64', KMSMPC),
+      col('error', 'string'),
+    ],
     rows: r.variants.map((v) => ({ name: v.name, overrides: JSON.stringify(v.overrides), h0: v.h0, h0_stat: v.h0_stat, delta_h0: v.delta_h0, error: v.error })),
   };
 }
@@ -276,7 +309,14 @@ function hostScatterTable(r: Results): ResultTable {
   return {
     name: 'host_scatter',
     title: 'Cepheid residual scatter by host (Bartlett test)',
-    columns: [col('system', 'string'), col('n', 'int64'), col('dof', 'float64'), col('chi2', 'float64'), col('variance_ratio', 'float64'), col('p_value', 'float64')],
+    columns: [
+      col('system', 'string'),
+      col('n', 'int64'),
+      col('dof', 'float64'),
+      col('chi2', 'float64'),
+      col('variance_ratio', 'float64'),
+      col('p_value', 'float64'),
+    ],
     rows: (r.fit.quality?.groups ?? []).map((g) => ({ ...g })),
   };
 }
@@ -286,7 +326,15 @@ function rejectedTable(r: Results): ResultTable {
   return {
     name: 'rejected',
     title: 'Rejected rows',
-    columns: [col('table', 'string'), col('id', 'string'), col('system', 'string'), col('line', 'int64'), col('residual_sigma', 'float64'), col('treatment', 'string'), col('membership', 'float64')],
+    columns: [
+      col('table', 'string'),
+      col('id', 'string'),
+      col('system', 'string'),
+      col('line', 'int64'),
+      col('residual_sigma', 'float64'),
+      col('treatment', 'string'),
+      col('membership', 'float64'),
+    ],
     rows: r.rejected.map((x) => ({ ...x })),
   };
 }

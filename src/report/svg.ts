@@ -20,8 +20,26 @@
 import { FONT_FAMILY_ATTRIBUTE } from './fonts.ts';
 
 const GEOMETRY_ATTRIBUTES = new Set([
-  'd', 'transform', 'x', 'y', 'x1', 'x2', 'y1', 'y2', 'cx', 'cy', 'r', 'rx', 'ry',
-  'width', 'height', 'points', 'dx', 'dy', 'stroke-width', 'viewBox',
+  'd',
+  'transform',
+  'x',
+  'y',
+  'x1',
+  'x2',
+  'y1',
+  'y2',
+  'cx',
+  'cy',
+  'r',
+  'rx',
+  'ry',
+  'width',
+  'height',
+  'points',
+  'dx',
+  'dy',
+  'stroke-width',
+  'viewBox',
 ]);
 
 const DECIMAL_NUMBER = /-?\d*\.\d+(?:e[-+]?\d+)?/gi;

@@ -53,7 +53,13 @@ const METHOD_WORDS: Record<SystemResult['method'], string> = {
   none: 'no rung: the ladder gives it no distance',
 };
 /** Method notes whose cautions apply, by role. */
-const ROLE_NOTES: Record<string, string> = { anchor: 'parallax', field_star: 'parallax', main_sequence_target: 'main-sequence', cepheid_system: 'cepheids', sn_host: 'supernovae' };
+const ROLE_NOTES: Record<string, string> = {
+  anchor: 'parallax',
+  field_star: 'parallax',
+  main_sequence_target: 'main-sequence',
+  cepheid_system: 'cepheids',
+  sn_host: 'supernovae',
+};
 
 const signed = signedText;
 
@@ -144,7 +150,11 @@ function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
         ['oh', '[O/H]', 'dex', true],
         ['res', 'Residual', 'mag', true],
       ],
-      o.ceph.map((c) => ({ object: c.star, cells: [c.star, files.cepheids, String(c.line), fixed(c.log_period, 3), pm(c.w, c.w_err), fixed(c.oh, 2), fixed(c.residual, 3)], mark: c.rejected ? 'rejected' : null })),
+      o.ceph.map((c) => ({
+        object: c.star,
+        cells: [c.star, files.cepheids, String(c.line), fixed(c.log_period, 3), pm(c.w, c.w_err), fixed(c.oh, 2), fixed(c.residual, 3)],
+        mark: c.rejected ? 'rejected' : null,
+      })),
       taken,
     ),
     objectTable(
@@ -161,7 +171,11 @@ function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
         ['mcorr', 'Standardised m', 'mag', true],
         ['res', 'Residual', 'mag', true],
       ],
-      o.sn.map((x) => ({ object: x.sn, cells: [x.sn, files.supernovae, String(x.line), fixed(x.m_b, 3), fixed(x.x1, 2), fixed(x.c, 3), pm(x.m_corr, x.m_corr_err), fixed(x.residual, 3)], mark: x.rejected ? 'rejected' : null })),
+      o.sn.map((x) => ({
+        object: x.sn,
+        cells: [x.sn, files.supernovae, String(x.line), fixed(x.m_b, 3), fixed(x.x1, 2), fixed(x.c, 3), pm(x.m_corr, x.m_corr_err), fixed(x.residual, 3)],
+        mark: x.rejected ? 'rejected' : null,
+      })),
       taken,
     ),
     objectTable(
@@ -178,7 +192,14 @@ function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
       ],
       o.plx.map((x) => ({
         object: x.star,
-        cells: [x.star, files.parallax, String(x.line), pm(x.parallax_mas, x.parallax_err_mas), fixed(x.parallax_corr_mas, 4), `${sig(x.dist_q05_pc, 3)} / ${sig(x.dist_q50_pc, 3)} / ${sig(x.dist_q95_pc, 3)}`],
+        cells: [
+          x.star,
+          files.parallax,
+          String(x.line),
+          pm(x.parallax_mas, x.parallax_err_mas),
+          fixed(x.parallax_corr_mas, 4),
+          `${sig(x.dist_q05_pc, 3)} / ${sig(x.dist_q50_pc, 3)} / ${sig(x.dist_q95_pc, 3)}`,
+        ],
         mark: x.low_significance || x.bimodal ? 'flagged' : null,
       })),
       taken,
@@ -196,7 +217,11 @@ function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
         ['pbin', 'P(binary)', null, true],
         ['used', 'Used', null, false],
       ],
-      o.ms.map((x) => ({ object: x.star, cells: [x.star, files.mainSequence, String(x.line), fixed(x.color0, 3), fixed(x.abs_mag, 3), fixed(x.p_binary, 2), x.used ? 'yes' : 'no'], mark: null })),
+      o.ms.map((x) => ({
+        object: x.star,
+        cells: [x.star, files.mainSequence, String(x.line), fixed(x.color0, 3), fixed(x.abs_mag, 3), fixed(x.p_binary, 2), x.used ? 'yes' : 'no'],
+        mark: null,
+      })),
       taken,
     ),
   ].filter((t): t is TableView => t !== null);
@@ -235,7 +260,9 @@ function leaveOneOutPart(p: SystemPagesInput, system: string, e: LeaveOneOutEntr
   if (!blinded && e.h0 !== null) keyValues.push(kv('H0 without this system', `${pm(e.h0, e.h0_stat)} km/s/Mpc`));
   keyValues.push(kv('Shift of H0', shift, blinded));
   let text = `H0 refitted without ${system} (every row naming it removed, the whole ladder redone) moves by ${shift}.`;
-  if (e.variance_reversed) text += ' The refit without it has a slightly smaller variance (its intrinsic scatter was refitted), so the σ of the shift is the square root of the absolute difference of the variances.';
+  if (e.variance_reversed)
+    text +=
+      ' The refit without it has a slightly smaller variance (its intrinsic scatter was refitted), so the σ of the shift is the square root of the absolute difference of the variances.';
   return { text, keyValues };
 }
 
@@ -268,9 +295,19 @@ function farthest<T extends { residual: number; rejected: boolean }>(xs: readonl
 function strongestPulls(o: SystemObjects, files: ObjectFiles): SystemPageView['pulls'] {
   const pulls: SystemPageView['pulls'] = [];
   const c = farthest(o.ceph);
-  if (c) pulls.push({ id: c.star, anchor: objectAnchor(c.star), text: `its Cepheid farthest from the period–luminosity relation (residual ${signed(c.residual, 3)} mag, line ${c.line} of ${files.cepheids})` });
+  if (c)
+    pulls.push({
+      id: c.star,
+      anchor: objectAnchor(c.star),
+      text: `its Cepheid farthest from the period–luminosity relation (residual ${signed(c.residual, 3)} mag, line ${c.line} of ${files.cepheids})`,
+    });
   const x = farthest(o.sn);
-  if (x) pulls.push({ id: x.sn, anchor: objectAnchor(x.sn), text: `its supernova farthest from the fitted M_B (residual ${signed(x.residual, 3)} mag, line ${x.line} of ${files.supernovae})` });
+  if (x)
+    pulls.push({
+      id: x.sn,
+      anchor: objectAnchor(x.sn),
+      text: `its supernova farthest from the fitted M_B (residual ${signed(x.residual, 3)} mag, line ${x.line} of ${files.supernovae})`,
+    });
   return pulls;
 }
 
@@ -284,10 +321,19 @@ export function systemPages(p: SystemPagesInput): SystemPageView[] {
     true,
   );
   const loo = new Map((p.loo?.entries ?? []).map((e) => [e.system, e]));
-  const files: ObjectFiles = { cepheids: fileOf(r, 'cepheids'), supernovae: fileOf(r, 'sn_calibrators'), parallax: fileOf(r, 'parallax'), mainSequence: fileOf(r, 'main_sequence') };
+  const files: ObjectFiles = {
+    cepheids: fileOf(r, 'cepheids'),
+    supernovae: fileOf(r, 'sn_calibrators'),
+    parallax: fileOf(r, 'parallax'),
+    mainSequence: fileOf(r, 'main_sequence'),
+  };
   return r.systems.map((s): SystemPageView => {
     const o = objectsOf(r, s.id);
-    assertUnique([...o.ceph.map((c) => c.star), ...o.sn.map((x) => x.sn), ...o.plx.map((x) => x.star), ...o.ms.map((x) => x.star)], objectAnchor, `objects of system ${JSON.stringify(s.id)}:`);
+    assertUnique(
+      [...o.ceph.map((c) => c.star), ...o.sn.map((x) => x.sn), ...o.plx.map((x) => x.star), ...o.ms.map((x) => x.star)],
+      objectAnchor,
+      `objects of system ${JSON.stringify(s.id)}:`,
+    );
     const notes = [...new Set(s.roles.map((x) => ROLE_NOTES[x]).filter((x): x is string => x !== undefined))];
     return {
       release: rel,
@@ -339,7 +385,8 @@ export function systemsIndex(p: SystemPagesInput, looFigure: string | null): Sys
           ],
           rows,
           {
-            caption: 'Every system of the release. The last column is the change of H0 when the system is left out and the whole ladder refitted, with its σ (the σ of the difference of the two fits, which share all other data).',
+            caption:
+              'Every system of the release. The last column is the change of H0 when the system is left out and the whole ladder refitted, with its σ (the σ of the difference of the two fits, which share all other data).',
             links: r.systems.map((s) => [systemPagePath(r.release.id, s.id), null, null, null, null, null, null]),
             marks: r.systems.map((s): RowMark => (r.blinded && loo.has(s.id) ? 'blinded' : null)),
             sortable: true,

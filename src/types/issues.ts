@@ -21,9 +21,7 @@ export interface InputIssue {
 export const MAX_ISSUES_PER_FILE = 50;
 
 export function formatIssue(issue: InputIssue): string {
-  const where = [issue.file, issue.line !== undefined ? String(issue.line) : undefined]
-    .filter((x) => x !== undefined)
-    .join(':');
+  const where = [issue.file, issue.line !== undefined ? String(issue.line) : undefined].filter((x) => x !== undefined).join(':');
   const col = issue.column !== undefined ? ` column "${issue.column}":` : '';
   const exp = issue.expected !== undefined ? ` expected ${issue.expected}` : '';
   const fnd = issue.found !== undefined ? `, found ${issue.found}` : '';

@@ -86,22 +86,9 @@ export interface SnHubbleFlowRow extends SupernovaLightCurve {
   zErr: number;
 }
 
-export type TableName =
-  | 'systems'
-  | 'parallax'
-  | 'main_sequence'
-  | 'cepheids'
-  | 'sn_calibrators'
-  | 'sn_hubble_flow';
+export type TableName = 'systems' | 'parallax' | 'main_sequence' | 'cepheids' | 'sn_calibrators' | 'sn_hubble_flow';
 
-export const TABLE_NAMES: readonly TableName[] = [
-  'systems',
-  'parallax',
-  'main_sequence',
-  'cepheids',
-  'sn_calibrators',
-  'sn_hubble_flow',
-];
+export const TABLE_NAMES: readonly TableName[] = ['systems', 'parallax', 'main_sequence', 'cepheids', 'sn_calibrators', 'sn_hubble_flow'];
 
 /** One input file as read: what the provenance section of the report lists. */
 export interface InputFile {

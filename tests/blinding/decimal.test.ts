@@ -13,7 +13,21 @@ function blindText(text: string, units: number): string {
   return formatDecimal(rescale(addDecimal(d, offsetDecimal(-units)), Math.max(d.scale, 4)));
 }
 
-const row = (mB: number): SnHubbleFlowRow => ({ sn: 'x', mB, mBErr: 0.05, x1: 0, x1Err: 0.1, c: 0, cErr: 0.03, covMbX1: 0, covMbC: 0, covX1C: 0, z: 0.05, zErr: 0.001, line: 1 });
+const row = (mB: number): SnHubbleFlowRow => ({
+  sn: 'x',
+  mB,
+  mBErr: 0.05,
+  x1: 0,
+  x1Err: 0.1,
+  c: 0,
+  cErr: 0.03,
+  covMbX1: 0,
+  covMbC: 0,
+  covX1C: 0,
+  z: 0.05,
+  zErr: 0.001,
+  line: 1,
+});
 
 describe('decimal texts', () => {
   it('parses plain and exponent forms to exact decimals', () => {

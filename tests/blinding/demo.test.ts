@@ -26,7 +26,22 @@ const DEMO4 = join(RELEASES, '2026.4');
 const tmp = tempDir('blind-demo');
 
 /** Integer fields that count or locate things (a line number 71 is not an H0 of 71). */
-const COUNT_KEYS = new Set(['line', 'dof', 'n_data', 'n_parameters', 'n_rejected', 'iterations', 'n_stars', 'n_used', 'degree', 'rows', 'parallax', 'main_sequence', 'cepheids', 'sn_calibrators']);
+const COUNT_KEYS = new Set([
+  'line',
+  'dof',
+  'n_data',
+  'n_parameters',
+  'n_rejected',
+  'iterations',
+  'n_stars',
+  'n_used',
+  'degree',
+  'rows',
+  'parallax',
+  'main_sequence',
+  'cepheids',
+  'sn_calibrators',
+]);
 
 function numberLeaves(v: unknown, path: string[] = []): { path: string[]; value: number }[] {
   if (typeof v === 'number') return [{ path, value: v }];
@@ -89,7 +104,7 @@ describe('the committed blinded demo release 2026.4', () => {
     for (const [name, text] of Object.entries(files)) expect(readFileSync(join(DEMO4, name), 'utf8'), name).toBe(text);
   });
 
-  it('is blinded, and its record is the demo key\'s', () => {
+  it("is blinded, and its record is the demo key's", () => {
     const record = readBlindingRecord(DEMO4)!;
     expect(record.unblinded).toBeNull();
     expect(record.key_check).toBe(keyCheck(Buffer.from(DEMO_KEY)));
@@ -99,7 +114,13 @@ describe('the committed blinded demo release 2026.4', () => {
   });
 
   it('shares no Hubble-flow supernova with an unblinded release (a shared one would give the offset away)', () => {
-    const ids = (dir: string) => new Set(readFileSync(join(dir, 'sn_hubble_flow.ecsv'), 'utf8').split('\n').filter((l) => /^hf-/.test(l)).map((l) => l.split(',')[0]));
+    const ids = (dir: string) =>
+      new Set(
+        readFileSync(join(dir, 'sn_hubble_flow.ecsv'), 'utf8')
+          .split('\n')
+          .filter((l) => /^hf-/.test(l))
+          .map((l) => l.split(',')[0]),
+      );
     const mine = ids(DEMO4);
     expect(mine.size).toBe(150);
     for (const other of readdirSync(RELEASES).filter((r) => r !== '2026.4')) {
@@ -124,7 +145,11 @@ describe('its true H0', () => {
   it('unblinding a copy with the demo key gives the never-blinded results exactly', () => {
     const strip = ({ provenance: _p, unblinding: _u, blinding: _b, ...rest }: Results) => rest;
     expect(unblinded.blinded).toBe(false);
-    expect(unblinded.unblinding).toEqual({ by: 'Demo Reader', date: '2027-01-15', offset_mag: readBlindingRecord(join(tmp, 'copy', '2026.4'))!.unblinded!.offset_mag });
+    expect(unblinded.unblinding).toEqual({
+      by: 'Demo Reader',
+      date: '2027-01-15',
+      offset_mag: readBlindingRecord(join(tmp, 'copy', '2026.4'))!.unblinded!.offset_mag,
+    });
     expect(strip(unblinded)).toEqual(strip(neverBlinded));
   });
 
@@ -157,7 +182,10 @@ describe('its true H0', () => {
   it('the same searches do find the true H0 where it is shown', () => {
     const trueH0 = neverBlinded.h0!.value;
     for (let p = 0; p <= 4; p++) expect(h0Values(unblinded).some((v) => v.toFixed(p) === trueH0.toFixed(p))).toBe(true);
-    const leaked: Results = { ...blinded, checks: [...blinded.checks, { id: 'x', title: 'x', passed: true, severity: 'info', detail: `H0 = ${trueH0.toFixed(2)} km/s/Mpc` }] };
+    const leaked: Results = {
+      ...blinded,
+      checks: [...blinded.checks, { id: 'x', title: 'x', passed: true, severity: 'info', detail: `H0 = ${trueH0.toFixed(2)} km/s/Mpc` }],
+    };
     expect(findH0(leaked, trueH0, 2)).toEqual([`text: H0 = ${trueH0.toFixed(2)} km/s/Mpc`, 'results.json text']);
     expect(findH0({ ...blinded, h0: { ...blinded.h0!, value: truthH0 } }, truthH0, 1)).toContain('h0.value');
   });

@@ -75,7 +75,9 @@ beforeAll(async () => {
 describe('blinding a release', () => {
   it('exits 0, marks release.yaml and writes blinding.json with a commitment', () => {
     expect(blindOutput.code, blindOutput.err).toBe(0);
-    expect(readFileSync(join(blinded, 'release.yaml'), 'utf8')).toBe(readFileSync(join(plain, 'release.yaml'), 'utf8').replace('blinded: false', 'blinded: true'));
+    expect(readFileSync(join(blinded, 'release.yaml'), 'utf8')).toBe(
+      readFileSync(join(plain, 'release.yaml'), 'utf8').replace('blinded: false', 'blinded: true'),
+    );
     const record = readBlindingRecord(blinded)!;
     expect(record.blinding_id).toBe(ID);
     expect(record.rows).toBe(125);
@@ -132,7 +134,9 @@ describe('blinding a release', () => {
       if (s.mu === null) expect(t.mu).toBeNull();
       else expect(Math.abs(t.mu! - s.mu), s.id).toBeLessThan(MAG_1E9);
     });
-    expect(rBlind.rejected.map(({ residual_sigma: _, membership: __, ...where }) => where)).toEqual(rPlain.rejected.map(({ residual_sigma: _, membership: __, ...where }) => where));
+    expect(rBlind.rejected.map(({ residual_sigma: _, membership: __, ...where }) => where)).toEqual(
+      rPlain.rejected.map(({ residual_sigma: _, membership: __, ...where }) => where),
+    );
     rPlain.rejected.forEach((x, i) => expect(relErr(rBlind.rejected[i]!.residual_sigma, x.residual_sigma)).toBeLessThan(FIT_REPEAT_REL));
     // a probable blend's core membership is a fitted number too: the same to the fit's repeatability
     rPlain.rejected.forEach((x, i) => expect(Math.abs((rBlind.rejected[i]!.membership ?? 0) - (x.membership ?? 0))).toBeLessThan(FIT_REPEAT_REL));
@@ -221,7 +225,10 @@ describe('unblinding', () => {
     const edited = copy(unblinded, 'edited-offset');
     const path = join(edited, 'blinding.json');
     const record = JSON.parse(readFileSync(path, 'utf8')) as BlindingRecord;
-    writeFileSync(path, JSON.stringify({ ...record, unblinded: { ...record.unblinded!, offset_mag: offsetMag(units + (units > 0 ? -1 : 1)) } }, null, 2) + '\n');
+    writeFileSync(
+      path,
+      JSON.stringify({ ...record, unblinded: { ...record.unblinded!, offset_mag: offsetMag(units + (units > 0 ? -1 : 1)) } }, null, 2) + '\n',
+    );
     await expect(calibrateReleaseDir(edited)).rejects.toThrow(InputError);
     await expect(calibrateReleaseDir(edited)).rejects.toThrow(/do not match the commitment/);
 

@@ -3,16 +3,7 @@
 // library, implementing RFC 2104 and FIPS 180-4) of the derivation written in blinding.json.
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import {
-  commitment,
-  deriveOffsetUnits,
-  deriveSalt,
-  h0Factor,
-  keyCheck,
-  OFFSET_CANDIDATES,
-  offsetMag,
-  offsetText,
-} from '../../src/blinding/scheme.ts';
+import { commitment, deriveOffsetUnits, deriveSalt, h0Factor, keyCheck, OFFSET_CANDIDATES, offsetMag, offsetText } from '../../src/blinding/scheme.ts';
 import { OTHER_KEY, TEST_KEY } from './helpers.ts';
 
 const key = Buffer.from(TEST_KEY);

@@ -26,37 +26,57 @@ afterAll(async () => {
 
 describe('report in Chromium', () => {
   for (const id of FIXTURE_IDS) {
-    it(`release ${id} overview loads cleanly and passes axe`, async () => {
-      expectClean(await site.visit(`releases/${id}/`, `overview-${id}`));
-    }, PAGE_TIMEOUT_MS);
+    it(
+      `release ${id} overview loads cleanly and passes axe`,
+      async () => {
+        expectClean(await site.visit(`releases/${id}/`, `overview-${id}`));
+      },
+      PAGE_TIMEOUT_MS,
+    );
   }
 
-  it('a rung page (Cepheids of the dense release) loads cleanly and passes axe', async () => {
-    expectClean(await site.visit('releases/2026.1/cepheids/', 'rung-2026.1-cepheids'));
-  }, PAGE_TIMEOUT_MS);
+  it(
+    'a rung page (Cepheids of the dense release) loads cleanly and passes axe',
+    async () => {
+      expectClean(await site.visit('releases/2026.1/cepheids/', 'rung-2026.1-cepheids'));
+    },
+    PAGE_TIMEOUT_MS,
+  );
 
-  it('a figure page and the home page load cleanly and pass axe', async () => {
-    expectClean(await site.visit('releases/2026.2/figures/variants/', 'figure-2026.2-variants'));
-    expectClean(await site.visit('', 'home'));
-  }, PAGE_TIMEOUT_MS);
+  it(
+    'a figure page and the home page load cleanly and pass axe',
+    async () => {
+      expectClean(await site.visit('releases/2026.2/figures/variants/', 'figure-2026.2-variants'));
+      expectClean(await site.visit('', 'home'));
+    },
+    PAGE_TIMEOUT_MS,
+  );
 
-  it('fits a phone screen without sideways scrolling of the page', async () => {
-    const v = await site.visit('releases/2026.1/', 'overview-2026.1-phone', PHONE);
-    expectClean(v);
-    expect(v.overflowPx).toBeLessThanOrEqual(0);
-  }, PAGE_TIMEOUT_MS);
+  it(
+    'fits a phone screen without sideways scrolling of the page',
+    async () => {
+      const v = await site.visit('releases/2026.1/', 'overview-2026.1-phone', PHONE);
+      expectClean(v);
+      expect(v.overflowPx).toBeLessThanOrEqual(0);
+    },
+    PAGE_TIMEOUT_MS,
+  );
 
-  it('prints a rung page without the navigation', async () => {
-    const context = await site.browser.newContext({ viewport: LAPTOP });
-    const page = await context.newPage();
-    await page.goto(`${site.server.url}releases/2026.1/parallax/`);
-    await page.emulateMedia({ media: 'print' });
-    expect(await page.locator('.release-nav').isVisible()).toBe(false);
-    expect(await page.locator('.notice').isVisible()).toBe(true);
-    expect(await page.locator('aside.cautions').isVisible()).toBe(true);
-    await page.screenshot({ path: join(ARTIFACTS, 'print-2026.1-parallax.png'), fullPage: true });
-    const pdf = await page.pdf({ format: 'A4' });
-    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
-    await context.close();
-  }, PAGE_TIMEOUT_MS);
+  it(
+    'prints a rung page without the navigation',
+    async () => {
+      const context = await site.browser.newContext({ viewport: LAPTOP });
+      const page = await context.newPage();
+      await page.goto(`${site.server.url}releases/2026.1/parallax/`);
+      await page.emulateMedia({ media: 'print' });
+      expect(await page.locator('.release-nav').isVisible()).toBe(false);
+      expect(await page.locator('.notice').isVisible()).toBe(true);
+      expect(await page.locator('aside.cautions').isVisible()).toBe(true);
+      await page.screenshot({ path: join(ARTIFACTS, 'print-2026.1-parallax.png'), fullPage: true });
+      const pdf = await page.pdf({ format: 'A4' });
+      expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+      await context.close();
+    },
+    PAGE_TIMEOUT_MS,
+  );
 });

@@ -78,7 +78,10 @@ const FORBIDDEN = new Set([
 
 /** Words split at every character that is not an ASCII letter or digit, lower case, joined by one space. */
 function words(text: string): string[] {
-  return text.toLowerCase().split(/[^a-z0-9]+/).filter((w) => w !== '');
+  return text
+    .toLowerCase()
+    .split(/[^a-z0-9]+/)
+    .filter((w) => w !== '');
 }
 
 /** The text with compatibility forms decomposed and diacritics dropped ("É" -> "e", fullwidth letters -> ASCII). */
@@ -90,7 +93,10 @@ export function normaliseName(name: string): string {
   return words(folded(name)).join(' ');
 }
 
-const digestOf = (normalised: string): string => createHash('sha256').update(SALT + normalised).digest('hex');
+const digestOf = (normalised: string): string =>
+  createHash('sha256')
+    .update(SALT + normalised)
+    .digest('hex');
 
 /** Runs of 1..MAX_WORDS words of the text (as written and with diacritics dropped) whose digest is forbidden, as found. */
 export function realNamesIn(text: string): string[] {
@@ -167,7 +173,9 @@ describe('invented names [edge]', () => {
   });
 
   it('no file of the repository holds one (this test file included: the list is of digests)', () => {
-    const files = execFileSync('git', ['ls-files', '--cached', '--others', '--exclude-standard'], { cwd: ROOT, encoding: 'utf8' }).split('\n').filter((f) => f !== '');
+    const files = execFileSync('git', ['ls-files', '--cached', '--others', '--exclude-standard'], { cwd: ROOT, encoding: 'utf8' })
+      .split('\n')
+      .filter((f) => f !== '');
     expect(files.length).toBeGreaterThan(200);
     expect(files).toContain('tests/demo/names.test.ts');
     for (const f of files) {

@@ -9,14 +9,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parse as parseYaml } from 'yaml';
 import { afterAll, describe, expect, it } from 'vitest';
-import {
-  DEMO_SEED,
-  MH_OFFSET_MAG,
-  generateDemoReleases,
-  generateUniverse,
-  offsetHosts,
-  writeGeneratedRelease,
-} from '../../src/demo/index.ts';
+import { DEMO_SEED, MH_OFFSET_MAG, generateDemoReleases, generateUniverse, offsetHosts, writeGeneratedRelease } from '../../src/demo/index.ts';
 import { ANALYSIS_KEYS } from '../../src/types/analysis.ts';
 import { TABLE_NAMES } from '../../src/types/release.ts';
 import { HALF_UNIT_3RD_DECIMAL, HALF_UNIT_4TH_DECIMAL } from '../tolerances.ts';
@@ -57,7 +50,9 @@ describe('determinism [edge]', () => {
     for (const id of IDS) {
       const dir = join(RELEASES_DIR, id);
       // blinding.json is written by `rungbook blind`, recovery.json by `rungbook recover` (tests/recover)
-      const onDisk = readdirSync(dir).filter((f) => f !== 'blinding.json' && f !== 'recovery.json').sort();
+      const onDisk = readdirSync(dir)
+        .filter((f) => f !== 'blinding.json' && f !== 'recovery.json')
+        .sort();
       expect(onDisk).toEqual(Object.keys(files(id)).sort());
       for (const name of onDisk) expect(readFileSync(join(dir, name), 'utf8'), `${id}/${name}`).toBe(files(id)[name]);
       expect(existsSync(join(dir, 'truth.json'))).toBe(false);
@@ -76,7 +71,7 @@ describe('differences between releases [edge]', () => {
     for (const f of TABLE_FILES) expect(same('2026.2', '2026.3', f), f).toBe(f !== 'cepheids.ecsv' && f !== 'sn_hubble_flow.ecsv');
   });
 
-  it('catalogue B parallax errors are 0.6 times catalogue A\'s, star by star', () => {
+  it("catalogue B parallax errors are 0.6 times catalogue A's, star by star", () => {
     const a = ecsvRecords(files('2026.1')['parallax.ecsv']!);
     const b = ecsvRecords(files('2026.2')['parallax.ecsv']!);
     expect(b.map((r) => r.star)).toEqual(a.map((r) => r.star));
@@ -174,8 +169,12 @@ describe('release.yaml and tables follow the release format [edge]', () => {
       for (const r of ecsvRecords(f[`${t}.ecsv`]!)) expect(systems.has(r.system), `${t} ${r.system}`).toBe(true);
     }
     const kinds = new Map(ecsvRecords(f['systems.ecsv']!).map((r) => [r.system, r.kind]));
-    const fieldParallax = ecsvRecords(f['parallax.ecsv']!).filter((r) => kinds.get(r.system) === 'field').map((r) => r.star);
-    const fieldCepheids = ecsvRecords(f['cepheids.ecsv']!).filter((r) => kinds.get(r.system) === 'field').map((r) => r.star);
+    const fieldParallax = ecsvRecords(f['parallax.ecsv']!)
+      .filter((r) => kinds.get(r.system) === 'field')
+      .map((r) => r.star);
+    const fieldCepheids = ecsvRecords(f['cepheids.ecsv']!)
+      .filter((r) => kinds.get(r.system) === 'field')
+      .map((r) => r.star);
     expect(fieldParallax.length).toBe(40);
     expect(fieldCepheids).toEqual(fieldParallax);
   });

@@ -90,7 +90,7 @@ describe('main sequence [statistics]', () => {
     expect(Math.abs(offset + EQUAL_MASS_BINARY_OFFSET_MAG)).toBeLessThan(STAT_SIGMAS * se);
   });
 
-  it('single anchor stars scatter about the locus as sqrt(0.03^2 + mag_err^2 + (P\' color_err)^2)', () => {
+  it("single anchor stars scatter about the locus as sqrt(0.03^2 + mag_err^2 + (P' color_err)^2)", () => {
     const pulls = rows
       .filter((r) => sys.get(r.system as string)!.group === 'anchor' && !truthByStar.get(r.star as string)!.binary)
       .map((r) => {
@@ -113,7 +113,10 @@ describe('main sequence [statistics]', () => {
       const s = sys.get(m.system)!;
       return m.magTrue - (locusAbsMag(p, m.color0) - p.msFehSlope * s.feh! + s.mu! + p.rV * s.ebv! - (m.binary ? EQUAL_MASS_BINARY_OFFSET_MAG : 0));
     });
-    expectUnitPulls(res.map((x) => x / p.msScatterMag), 'intrinsic scatter');
+    expectUnitPulls(
+      res.map((x) => x / p.msScatterMag),
+      'intrinsic scatter',
+    );
     universe.mainSequence.forEach((m) => expect(Math.abs(m.colorTrue - m.color0 - sys.get(m.system)!.ebv!)).toBeLessThan(MAG_1E9));
   });
 
@@ -176,7 +179,10 @@ describe('supernovae [statistics]', () => {
 
   it('Hubble flow: m_b + alpha x1 - beta c - mu(z_cos) - M_B has the predicted spread', () => {
     const rows = table('sn_hubble_flow');
-    expectUnitPulls(rows.map((r) => tripResidual(r) / Math.sqrt(tripVariance(r))), 'Tripp, Hubble flow');
+    expectUnitPulls(
+      rows.map((r) => tripResidual(r) / Math.sqrt(tripVariance(r))),
+      'Tripp, Hubble flow',
+    );
   });
 
   it('calibrators: the same standardisation holds with the host distance modulus', () => {
@@ -195,10 +201,19 @@ describe('supernovae [statistics]', () => {
     for (const r of rows) {
       const t = snTruth.get(r.sn as string)!;
       const d = [(r.m_b as number) - t.mbTrue, (r.x1 as number) - t.x1True, (r.c as number) - t.cTrue];
-      const a = (r.m_b_err as number) ** 2, b = r.cov_mb_x1 as number, c = r.cov_mb_c as number;
-      const e = (r.x1_err as number) ** 2, f = r.cov_x1_c as number, i = (r.c_err as number) ** 2;
+      const a = (r.m_b_err as number) ** 2,
+        b = r.cov_mb_x1 as number,
+        c = r.cov_mb_c as number;
+      const e = (r.x1_err as number) ** 2,
+        f = r.cov_x1_c as number,
+        i = (r.c_err as number) ** 2;
       // Inverse of the symmetric matrix [[a b c][b e f][c f i]] by cofactors.
-      const A = e * i - f * f, B = -(b * i - c * f), C = b * f - c * e, E = a * i - c * c, F = -(a * f - b * c), I = a * e - b * b;
+      const A = e * i - f * f,
+        B = -(b * i - c * f),
+        C = b * f - c * e,
+        E = a * i - c * c,
+        F = -(a * f - b * c),
+        I = a * e - b * b;
       const det = a * A + b * B + c * C;
       d2.push((A * d[0]! ** 2 + E * d[1]! ** 2 + I * d[2]! ** 2 + 2 * (B * d[0]! * d[1]! + C * d[0]! * d[2]! + F * d[1]! * d[2]!)) / det);
       sumCross += d[0]! * d[2]! - c;

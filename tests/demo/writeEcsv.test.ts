@@ -98,7 +98,15 @@ describe('writeEcsv [edge]', () => {
 
   it('refuses malformed input with a message naming the row and column', () => {
     expect(() => writeEcsv([], [])).toThrow(TableWriteError);
-    expect(() => writeEcsv([{ name: 'a', datatype: 'string' }, { name: 'a', datatype: 'int64' }], [])).toThrow(/appears twice/);
+    expect(() =>
+      writeEcsv(
+        [
+          { name: 'a', datatype: 'string' },
+          { name: 'a', datatype: 'int64' },
+        ],
+        [],
+      ),
+    ).toThrow(/appears twice/);
     expect(() => writeEcsv([{ name: 'x', datatype: 'float64' }], [{ x: '1' }])).toThrow(/row 0 column "x": expected a number/);
     expect(() => writeEcsv([{ name: 'k', datatype: 'int64' }], [{ k: 1 }, { k: 1.5 }])).toThrow(/row 1 column "k": expected a safe integer/);
     expect(() => writeEcsv([{ name: 'x', datatype: 'float64' }], [{}])).toThrow(/row 0 column "x": value missing/);
@@ -131,9 +139,7 @@ describe('formatFloat [edge]', () => {
 
 describe('writeCsv [edge]', () => {
   it('writes RFC 4180 fields (quotes only where needed) with a header row', () => {
-    expect(writeCsv(SMALL_COLUMNS, SMALL_ROWS)).toBe(
-      ['star,parallax,count,ok', 'A-1,1.5,2,True', '"B,2",,-3,False', '"say ""hi""",-0.25,,', ''].join('\n'),
-    );
+    expect(writeCsv(SMALL_COLUMNS, SMALL_ROWS)).toBe(['star,parallax,count,ok', 'A-1,1.5,2,True', '"B,2",,-3,False', '"say ""hi""",-0.25,,', ''].join('\n'));
     // '#' has no meaning in plain CSV, so it is not quoted there.
     expect(writeCsv([{ name: 'id', datatype: 'string' }], [{ id: '#1' }])).toBe('id\n#1\n');
   });
@@ -200,9 +206,7 @@ describe('writeEcsv read back by astropy [reference]', () => {
     const meta = { source: 'test: a, b', nested: { list: [1, 'two', null, true], 'key with space': 0.5 } };
     const file = join(dir, 'awkward.ecsv');
     writeFileSync(file, writeEcsv(AWKWARD_COLUMNS, rows, meta));
-    const out = JSON.parse(
-      execFileSync(astropyPython(), [join(HERE, 'astropy_read_ecsv.py'), file], { encoding: 'utf8' }),
-    ) as {
+    const out = JSON.parse(execFileSync(astropyPython(), [join(HERE, 'astropy_read_ecsv.py'), file], { encoding: 'utf8' })) as {
       columns: { name: string; kind: string; unit: string | null; description: string | null; values: unknown[] }[];
       meta: unknown;
     };

@@ -58,7 +58,12 @@ describe('comparing blinded releases', () => {
     // the hidden factor is common: the ratio is the true one (to the fits' convergence tolerances:
     // the blinded and the true fits are different runs of the iteration)
     expect(relErr(r.h0!.ratio!, h0['true-alike'] / h0['true-a'])).toBeLessThan(REL_SAME_CALIBRATION_ROUNDING);
-    expect(relErr(r.attribution.reduce((s, e) => s + e.delta_h0, 0), r.h0!.delta!)).toBeLessThan(ATTRIBUTION_SUM_REL);
+    expect(
+      relErr(
+        r.attribution.reduce((s, e) => s + e.delta_h0, 0),
+        r.h0!.delta!,
+      ),
+    ).toBeLessThan(ATTRIBUTION_SUM_REL);
     for (const name of ['M_B', 'a_B']) {
       const p = r.parameters.find((x) => x.name === name)!;
       expect([p.blinded, p.a, p.b]).toEqual([true, null, null]);

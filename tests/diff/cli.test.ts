@@ -15,7 +15,13 @@ const tmp = tempDir('cli');
 afterAll(() => tmp.remove());
 
 describe('rungbook diff: usage and input errors', () => {
-  for (const args of [[DEMO_DIR], ['a', 'b', '--format', 'xml'], ['a', 'b', '--workers', 'two'], ['a', 'b', '--site', 'ftp://x.example.org'], ['a', 'b', '--colour']]) {
+  for (const args of [
+    [DEMO_DIR],
+    ['a', 'b', '--format', 'xml'],
+    ['a', 'b', '--workers', 'two'],
+    ['a', 'b', '--site', 'ftp://x.example.org'],
+    ['a', 'b', '--colour'],
+  ]) {
     it(`usage error (exit 2): ${args.slice(1).join(' ') || 'one release'}`, async () => {
       const c = capture();
       expect(await main(['diff', ...args], c.io)).toBe(2);
@@ -65,7 +71,12 @@ describe('rungbook diff: output', () => {
     const dir = join(tmp.dir, 'same');
     cpSync(join(DEMO_DIR, '2026.1'), dir, { recursive: true });
     const withSite = capture({ RUNGBOOK_SITE: 'https://env.example.org' });
-    expect(await runDiff([join(DEMO_DIR, '2026.1'), join(DEMO_DIR, '2026.1'), '--format', 'markdown', '--site', 'https://flag.example.org', '--workers', '0'], withSite.io)).toBe(0);
+    expect(
+      await runDiff(
+        [join(DEMO_DIR, '2026.1'), join(DEMO_DIR, '2026.1'), '--format', 'markdown', '--site', 'https://flag.example.org', '--workers', '0'],
+        withSite.io,
+      ),
+    ).toBe(0);
     expect(withSite.out()).toContain('https://flag.example.org/releases/2026.1/compare/');
     const none = capture({});
     expect(await runDiff([join(DEMO_DIR, '2026.1'), join(DEMO_DIR, '2026.1'), '--format', 'markdown', '--workers', '0'], none.io)).toBe(0);

@@ -22,7 +22,7 @@ describe('hybrid releases', () => {
     expect(runLadder(all, all.analysis).log10H0!.value).toBe(runLadder(b, b.analysis).log10H0!.value);
   });
 
-  it('a table from b that names a system a lacks brings that system\'s row along; the systems group alone does not', () => {
+  it("a table from b that names a system a lacks brings that system's row along; the systems group alone does not", () => {
     const a = load('2026.2');
     const b: Release = structuredClone(a);
     const host = b.snCalibrators[0].system;

@@ -62,13 +62,18 @@ const ROW_SHIFT_FLOOR_KMS = 0.005;
 
 describe('per-row estimates of the H0 shift', () => {
   it('every row gets an estimate from both fits, of the kind its table calls for', () => {
-    expect(fwd.map((e) => `${e.table}:${e.id}:${e.kind}`)).toEqual(
-      rows.map((r, i) => `${r.table}:${r.id}:${i === 4 ? 'anchor' : 'linear'}`),
-    );
+    expect(fwd.map((e) => `${e.table}:${e.id}:${e.kind}`)).toEqual(rows.map((r, i) => `${r.table}:${r.id}:${i === 4 ? 'anchor' : 'linear'}`));
     expect(bwd.length).toBe(rows.length);
   });
 
-  for (const [i, what] of ['Cepheid m_h', 'calibrator m_B', 'added Hubble-flow supernova', 'removed Hubble-flow supernova', 'anchor parallax', 'field Cepheid parallax'].entries()) {
+  for (const [i, what] of [
+    'Cepheid m_h',
+    'calibrator m_B',
+    'added Hubble-flow supernova',
+    'removed Hubble-flow supernova',
+    'anchor parallax',
+    'field Cepheid parallax',
+  ].entries()) {
     it(`${what}: agrees with recalibrating release a with the row swapped`, () => {
       const r = rows[i];
       const f = fwd.find((e) => e.id === r.id && e.table === r.table)!;

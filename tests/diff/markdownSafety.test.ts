@@ -55,9 +55,13 @@ describe('text from the data in the message to paste', () => {
     for (const s of HOSTILE) {
       const nodes = walk(parse(`x ${mdData(s)} y`));
       const kinds = new Set(nodes.map((n) => n.type));
-      for (const bad of ['link', 'image', 'html', 'emphasis', 'strong', 'delete', 'table']) expect(kinds.has(bad), `${JSON.stringify(s)} gave ${bad}`).toBe(false);
+      for (const bad of ['link', 'image', 'html', 'emphasis', 'strong', 'delete', 'table'])
+        expect(kinds.has(bad), `${JSON.stringify(s)} gave ${bad}`).toBe(false);
       // the literal text is there: in a code span (inlineCode) or as plain text
-      const text = nodes.filter((n) => n.type === 'inlineCode' || n.type === 'text').map((n) => n.value).join('');
+      const text = nodes
+        .filter((n) => n.type === 'inlineCode' || n.type === 'text')
+        .map((n) => n.value)
+        .join('');
       expect(text, JSON.stringify(s)).toContain(s.replace(/\n/g, ' '));
     }
   });
@@ -66,14 +70,22 @@ describe('text from the data in the message to paste', () => {
     for (const id of ['hf-0187', 'Juniperfold-C001', 'm_h', '2026.3']) expect(mdData(id)).toBe(id);
   });
 
-  it('in a whole message, only the report\'s own links remain, however the data are named', () => {
+  it("in a whole message, only the report's own links remain, however the data are named", () => {
     const r = structuredClone(base);
     r.top_objects.forEach((o, i) => (o.id = HOSTILE[i % HOSTILE.length]!));
     const cepheids = r.inputs.find((t) => t.columns.length > 0)!;
     cepheids.columns[0]!.column = HOSTILE[0]!;
     cepheids.columns[0]!.unit = HOSTILE[2]!;
     cepheids.columns[0]!.largest_id = HOSTILE[1]!;
-    cepheids.column_changes.push({ kind: 'added', column_a: null, column_b: HOSTILE[3]!, unit_a: null, unit_b: null, contract: false, detail: `column "${HOSTILE[3]}" added` });
+    cepheids.column_changes.push({
+      kind: 'added',
+      column_a: null,
+      column_b: HOSTILE[3]!,
+      unit_a: null,
+      unit_b: null,
+      contract: false,
+      detail: `column "${HOSTILE[3]}" added`,
+    });
     r.input_changes.variants.push({ kind: 'added', name: HOSTILE[6]!, a: null, b: {} });
     const md = renderMarkdown(r);
     const nodes = walk(parse(md));

@@ -54,7 +54,10 @@ beforeAll(async () => {
   for (const r of before.rows) put('parallax', r[0], 'ra', r[before.header.indexOf('ra')], null);
   editEcsv(join(b, 'parallax.ecsv'), (t) => {
     t.comments = t.comments.map((c) =>
-      c.replace('{name: ra,', '{name: ra_deg,').replace('{name: parallax, unit: mas,', '{name: parallax, unit: uas,').replace('{name: parallax_err, unit: mas,', '{name: parallax_err, unit: uas,'),
+      c
+        .replace('{name: ra,', '{name: ra_deg,')
+        .replace('{name: parallax, unit: mas,', '{name: parallax, unit: uas,')
+        .replace('{name: parallax_err, unit: mas,', '{name: parallax_err, unit: uas,'),
     );
     t.header[t.header.indexOf('ra')] = 'ra_deg';
     for (const col of ['parallax', 'parallax_err']) {

@@ -51,7 +51,12 @@ describe('Shapley values', () => {
     const ref = shapleyByPermutations(5, v);
     phi.forEach((p, i) => expect(Math.abs(p - ref[i])).toBeLessThan(REL_1E12 * 70));
     const total = values[31] - values[0];
-    expect(relErr(phi.reduce((s, x) => s + x, 0), total)).toBeLessThan(REL_1E12 * 70 / Math.abs(total));
+    expect(
+      relErr(
+        phi.reduce((s, x) => s + x, 0),
+        total,
+      ),
+    ).toBeLessThan((REL_1E12 * 70) / Math.abs(total));
   });
 
   it('a player that never changes the value gets zero', () => {

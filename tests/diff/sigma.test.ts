@@ -112,7 +112,11 @@ describe('sigma of a difference: the nested-samples identity', () => {
     const a = lineSnapshot(x.slice(0, n), v.slice(0, n), ids.slice(0, n));
     const b = lineSnapshot(x, v, ids);
     const sharing = { rowCommon: () => true, priorCommon: () => true, nested: () => true, status: () => 'same' as const };
-    for (const g of [[0, 1], [1, 0], [1, 2.5]]) {
+    for (const g of [
+      [0, 1],
+      [1, 0],
+      [1, 2.5],
+    ]) {
       const r = sigmaOfDifference(prepareSide(a), g, 1, prepareSide(b), g, 1, sharing, true);
       expect(relErr(r.sigma ** 2, r.varA - r.varB)).toBeLessThan(REL_1E9);
       // and each side's variance is g^T F^-1 g

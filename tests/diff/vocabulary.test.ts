@@ -41,7 +41,9 @@ interface Stated {
 
 /** The headline of the terminal text: "H0: a -> b km/s/Mpc, shift X ± D km/s/Mpc (S sigma; ...". */
 function fromText(r: DiffReport): Stated {
-  const line = renderText(r).split('\n').find((l) => l.startsWith('H0: '))!;
+  const line = renderText(r)
+    .split('\n')
+    .find((l) => l.startsWith('H0: '))!;
   const values = new RegExp(`^H0: ${NUMBER} -> ${NUMBER} km/s/Mpc`).exec(line);
   const shift = new RegExp(`shift ${NUMBER}(?: ± ${NUMBER})? km/s/Mpc \\((?:${NUMBER} sigma)?`).exec(line)!;
   return {
@@ -147,7 +149,7 @@ describe('the terminal text, the message and the page state the same headline', 
 });
 
 describe('one sigma wording, the typography a parameter', () => {
-  it('writes the shift in sigma with one decimal and the typography\'s sign and name', () => {
+  it("writes the shift in sigma with one decimal and the typography's sign and name", () => {
     expect(sigmaWords(1.26, PLAIN)).toBe('+1.3 sigma');
     expect(sigmaWords(1.26, MESSAGE)).toBe('+1.3 σ');
     expect(sigmaWords(1.26, TYPOGRAPHIC)).toBe('+1.3 σ');
@@ -202,7 +204,7 @@ function pageOrder(r: DiffReport): string[] {
 }
 
 describe('one ranking of the input changes', () => {
-  it('the message and the page list the demo comparison\'s changes in the same order', () => {
+  it("the message and the page list the demo comparison's changes in the same order", () => {
     const message = messageOrder(real);
     const page = pageOrder(real);
     expect(message.length).toBeGreaterThan(1);
@@ -221,7 +223,15 @@ describe('one ranking of the input changes', () => {
     expect(touched.length).toBeGreaterThan(1);
     // the table with the fewest changed rows gets a renamed column
     const smallest = touched.reduce((m, t) => (t.added + t.removed + t.changed < m.added + m.removed + m.changed ? t : m));
-    const renamed: ColumnChange = { kind: 'renamed', column_a: 'note', column_b: 'remark', unit_a: null, unit_b: null, contract: false, detail: 'extra column note renamed to remark' };
+    const renamed: ColumnChange = {
+      kind: 'renamed',
+      column_a: 'note',
+      column_b: 'remark',
+      unit_a: null,
+      unit_b: null,
+      contract: false,
+      detail: 'extra column note renamed to remark',
+    };
     smallest.column_changes = [renamed];
     expect(rankedInputChanges(r)[0]).toMatchObject({ kind: 'table', change: { table: smallest.table } });
     expect(messageOrder(r)[0]).toBe(smallest.table);

@@ -57,7 +57,8 @@ export function classify(command: 'check' | 'calibrate', o: Outcome, dir: string
   if (command === 'check' && err.split('\n').some((l) => l.startsWith(`rungbook check: ${dir}: `))) return { ending: 'analysis error', why: '' };
   // An input problem names a file of the release: "<dir>/<file>:<line>: ..." (or "<dir>/<file>: ..." for a whole file).
   if (err.split('\n').some((l) => l.startsWith(`${dir}/`) || l.startsWith(`${dir}:`))) return { ending: 'input error', why: '' };
-  if (command === 'calibrate' && err.startsWith('rungbook calibrate: ') && err.trim().length > 'rungbook calibrate: '.length + 20) return { ending: 'analysis error', why: '' };
+  if (command === 'calibrate' && err.startsWith('rungbook calibrate: ') && err.trim().length > 'rungbook calibrate: '.length + 20)
+    return { ending: 'analysis error', why: '' };
   return { ending: 'unnamed error', why: err.slice(0, 400) };
 }
 

@@ -97,7 +97,8 @@ function notTheGate(c: Case): string | null {
   }
   if (c.check!.ending === 'analysis error') {
     const reason = calibrateReason(c.calibrateErr!);
-    if (reason === null || !c.checkErr!.includes(`rungbook check: ${c.dir}: ${reason}`)) return `${where}: other words\ncheck: ${c.checkErr}\ncalibrate: ${c.calibrateErr}`;
+    if (reason === null || !c.checkErr!.includes(`rungbook check: ${c.dir}: ${reason}`))
+      return `${where}: other words\ncheck: ${c.checkErr}\ncalibrate: ${c.calibrateErr}`;
   }
   return null;
 }
@@ -132,12 +133,15 @@ describe('fuzz: damaged demo releases', () => {
     );
 
     // Every kind of damage was tried about equally often.
-    for (const kind of MUTATION_KINDS) expect(cases.filter((c) => c.mutation.kind === kind).length).toBeGreaterThanOrEqual(Math.floor(CASES / MUTATION_KINDS.length));
+    for (const kind of MUTATION_KINDS)
+      expect(cases.filter((c) => c.mutation.kind === kind).length).toBeGreaterThanOrEqual(Math.floor(CASES / MUTATION_KINDS.length));
     // No defect of ours, in either command.
     const defects = cases.flatMap((c) =>
       (['check', 'calibrate'] as const)
         .filter((cmd) => (DEFECTS as readonly string[]).includes(c[cmd]!.ending))
-        .map((cmd) => `case ${c.n} (${c.release}, ${c.mutation.kind}, ${c.mutation.file}: ${c.mutation.description}): ${cmd} -> ${c[cmd]!.ending}: ${c[cmd]!.why}`),
+        .map(
+          (cmd) => `case ${c.n} (${c.release}, ${c.mutation.kind}, ${c.mutation.file}: ${c.mutation.description}): ${cmd} -> ${c[cmd]!.ending}: ${c[cmd]!.why}`,
+        ),
     );
     expect(defects).toEqual([]);
     // The two commands agree on the input: a release that check refuses is refused by calibrate as an input problem,
@@ -158,12 +162,22 @@ describe('fuzz: damaged demo releases', () => {
       const caseDir = join(parent, `rule-${i}`);
       const dir = copyDemo('2026.1', caseDir);
       s.edit(dir);
-      return { n: CASES + i, release: '2026.1', dir, resultsFile: join(caseDir, 'results.json'), mutation: { kind: 'file' as const, file: s.name, description: s.rule }, expected: s };
+      return {
+        n: CASES + i,
+        release: '2026.1',
+        dir,
+        resultsFile: join(caseDir, 'results.json'),
+        mutation: { kind: 'file' as const, file: s.name, description: s.rule },
+        expected: s,
+      };
     });
     await runAll(structural);
     const rows = new Map<string, Map<Ending, number>>();
-    for (const c of structural) count(rows, c.expected.ending === 'analysis error' ? 'ladder' : c.expected.ending === 'ok' ? 'ignored file' : 'contract', c.check!.ending);
-    console.log(`\n${endingTable(`rungbook check on ${structural.length} releases, one per rule (calibrate ends the same way in each)`, [...rows.keys()], rows)}\n`);
+    for (const c of structural)
+      count(rows, c.expected.ending === 'analysis error' ? 'ladder' : c.expected.ending === 'ok' ? 'ignored file' : 'contract', c.check!.ending);
+    console.log(
+      `\n${endingTable(`rungbook check on ${structural.length} releases, one per rule (calibrate ends the same way in each)`, [...rows.keys()], rows)}\n`,
+    );
     for (const c of structural) {
       const what = `${c.expected.name} (${c.expected.rule})`;
       expect([c.check!.ending, c.calibrate!.ending], `${what}\n${c.checkErr}\n${c.calibrateErr}`).toEqual([c.expected.ending, c.expected.ending]);
@@ -176,45 +190,60 @@ describe('fuzz: damaged demo releases', () => {
     }
   }, 600_000);
 
-  it(`build ends cleanly on ${BUILD_CASES} damaged releases, with the site complete or absent`, async () => {
-    expect(cases.length).toBe(CASES);
-    // Two that calibrate (a damaged but valid release must still give every page) and one refused.
-    const ok = cases.filter((c) => c.calibrate!.ending === 'ok');
-    const pickKinds = [...new Set(ok.map((c) => c.mutation.kind))].slice(0, BUILD_CASES - 1);
-    const chosen = [...pickKinds.map((k) => ok.find((c) => c.mutation.kind === k)!), cases.find((c) => c.calibrate!.ending === 'input error')!];
-    expect(chosen.length).toBe(BUILD_CASES);
-    const rows = new Map<string, Map<Ending, number>>();
-    for (const c of chosen) {
-      const out = join(parent, `dist-${c.n}`);
-      const err: string[] = [];
-      const io = { stdout: () => undefined, stderr: (s: string) => void err.push(s), workDir: join(parent, `work-${c.n}`), cacheDir: join(parent, `cache-${c.n}`) };
-      let timer: NodeJS.Timeout | undefined;
-      const code = await Promise.race([
-        main(['build', '--releases', join(parent, `case-${c.n}`), '--out', out], io),
-        new Promise<'timeout'>((ok) => (timer = setTimeout(() => ok('timeout'), BUILD_LIMIT_MS))),
-      ]);
-      clearTimeout(timer);
-      const text = err.join('');
-      const where = `case ${c.n} (${c.mutation.description})`;
-      expect(code, `${where}: ${text}`).not.toBe('timeout');
-      expect(text, where).not.toMatch(/internal error/);
-      // Nothing half-built is left beside the output folder.
-      expect(readdirSync(parent).filter((f) => f.startsWith(`.dist-${c.n}.`)), where).toEqual([]);
-      if (code === 0) {
-        expect(existsSync(join(out, 'index.html')), where).toBe(true);
-        const overview = readFileSync(join(out, 'releases', c.release, 'index.html'), 'utf8');
-        expect(overview, where).toContain('Internal results for collaboration review');
-        expect(overview, where).not.toMatch(/\bNaN\b|Infinity/);
-        count(rows, c.mutation.kind, 'ok');
-      } else {
-        expect(code, where).toBe(1);
-        expect(existsSync(out), where).toBe(false);
-        // The message names a file of the damaged release (file:line: column ...).
-        expect(text.split('\n').some((l) => l.startsWith(`${c.dir}/`)), `${where}: ${text}`).toBe(true);
-        count(rows, c.mutation.kind, 'input error');
+  it(
+    `build ends cleanly on ${BUILD_CASES} damaged releases, with the site complete or absent`,
+    async () => {
+      expect(cases.length).toBe(CASES);
+      // Two that calibrate (a damaged but valid release must still give every page) and one refused.
+      const ok = cases.filter((c) => c.calibrate!.ending === 'ok');
+      const pickKinds = [...new Set(ok.map((c) => c.mutation.kind))].slice(0, BUILD_CASES - 1);
+      const chosen = [...pickKinds.map((k) => ok.find((c) => c.mutation.kind === k)!), cases.find((c) => c.calibrate!.ending === 'input error')!];
+      expect(chosen.length).toBe(BUILD_CASES);
+      const rows = new Map<string, Map<Ending, number>>();
+      for (const c of chosen) {
+        const out = join(parent, `dist-${c.n}`);
+        const err: string[] = [];
+        const io = {
+          stdout: () => undefined,
+          stderr: (s: string) => void err.push(s),
+          workDir: join(parent, `work-${c.n}`),
+          cacheDir: join(parent, `cache-${c.n}`),
+        };
+        let timer: NodeJS.Timeout | undefined;
+        const code = await Promise.race([
+          main(['build', '--releases', join(parent, `case-${c.n}`), '--out', out], io),
+          new Promise<'timeout'>((ok) => (timer = setTimeout(() => ok('timeout'), BUILD_LIMIT_MS))),
+        ]);
+        clearTimeout(timer);
+        const text = err.join('');
+        const where = `case ${c.n} (${c.mutation.description})`;
+        expect(code, `${where}: ${text}`).not.toBe('timeout');
+        expect(text, where).not.toMatch(/internal error/);
+        // Nothing half-built is left beside the output folder.
+        expect(
+          readdirSync(parent).filter((f) => f.startsWith(`.dist-${c.n}.`)),
+          where,
+        ).toEqual([]);
+        if (code === 0) {
+          expect(existsSync(join(out, 'index.html')), where).toBe(true);
+          const overview = readFileSync(join(out, 'releases', c.release, 'index.html'), 'utf8');
+          expect(overview, where).toContain('Internal results for collaboration review');
+          expect(overview, where).not.toMatch(/\bNaN\b|Infinity/);
+          count(rows, c.mutation.kind, 'ok');
+        } else {
+          expect(code, where).toBe(1);
+          expect(existsSync(out), where).toBe(false);
+          // The message names a file of the damaged release (file:line: column ...).
+          expect(
+            text.split('\n').some((l) => l.startsWith(`${c.dir}/`)),
+            `${where}: ${text}`,
+          ).toBe(true);
+          count(rows, c.mutation.kind, 'input error');
+        }
       }
-    }
-    console.log(`\n${endingTable(`rungbook build on ${BUILD_CASES} damaged releases`, [...rows.keys()], rows)}\n`);
-    expect([...rows.values()].reduce((n, m) => n + (m.get('ok') ?? 0), 0)).toBe(BUILD_CASES - 1);
-  }, 3 * 600_000);
+      console.log(`\n${endingTable(`rungbook build on ${BUILD_CASES} damaged releases`, [...rows.keys()], rows)}\n`);
+      expect([...rows.values()].reduce((n, m) => n + (m.get('ok') ?? 0), 0)).toBe(BUILD_CASES - 1);
+    },
+    3 * 600_000,
+  );
 });

@@ -35,16 +35,86 @@ const TABLE_FILES = ['systems.ecsv', 'parallax.ecsv', 'main_sequence.ecsv', 'cep
 
 /** Cell values that readers and the ladder must survive. */
 const CELL_VALUES = [
-  '', 'nan', 'NaN', 'inf', '-Infinity', '1e400', '-1e400', '0', '-0', '-1', '1e-320', '1e308', '-1e308', 'abc', '""', '"',
-  '1,5', '  ', '#', '#12', '0x10', '1_000', '1e', '.', '-', '+', '١٢', '∞', '\u200b', 'true', 'null', '1e-7', '-1e6', '1e6',
-  '9'.repeat(400), '0.' + '0'.repeat(300) + '1', 'Alder', '<script>', '{1+1}', '$5', '\t', 'é', '🚀', '1.5.5', '--1', '1e+', ' 1 ',
+  '',
+  'nan',
+  'NaN',
+  'inf',
+  '-Infinity',
+  '1e400',
+  '-1e400',
+  '0',
+  '-0',
+  '-1',
+  '1e-320',
+  '1e308',
+  '-1e308',
+  'abc',
+  '""',
+  '"',
+  '1,5',
+  '  ',
+  '#',
+  '#12',
+  '0x10',
+  '1_000',
+  '1e',
+  '.',
+  '-',
+  '+',
+  '١٢',
+  '∞',
+  '\u200b',
+  'true',
+  'null',
+  '1e-7',
+  '-1e6',
+  '1e6',
+  '9'.repeat(400),
+  '0.' + '0'.repeat(300) + '1',
+  'Alder',
+  '<script>',
+  '{1+1}',
+  '$5',
+  '\t',
+  'é',
+  '🚀',
+  '1.5.5',
+  '--1',
+  '1e+',
+  ' 1 ',
 ];
 
 const UNITS = ['uas', 'mas', 'arcsec', 'deg', 'rad', 'h', 'd', 'yr', 'Myr', 'Gyr', 'kpc', '', 'm', 'mag', 'mag**2', 'erg', 'dex', 'km/s', '%'];
 const DATATYPES = ['int64', 'string', 'float32', 'float64', 'bool', 'complex128', 'uint8', 'object', 'float128'];
 const YAML_VALUES = [
-  'null', '-1', '0', '1e9', '"text"', '[1, 2]', '[2, 1]', '{a: 1}', 'true', '.nan', '.inf', '-.inf', '1e-300', '0.5', '3', '100', '[]', "''", '~', '2026-13-45',
-  '[0.4]', '[0.4, 0.4]', '[-1, 10]', '0.0231', '1.5', '-0.55', '20', '0.000001',
+  'null',
+  '-1',
+  '0',
+  '1e9',
+  '"text"',
+  '[1, 2]',
+  '[2, 1]',
+  '{a: 1}',
+  'true',
+  '.nan',
+  '.inf',
+  '-.inf',
+  '1e-300',
+  '0.5',
+  '3',
+  '100',
+  '[]',
+  "''",
+  '~',
+  '2026-13-45',
+  '[0.4]',
+  '[0.4, 0.4]',
+  '[-1, 10]',
+  '0.0231',
+  '1.5',
+  '-0.55',
+  '20',
+  '0.000001',
 ];
 
 function pick<T>(rng: Rng, xs: readonly T[]): T {
@@ -116,7 +186,9 @@ export function mutateRelease(dir: string, kind: MutationKind, rng: Rng): Mutati
         const i = pick(rng, colLines);
         const unit = pick(rng, UNITS);
         const before = lines[i]!;
-        lines[i] = /unit: [^,}]*/.test(before) ? before.replace(/unit: [^,}]*/, `unit: ${JSON.stringify(unit)}`) : before.replace(/datatype:/, `unit: ${JSON.stringify(unit)}, datatype:`);
+        lines[i] = /unit: [^,}]*/.test(before)
+          ? before.replace(/unit: [^,}]*/, `unit: ${JSON.stringify(unit)}`)
+          : before.replace(/datatype:/, `unit: ${JSON.stringify(unit)}, datatype:`);
         writeFileSync(path, lines.join('\n'));
         return done(`line ${i + 1}: unit set to ${JSON.stringify(unit)}`);
       }
@@ -142,7 +214,17 @@ export function mutateRelease(dir: string, kind: MutationKind, rng: Rng): Mutati
       }
       if (r === 4) {
         const i = rng.int(0, Math.max(0, names - 1));
-        const junk = pick(rng, ['# \t: broken', '# - {name: [', '#   ? complex', '# %ECSV 2.0', 'not a comment', '# delimiter: ";"', "# delimiter: ' '", '# ---', '#']);
+        const junk = pick(rng, [
+          '# \t: broken',
+          '# - {name: [',
+          '#   ? complex',
+          '# %ECSV 2.0',
+          'not a comment',
+          '# delimiter: ";"',
+          "# delimiter: ' '",
+          '# ---',
+          '#',
+        ]);
         lines.splice(i, 0, junk);
         writeFileSync(path, lines.join('\n'));
         return done(`line ${i + 1}: inserted ${JSON.stringify(junk)}`);
@@ -253,7 +335,17 @@ export function mutateRelease(dir: string, kind: MutationKind, rng: Rng): Mutati
         return done(`line ${i + 1} deleted (${removed!.trim()})`);
       }
       if (r === 3) {
-        const add = pick(rng, ['  clip_sigmaa: 4', 'blinding: false', '  z_mni: 0.01', 'extra: 1', '  variants: []', '    - { name: "no metallicity term" }', '    - { z_min: 0.02 }', '    - "just a string"', '    - { name: "x", r_v: "three" }']);
+        const add = pick(rng, [
+          '  clip_sigmaa: 4',
+          'blinding: false',
+          '  z_mni: 0.01',
+          'extra: 1',
+          '  variants: []',
+          '    - { name: "no metallicity term" }',
+          '    - { z_min: 0.02 }',
+          '    - "just a string"',
+          '    - { name: "x", r_v: "three" }',
+        ]);
         const at = add.startsWith('  ') ? lines.length - 1 : rng.int(0, lines.length - 1);
         lines.splice(at, 0, add);
         writeFileSync(path, lines.join('\n'));
@@ -283,12 +375,22 @@ export function mutateRelease(dir: string, kind: MutationKind, rng: Rng): Mutati
         return done('file emptied');
       }
       if (r === 2) {
-        const to = pick(rng, [file.replace('.ecsv', '.csv'), file.replace('.ecsv', '.vot'), file.replace('.ecsv', '.txt'), file.replace(/^(\w)/, (c) => c.toUpperCase()), file.replace('_', ''), file.replace('.ecsv', '.ecsv.bak')]);
+        const to = pick(rng, [
+          file.replace('.ecsv', '.csv'),
+          file.replace('.ecsv', '.vot'),
+          file.replace('.ecsv', '.txt'),
+          file.replace(/^(\w)/, (c) => c.toUpperCase()),
+          file.replace('_', ''),
+          file.replace('.ecsv', '.ecsv.bak'),
+        ]);
         renameSync(path, join(dir, to));
         return done(`renamed to ${to}`);
       }
       if (r === 3) {
-        const other = pick(rng, tableFiles(dir).filter((f) => f !== file));
+        const other = pick(
+          rng,
+          tableFiles(dir).filter((f) => f !== file),
+        );
         writeFileSync(path, readFileSync(join(dir, other)));
         return done(`replaced by a copy of ${other}`);
       }

@@ -73,7 +73,8 @@ export const STRUCTURE_CASES: readonly StructureCase[] = [
       unlinkSync(join(dir, 'main_sequence.ecsv'));
     },
     ending: 'analysis error',
-    message: /The ladder cannot reach a geometric anchor from any Cepheid system \(.*\): none has a parallax or main-sequence distance, and no field Cepheid has its own parallax\. The release has no parallax table at all\./,
+    message:
+      /The ladder cannot reach a geometric anchor from any Cepheid system \(.*\): none has a parallax or main-sequence distance, and no field Cepheid has its own parallax\. The release has no parallax table at all\./,
   },
   {
     name: 'cepheids-without-route',
@@ -81,7 +82,8 @@ export const STRUCTURE_CASES: readonly StructureCase[] = [
     // Cepheids only in galaxies without a distance of their own: the anchored ones and the field Cepheids removed.
     edit: keepRows('cepheids', (r, col) => !['Hearthfield', 'Wrenmere', 'Fernhollow', 'Greywick', 'Hollinford', ...ANCHORS].includes(r[col('system')]!)),
     ending: 'analysis error',
-    message: /The ladder cannot reach a geometric anchor from any Cepheid system \("Ivyreach", .*\): none has a parallax or main-sequence distance, and no field Cepheid has its own parallax\.\n/,
+    message:
+      /The ladder cannot reach a geometric anchor from any Cepheid system \("Ivyreach", .*\): none has a parallax or main-sequence distance, and no field Cepheid has its own parallax\.\n/,
   },
   {
     name: 'targets-without-locus',
@@ -119,7 +121,8 @@ export const STRUCTURE_CASES: readonly StructureCase[] = [
     rule: 'every supernova host needs Cepheids or a distance of its own',
     edit: keepRows('cepheids', (r, col) => r[col('system')] !== 'Rowanstead'),
     ending: 'analysis error',
-    message: /The ladder cannot reach a geometric anchor from "Rowanstead": this supernova host has no Cepheids and no distance of its own\. Its supernovae are on sn_calibrators line \d+\./,
+    message:
+      /The ladder cannot reach a geometric anchor from "Rowanstead": this supernova host has no Cepheids and no distance of its own\. Its supernovae are on sn_calibrators line \d+\./,
   },
   // What only the fits can tell (the baseline pass of the ladder, which check runs too).
   {
@@ -137,7 +140,8 @@ export const STRUCTURE_CASES: readonly StructureCase[] = [
       keepRows('main_sequence', (r, col) => r[col('system')] !== 'Greywick' || (n += 1) <= 3)(dir);
     },
     ending: 'analysis error',
-    message: /main-sequence target "Greywick" \(systems line \d+\): \d star\(s\) in the colour range \[0\.4, 1\.2\] \(single and binary colours\) at E\(B-V\) = [\d.-]+; at least 5 needed/,
+    message:
+      /main-sequence target "Greywick" \(systems line \d+\): \d star\(s\) in the colour range \[0\.4, 1\.2\] \(single and binary colours\) at E\(B-V\) = [\d.-]+; at least 5 needed/,
   },
   // The input contract and the records beside the tables.
   {
@@ -165,7 +169,8 @@ export const STRUCTURE_CASES: readonly StructureCase[] = [
       symlinkSync(join(dir, 'moved-away.ecsv'), join(dir, 'cepheids.ecsv'));
     },
     ending: 'input error',
-    message: /cepheids\.ecsv: the file of the table "cepheids" is not a regular file, so it cannot be read; expected a regular file, found a symbolic link to nothing/,
+    message:
+      /cepheids\.ecsv: the file of the table "cepheids" is not a regular file, so it cannot be read; expected a regular file, found a symbolic link to nothing/,
   },
   {
     name: 'blinding-record-of-another-release',

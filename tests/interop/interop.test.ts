@@ -72,9 +72,7 @@ function rowsOf(r: Release) {
 
 /** results.json without what legitimately differs between formats: file names, formats, checksums, line numbers. */
 function comparable(r: Results): unknown {
-  return JSON.parse(
-    JSON.stringify({ ...r, provenance: { ...r.provenance, inputs: [], inputs_hash: '' } }, (k, v) => (k === 'line' ? undefined : v)),
-  );
+  return JSON.parse(JSON.stringify({ ...r, provenance: { ...r.provenance, inputs: [], inputs_hash: '' } }, (k, v) => (k === 'line' ? undefined : v)));
 }
 
 let reference: Release;
@@ -170,7 +168,10 @@ describe('the result tables offered for download are read by astropy to the same
     });
     tables.forEach((t, k) => {
       const got = read.tables[k]!;
-      expect(got.columns.map((c) => c.name), t.name).toEqual(t.columns.map((c) => c.name));
+      expect(
+        got.columns.map((c) => c.name),
+        t.name,
+      ).toEqual(t.columns.map((c) => c.name));
       const kinds: Record<string, string> = { string: 'U', float64: 'f', int64: 'i', bool: 'b' };
       t.columns.forEach((c, j) => {
         const col = got.columns[j]!;
@@ -207,7 +208,10 @@ describe('the result tables offered for download are read by astropy to the same
     });
     tables.forEach((t, k) => {
       const got = read.tables[k]!;
-      expect(got.columns.map((c) => c.name), t.name).toEqual(t.columns.map((c) => c.name));
+      expect(
+        got.columns.map((c) => c.name),
+        t.name,
+      ).toEqual(t.columns.map((c) => c.name));
       t.rows.forEach((row, i) => {
         t.columns.forEach((c, j) => {
           const want = row[c.name];
@@ -235,7 +239,11 @@ describe('hostile ids in the downloads survive astropy', () => {
     const root = join(tmp, 'gen-hostile');
     await generateRelease(genLayout(root), { results, notes: null, previousBuilt: false });
     const dl = join(root, 'public', 'releases', '2026.1', 'downloads');
-    const read = astropy<{ tables: { rows: unknown[][] }[] }>({ op: 'read_tables', format: 'ecsv', files: [join(dl, 'systems.ecsv'), join(dl, 'cepheids.ecsv')] });
+    const read = astropy<{ tables: { rows: unknown[][] }[] }>({
+      op: 'read_tables',
+      format: 'ecsv',
+      files: [join(dl, 'systems.ecsv'), join(dl, 'cepheids.ecsv')],
+    });
     expect(read.tables[0]!.rows.map((r) => r[0])).toEqual(ids);
     expect(read.tables[1]!.rows.map((r) => r[1])).toEqual(results.rungs.cepheids.map((c) => c.system));
     expect(new Set(read.tables[1]!.rows.map((r) => r[1])).size).toBeGreaterThan(10);

@@ -26,7 +26,7 @@ describe('rungbook check', () => {
     expect(r).toEqual({ code: 0, stdout: [`ok ${dir} (8 files, 2323 rows)`], stderr: [] });
   });
 
-  test('a release that keeps the contract but cannot be calibrated: the ladder\'s reasons in calibrate\'s words, exit 1', async () => {
+  test("a release that keeps the contract but cannot be calibrated: the ladder's reasons in calibrate's words, exit 1", async () => {
     const def = validRelease();
     const dir = writeRelease(def);
     const rows = Object.values(def.tables).reduce((n, t) => n + t!.rows.length, 0);
@@ -63,7 +63,11 @@ describe('rungbook check', () => {
     const r = await run([good, bad]);
     expect(r.code).toBe(1);
     expect(r.stdout).toEqual([`ok ${good} (8 files, 2323 rows)`]);
-    expect(r.stderr[0]).toMatch(new RegExp(`^${join(bad, 'systems.ecsv').replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}:\\d+: column "kind": a required value is empty; expected a value, found an empty cell$`));
+    expect(r.stderr[0]).toMatch(
+      new RegExp(
+        `^${join(bad, 'systems.ecsv').replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}:\\d+: column "kind": a required value is empty; expected a value, found an empty cell$`,
+      ),
+    );
   });
 
   test('no folder given: usage, exit 2', async () => {

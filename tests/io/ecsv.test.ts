@@ -64,7 +64,8 @@ describe('ECSV: reading valid files', () => {
   });
 
   test('CRLF inside a quoted field counts as one line break', () => {
-    const text = '# %ECSV 1.0\r\n# ---\r\n# delimiter: \',\'\r\n# datatype:\r\n# - {name: a, datatype: string}\r\n# - {name: b, datatype: float64}\r\na,b\r\n"x\r\ny",1\r\nz,2\r\n';
+    const text =
+      '# %ECSV 1.0\r\n# ---\r\n# delimiter: \',\'\r\n# datatype:\r\n# - {name: a, datatype: string}\r\n# - {name: b, datatype: float64}\r\na,b\r\n"x\r\ny",1\r\nz,2\r\n';
     const t = table(readEcsv(enc(text)));
     expect(t.rows.map((r) => r.line)).toEqual([8, 10]);
     expect(t.rows[0].cells[0]).toBe('x\r\ny');
@@ -216,7 +217,12 @@ describe('ECSV: broken files (line, column, expected, found)', () => {
     const text = good().replace('star,parallax,remark,ra', 'star,parallax,ra,remark');
     const p = readEcsv(enc(text));
     expect(p.problems).toEqual([
-      expect.objectContaining({ code: 'column-names-mismatch', line: lineOf(text, 'star,parallax,ra,remark'), expected: 'star,parallax,remark,ra', found: 'star,parallax,ra,remark' }),
+      expect.objectContaining({
+        code: 'column-names-mismatch',
+        line: lineOf(text, 'star,parallax,ra,remark'),
+        expected: 'star,parallax,remark,ra',
+        found: 'star,parallax,ra,remark',
+      }),
     ]);
   });
 
@@ -229,7 +235,11 @@ describe('ECSV: broken files (line, column, expected, found)', () => {
   });
 
   test('a header with no body', () => {
-    const text = good().split('\n').filter((l) => l.startsWith('#')).join('\n') + '\n';
+    const text =
+      good()
+        .split('\n')
+        .filter((l) => l.startsWith('#'))
+        .join('\n') + '\n';
     const p = readEcsv(enc(text));
     expect(p.problems).toEqual([expect.objectContaining({ code: 'no-column-names', line: text.split('\n').length })]);
   });

@@ -81,8 +81,15 @@ export function validRelease(): ReleaseDef {
       },
       cepheids: {
         columns: [
-          str('star'), str('system'), f64('period', 'd'),
-          f64('m_h', 'mag'), f64('m_h_err', 'mag'), f64('m_v', 'mag'), f64('m_v_err', 'mag'), f64('m_i', 'mag'), f64('m_i_err', 'mag'),
+          str('star'),
+          str('system'),
+          f64('period', 'd'),
+          f64('m_h', 'mag'),
+          f64('m_h_err', 'mag'),
+          f64('m_v', 'mag'),
+          f64('m_v_err', 'mag'),
+          f64('m_i', 'mag'),
+          f64('m_i_err', 'mag'),
           f64('oh', 'dex'),
         ],
         rows: [
@@ -92,8 +99,18 @@ export function validRelease(): ReleaseDef {
       },
       sn_calibrators: {
         columns: [
-          str('sn'), str('system'), f64('m_b', 'mag'), f64('m_b_err', 'mag'), f64('x1'), f64('x1_err'), f64('c', 'mag'), f64('c_err', 'mag'),
-          f64('cov_mb_x1', 'mag'), f64('cov_mb_c', 'mag2'), f64('cov_x1_c', 'mag'), f64('host_logmass', 'dex'),
+          str('sn'),
+          str('system'),
+          f64('m_b', 'mag'),
+          f64('m_b_err', 'mag'),
+          f64('x1'),
+          f64('x1_err'),
+          f64('c', 'mag'),
+          f64('c_err', 'mag'),
+          f64('cov_mb_x1', 'mag'),
+          f64('cov_mb_c', 'mag2'),
+          f64('cov_x1_c', 'mag'),
+          f64('host_logmass', 'dex'),
         ],
         rows: [['sn-c1', 'cedar', '12.40', '0.03', '0.30', '0.10', '-0.05', '0.03', '0.001', '0.0002', '-0.002', '10.3']],
       },
@@ -121,7 +138,8 @@ export interface EcsvOptions extends TextOptions {
 
 /** Quote a cell when it holds the delimiter, a quote, a line break or (space-delimited) is empty. */
 function cellText(cell: string, delimiter: string): string {
-  const needs = cell.includes(delimiter) || cell.includes('"') || cell.includes('\n') || cell.includes('\r') || cell !== cell.trim() || (delimiter === ' ' && cell === '');
+  const needs =
+    cell.includes(delimiter) || cell.includes('"') || cell.includes('\n') || cell.includes('\r') || cell !== cell.trim() || (delimiter === ' ' && cell === '');
   return needs ? `"${cell.replace(/"/g, '""')}"` : cell;
 }
 

@@ -59,7 +59,10 @@ describe('release.yaml: valid', () => {
 describe('release.yaml: unknown keys suggest the nearest known one', () => {
   test('top level: blinding -> blinded', () => {
     const text = VALID_MANIFEST.replace('blinded: false', 'blinding: false');
-    const issue = onlyIssue(problemsOf(text).map((p) => ({ file: '', ...p })), 'unknown-key');
+    const issue = onlyIssue(
+      problemsOf(text).map((p) => ({ file: '', ...p })),
+      'unknown-key',
+    );
     expect(issue).toMatchObject({ line: lineOf(text, 'blinding'), column: 'blinding', found: '"blinding"', hint: 'did you mean "blinded"?' });
   });
 
@@ -79,7 +82,10 @@ describe('release.yaml: unknown keys suggest the nearest known one', () => {
 
   test('in a variant: z_mni -> z_min', () => {
     const text = VALID_MANIFEST + '    - { name: "low z", z_mni: 0.01 }\n';
-    const issue = onlyIssue(problemsOf(text).map((p) => ({ file: '', ...p })), 'unknown-key');
+    const issue = onlyIssue(
+      problemsOf(text).map((p) => ({ file: '', ...p })),
+      'unknown-key',
+    );
     expect(issue).toMatchObject({ line: lineOf(text, 'z_mni'), column: 'analysis.variants[2].z_mni', hint: 'did you mean "z_min"?' });
   });
 
@@ -105,7 +111,13 @@ describe('release.yaml: manifest values', () => {
     ['previous is itself', 'previous: null', `previous: "${RELEASE_ID}"`, 'bad-previous', 'previous'],
     ['blinded as text', 'blinded: false', 'blinded: "no"', 'bad-value', 'blinded'],
     ['blinded as yes (text in YAML 1.2)', 'blinded: false', 'blinded: yes', 'bad-value', 'blinded'],
-    ['analysis as a list', 'analysis:\n  z_min: 0.02\n  clip_sigma: 3.0\n  variants:\n    - { name: "no metallicity term", fit_pl_metallicity: false }\n', 'analysis: [1, 2]\n', 'bad-value', 'analysis'],
+    [
+      'analysis as a list',
+      'analysis:\n  z_min: 0.02\n  clip_sigma: 3.0\n  variants:\n    - { name: "no metallicity term", fit_pl_metallicity: false }\n',
+      'analysis: [1, 2]\n',
+      'bad-value',
+      'analysis',
+    ],
   ];
   test.each(cases)('%s', (_d, from, to, code, key) => {
     const text = VALID_MANIFEST.replace(from, to);
@@ -123,7 +135,9 @@ describe('release.yaml: manifest values', () => {
   });
 
   test.each(['id', 'title', 'date'])('missing %s', (key) => {
-    const text = VALID_MANIFEST.split('\n').filter((l) => !l.startsWith(`${key}:`)).join('\n');
+    const text = VALID_MANIFEST.split('\n')
+      .filter((l) => !l.startsWith(`${key}:`))
+      .join('\n');
     expect(problemsOf(text)).toEqual([expect.objectContaining({ code: 'missing-key', column: key, found: 'no such key' })]);
   });
 
@@ -172,7 +186,9 @@ describe('release.yaml: analysis values', () => {
     for (const value of values) {
       const text = VALID_MANIFEST.replace('  z_min: 0.02\n  clip_sigma: 3.0\n', `  ${key}: ${value}\n`);
       const problems = problemsOf(text);
-      expect(problems, `${key}: ${value}`).toEqual([expect.objectContaining({ code: 'bad-analysis-value', line: lineOf(text, `  ${key}:`), column: `analysis.${key}` })]);
+      expect(problems, `${key}: ${value}`).toEqual([
+        expect.objectContaining({ code: 'bad-analysis-value', line: lineOf(text, `  ${key}:`), column: `analysis.${key}` }),
+      ]);
       expect(problems[0].expected).toBeTruthy();
       expect(problems[0].found).toBeTruthy();
     }
@@ -197,7 +213,10 @@ describe('release.yaml: variants', () => {
   const variants = (items: string): string => VALID_MANIFEST.replace(/ {2}variants:\n[\s\S]*$/, `  variants:\n${items}`);
 
   test('several valid variants', () => {
-    const r = parseManifest(variants('    - { name: "a", z_min: 0.01 }\n    - name: "b"\n      sn_alpha: 0.15\n      ms_color_range: [0.5, 1.1]\n'), RELEASE_ID);
+    const r = parseManifest(
+      variants('    - { name: "a", z_min: 0.01 }\n    - name: "b"\n      sn_alpha: 0.15\n      ms_color_range: [0.5, 1.1]\n'),
+      RELEASE_ID,
+    );
     expect(r.problems).toEqual([]);
     expect(r.variants).toEqual([
       { name: 'a', overrides: { z_min: 0.01 } },

@@ -20,7 +20,10 @@ describe('a valid release', () => {
   test('every input is described: table, file, format, sha256 of the bytes, rows', () => {
     const dir = writeRelease(edited((d) => (d.extraFiles = { 'notes.md': '# What changed\n\nFirst release.\n' })));
     const r = loadValid(dir);
-    const sha = (name: string) => createHash('sha256').update(readFileSync(join(dir, name))).digest('hex');
+    const sha = (name: string) =>
+      createHash('sha256')
+        .update(readFileSync(join(dir, name)))
+        .digest('hex');
     expect(r.inputs.map((f) => [f.table, f.file, f.format, f.rows])).toEqual([
       ['release', 'release.yaml', 'yaml', 0],
       ['systems', 'systems.ecsv', 'ecsv', 4],
@@ -119,7 +122,9 @@ describe('file names', () => {
     const dir = writeRelease(validRelease());
     renameSync(join(dir, 'release.yaml'), join(dir, 'release.yml'));
     const issues = issuesOf(dir);
-    expect(issues).toContainEqual(expect.objectContaining({ code: 'misspelt-file-name', file: join(dir, 'release.yml'), hint: 'did you mean "release.yaml"?' }));
+    expect(issues).toContainEqual(
+      expect.objectContaining({ code: 'misspelt-file-name', file: join(dir, 'release.yml'), hint: 'did you mean "release.yaml"?' }),
+    );
     expect(issues).toContainEqual(expect.objectContaining({ code: 'missing-file', file: join(dir, 'release.yaml') }));
   });
 
@@ -150,7 +155,9 @@ describe('file names', () => {
 
   test('the id must equal the folder name', () => {
     const dir = writeRelease(validRelease(), { folder: '2026.9' });
-    expect(issuesOf(dir)).toEqual([expect.objectContaining({ code: 'id-mismatch', file: join(dir, 'release.yaml'), line: 1, column: 'id', expected: '"2026.9"', found: '"2026.1"' })]);
+    expect(issuesOf(dir)).toEqual([
+      expect.objectContaining({ code: 'id-mismatch', file: join(dir, 'release.yaml'), line: 1, column: 'id', expected: '"2026.9"', found: '"2026.1"' }),
+    ]);
   });
 
   test('a folder that does not exist, and a file given as a folder', () => {
@@ -238,7 +245,9 @@ describe('no silent loss: names the release reads that are not readable regular 
     const asUser = process.getuid?.() === 0 ? ['setpriv', ...dropDac, process.execPath] : [process.execPath];
     const r = spawnSync(asUser[0]!, [...asUser.slice(1), cli, 'check', reachable], { encoding: 'utf8', env: { ...process.env, HOME: parent } });
     expect(r.status, r.stderr).toBe(1);
-    expect(r.stderr).toContain(`${join(reachable, 'cepheids.ecsv')}: the file cannot be read; expected a file that the user running rungbook may read, found EACCES (permission denied) (give read permission (chmod a+r))`);
+    expect(r.stderr).toContain(
+      `${join(reachable, 'cepheids.ecsv')}: the file cannot be read; expected a file that the user running rungbook may read, found EACCES (permission denied) (give read permission (chmod a+r))`,
+    );
     expect(r.stderr).not.toMatch(/internal error/);
   });
 });
@@ -344,10 +353,12 @@ describe('reading never modifies the release folder', () => {
   });
 
   test('an invalid release', () => {
-    const dir = writeRelease(edited((d) => {
-      setCell(d, 'parallax', 0, 'parallax', 'nan');
-      d.extraFiles = { 'cepheid.csv': 'x\n' };
-    }));
+    const dir = writeRelease(
+      edited((d) => {
+        setCell(d, 'parallax', 0, 'parallax', 'nan');
+        d.extraFiles = { 'cepheid.csv': 'x\n' };
+      }),
+    );
     const before = fingerprint(dir);
     expect(issuesOf(dir).length).toBeGreaterThan(0);
     expect(fingerprint(dir)).toBe(before);

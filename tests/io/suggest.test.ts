@@ -14,7 +14,11 @@ describe('edit distance (optimal string alignment)', () => {
   });
 
   test('symmetric', () => {
-    for (const [a, b] of [['blinding', 'blinded'], ['parralax', 'parallax'], ['sn_hubbleflow', 'sn_hubble_flow']]) {
+    for (const [a, b] of [
+      ['blinding', 'blinded'],
+      ['parralax', 'parallax'],
+      ['sn_hubbleflow', 'sn_hubble_flow'],
+    ]) {
       expect(editDistance(a, b)).toBe(editDistance(b, a));
     }
   });

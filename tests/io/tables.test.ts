@@ -9,19 +9,7 @@ import { describe, expect, test } from 'vitest';
 import { TABLE_SPECS } from '../../src/registry/tables.ts';
 import { TABLE_NAMES, type TableName } from '../../src/types/release.ts';
 import { REL_1E15, relErr } from '../tolerances.ts';
-import {
-  dropColumn,
-  edited,
-  issuesOf,
-  lineOf,
-  loadValid,
-  onlyIssue,
-  setCell,
-  setUnit,
-  validRelease,
-  writeRelease,
-  type ReleaseDef,
-} from './fixtures.ts';
+import { dropColumn, edited, issuesOf, lineOf, loadValid, onlyIssue, setCell, setUnit, validRelease, writeRelease, type ReleaseDef } from './fixtures.ts';
 
 const fileText = (dir: string, table: TableName): string => readFileSync(join(dir, `${table}.ecsv`), 'utf8');
 /** In the fixture ECSV the column-name row follows the "# schema:" line. */
@@ -34,15 +22,31 @@ const fixtureColumns = (table: TableName): string[] => validRelease().tables[tab
 const specOf = (table: TableName, column: string) => TABLE_SPECS[table].columns.find((c) => c.name === column)!;
 
 /** Every (table, column) of the fixture that the contract requires. */
-const REQUIRED = TABLE_NAMES.flatMap((t) => fixtureColumns(t).filter((c) => specOf(t, c)?.required).map((c) => [t, c] as [TableName, string]));
-const NUMERIC = TABLE_NAMES.flatMap((t) => fixtureColumns(t).filter((c) => specOf(t, c)?.type === 'number').map((c) => [t, c] as [TableName, string]));
-const POSITIVE = TABLE_NAMES.flatMap((t) => fixtureColumns(t).filter((c) => specOf(t, c)?.positive).map((c) => [t, c] as [TableName, string]));
+const REQUIRED = TABLE_NAMES.flatMap((t) =>
+  fixtureColumns(t)
+    .filter((c) => specOf(t, c)?.required)
+    .map((c) => [t, c] as [TableName, string]),
+);
+const NUMERIC = TABLE_NAMES.flatMap((t) =>
+  fixtureColumns(t)
+    .filter((c) => specOf(t, c)?.type === 'number')
+    .map((c) => [t, c] as [TableName, string]),
+);
+const POSITIVE = TABLE_NAMES.flatMap((t) =>
+  fixtureColumns(t)
+    .filter((c) => specOf(t, c)?.positive)
+    .map((c) => [t, c] as [TableName, string]),
+);
 
 describe('the contract itself, as the schema encodes it', () => {
   test('every *_err column, the period and the Hubble-flow redshift must be > 0, and nothing else', () => {
     const positive = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => c.positive).map((c) => `${t}.${c.name}`));
     // The redshift: the model's Hubble-flow modulus is 5 log10(c z f(z)), defined for z > 0 only (content/guide/input-format.md, the model).
-    const expected = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => c.name.endsWith('_err') || c.name === 'period' || (t === 'sn_hubble_flow' && c.name === 'z')).map((c) => `${t}.${c.name}`));
+    const expected = TABLE_NAMES.flatMap((t) =>
+      TABLE_SPECS[t].columns
+        .filter((c) => c.name.endsWith('_err') || c.name === 'period' || (t === 'sn_hubble_flow' && c.name === 'z'))
+        .map((c) => `${t}.${c.name}`),
+    );
     expect(positive).toEqual(expected);
     // Counted by hand from the contract as agreed (content/guide/input-format.md), independently of the registry: systems 2, parallax 1, main_sequence 2,
     // cepheids 4 (period and three *_err), sn_calibrators 3, sn_hubble_flow 5 (z and four *_err).
@@ -52,17 +56,30 @@ describe('the contract itself, as the schema encodes it', () => {
   test('optional columns are exactly those optional in the contract as agreed (list kept by hand, independent of the registry)', () => {
     const optional = TABLE_NAMES.flatMap((t) => TABLE_SPECS[t].columns.filter((c) => !c.required).map((c) => `${t}.${c.name}`));
     expect(optional).toEqual([
-      'systems.feh', 'systems.feh_err', 'systems.ebv', 'systems.ebv_err', 'systems.age_gyr',
-      'parallax.ra', 'parallax.dec',
+      'systems.feh',
+      'systems.feh_err',
+      'systems.ebv',
+      'systems.ebv_err',
+      'systems.age_gyr',
+      'parallax.ra',
+      'parallax.dec',
       'cepheids.oh',
-      'sn_calibrators.cov_mb_x1', 'sn_calibrators.cov_mb_c', 'sn_calibrators.cov_x1_c', 'sn_calibrators.host_logmass',
-      'sn_hubble_flow.cov_mb_x1', 'sn_hubble_flow.cov_mb_c', 'sn_hubble_flow.cov_x1_c', 'sn_hubble_flow.host_logmass',
+      'sn_calibrators.cov_mb_x1',
+      'sn_calibrators.cov_mb_c',
+      'sn_calibrators.cov_x1_c',
+      'sn_calibrators.host_logmass',
+      'sn_hubble_flow.cov_mb_x1',
+      'sn_hubble_flow.cov_mb_c',
+      'sn_hubble_flow.cov_x1_c',
+      'sn_hubble_flow.host_logmass',
     ]);
   });
 
   test('the valid fixture loads', () => {
     const r = loadValid(writeRelease(validRelease()));
-    expect([r.systems.length, r.parallax.length, r.mainSequence.length, r.cepheids.length, r.snCalibrators.length, r.snHubbleFlow.length]).toEqual([4, 3, 2, 2, 1, 2]);
+    expect([r.systems.length, r.parallax.length, r.mainSequence.length, r.cepheids.length, r.snCalibrators.length, r.snHubbleFlow.length]).toEqual([
+      4, 3, 2, 2, 1, 2,
+    ]);
   });
 });
 
@@ -166,13 +183,23 @@ describe('text columns', () => {
       const def = edited((d) => setCell(d, 'systems', 2, 'kind', bad));
       const dir = writeRelease(def);
       const issue = onlyIssue(issuesOf(dir), 'not-allowed');
-      expect(issue).toMatchObject({ file: join(dir, 'systems.ecsv'), line: rowLine(def, dir, 'systems', 2), column: 'kind', expected: 'cluster, galaxy or field', found: JSON.stringify(bad) });
+      expect(issue).toMatchObject({
+        file: join(dir, 'systems.ecsv'),
+        line: rowLine(def, dir, 'systems', 2),
+        column: 'kind',
+        expected: 'cluster, galaxy or field',
+        found: JSON.stringify(bad),
+      });
     }
   });
 
   test('an id holding a control character (a terminal escape, DEL, a C1 control) is refused, shown escaped', () => {
     // Common practice, no source: control characters are never part of an id, and printed they drive the terminal.
-    for (const [bad, code] of [['alder\u001b[31m', '001B'], ['al\u007fder', '007F'], ['alder\u009b2J', '009B']] as const) {
+    for (const [bad, code] of [
+      ['alder\u001b[31m', '001B'],
+      ['al\u007fder', '007F'],
+      ['alder\u009b2J', '009B'],
+    ] as const) {
       const def = edited((d) => setCell(d, 'systems', 0, 'system', bad));
       const dir = writeRelease(def);
       const issue = onlyIssue(issuesOf(dir), 'control-character');
@@ -219,7 +246,13 @@ describe('ids and references', () => {
     const def = edited((d) => setCell(d, table, 0, 'system', 'aldre'));
     const dir = writeRelease(def);
     const issue = onlyIssue(issuesOf(dir), 'unknown-system');
-    expect(issue).toMatchObject({ file: join(dir, `${table}.ecsv`), line: rowLine(def, dir, table, 0), column: 'system', found: '"aldre"', hint: 'did you mean "alder"?' });
+    expect(issue).toMatchObject({
+      file: join(dir, `${table}.ecsv`),
+      line: rowLine(def, dir, table, 0),
+      column: 'system',
+      found: '"aldre"',
+      hint: 'did you mean "alder"?',
+    });
     expect(issue.expected).toBe('a system of systems.ecsv');
   });
 
@@ -236,7 +269,13 @@ describe('ids and references', () => {
     const def = edited((d) => setCell(d, 'cepheids', 0, 'system', 'alder'));
     const dir = writeRelease(def);
     const issue = onlyIssue(issuesOf(dir), 'star-system-mismatch');
-    expect(issue).toMatchObject({ file: join(dir, 'cepheids.ecsv'), line: rowLine(def, dir, 'cepheids', 0), column: 'system', expected: '"dune"', found: '"alder"' });
+    expect(issue).toMatchObject({
+      file: join(dir, 'cepheids.ecsv'),
+      line: rowLine(def, dir, 'cepheids', 0),
+      column: 'system',
+      expected: '"dune"',
+      found: '"alder"',
+    });
   });
 
   test('when the systems file is unreadable, references are not all reported as unknown', () => {
@@ -253,7 +292,12 @@ describe('rows', () => {
     });
     const dir = writeRelease(def);
     const issue = onlyIssue(issuesOf(dir), 'empty-table');
-    expect(issue).toMatchObject({ file: join(dir, `${table}.ecsv`), line: namesRowLine(fileText(dir, table)), expected: 'at least one data row', found: 'none' });
+    expect(issue).toMatchObject({
+      file: join(dir, `${table}.ecsv`),
+      line: namesRowLine(fileText(dir, table)),
+      expected: 'at least one data row',
+      found: 'none',
+    });
   });
 
   test('a row with too many or too few values', () => {
@@ -468,7 +512,12 @@ describe('units in the header', () => {
   test('a text column with a unit is refused', () => {
     const def = edited((d) => setUnit(d, 'parallax', 'star', 'mas'));
     const dir = writeRelease(def);
-    expect(onlyIssue(issuesOf(dir), 'wrong-unit')).toMatchObject({ column: 'star', expected: 'no unit (a text column)', found: '"mas"', line: lineOf(fileText(dir, 'parallax'), 'name: star') });
+    expect(onlyIssue(issuesOf(dir), 'wrong-unit')).toMatchObject({
+      column: 'star',
+      expected: 'no unit (a text column)',
+      found: '"mas"',
+      line: lineOf(fileText(dir, 'parallax'), 'name: star'),
+    });
   });
 });
 
@@ -505,7 +554,12 @@ describe('an error without its value', () => {
     const def = edited((d) => setCell(d, 'systems', 0, valueColumn, ''));
     const dir = writeRelease(def);
     const issue = onlyIssue(issuesOf(dir), 'value-without-partner');
-    expect(issue).toMatchObject({ file: join(dir, 'systems.ecsv'), line: rowLine(def, dir, 'systems', 0), column: errColumn, expected: `a value of ${valueColumn} in the same row, or no ${errColumn}` });
+    expect(issue).toMatchObject({
+      file: join(dir, 'systems.ecsv'),
+      line: rowLine(def, dir, 'systems', 0),
+      column: errColumn,
+      expected: `a value of ${valueColumn} in the same row, or no ${errColumn}`,
+    });
   });
 
   test('ebv without ebv_err is a fixed reddening, and valid', () => {

@@ -122,10 +122,18 @@ describe('VOTable: broken files', () => {
   });
 
   test.each(['BINARY', 'BINARY2', 'FITS'])('the %s serialisation is refused at its line', (kind) => {
-    const text = votableText(validRelease().tables.systems!).replace(/<TABLEDATA>[\s\S]*<\/TABLEDATA>/, `<${kind}>\n<STREAM encoding="base64">AAAA</STREAM>\n</${kind}>`);
+    const text = votableText(validRelease().tables.systems!).replace(
+      /<TABLEDATA>[\s\S]*<\/TABLEDATA>/,
+      `<${kind}>\n<STREAM encoding="base64">AAAA</STREAM>\n</${kind}>`,
+    );
     const p = readVotable(enc(text));
     expect(p.problems).toEqual([
-      expect.objectContaining({ code: 'unsupported-serialisation', line: lineOf(text, `<${kind}>`), found: kind, expected: expect.stringContaining('TABLEDATA') }),
+      expect.objectContaining({
+        code: 'unsupported-serialisation',
+        line: lineOf(text, `<${kind}>`),
+        found: kind,
+        expected: expect.stringContaining('TABLEDATA'),
+      }),
     ]);
   });
 
@@ -149,7 +157,9 @@ describe('VOTable: broken files', () => {
     const dir = writeRelease(edited((d) => delete d.tables.systems));
     writeFileSync(join(dir, 'systems.xml'), text);
     const issues = issuesOf(dir);
-    expect(issues).toContainEqual(expect.objectContaining({ code: 'field-count', file: join(dir, 'systems.xml'), line: lineOf(text, '<TD>dune</TD>'), expected: '7 values', found: '6' }));
+    expect(issues).toContainEqual(
+      expect.objectContaining({ code: 'field-count', file: join(dir, 'systems.xml'), line: lineOf(text, '<TD>dune</TD>'), expected: '7 values', found: '6' }),
+    );
   });
 
   test('an encoding other than UTF-8 is refused; the root must be VOTABLE', () => {

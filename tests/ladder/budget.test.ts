@@ -18,7 +18,16 @@ import { fileURLToPath } from 'node:url';
 const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 
 function variant(name: string, source: string, delta: number | null, net?: number | null): VariantResult {
-  return { name, overrides: {}, h0: delta === null ? null : 70 + delta, h0_stat: 1, delta_h0: delta, error: delta === null ? 'failed' : null, source, delta_h0_net: net };
+  return {
+    name,
+    overrides: {},
+    h0: delta === null ? null : 70 + delta,
+    h0_stat: 1,
+    delta_h0: delta,
+    error: delta === null ? 'failed' : null,
+    source,
+    delta_h0_net: net,
+  };
 }
 
 describe('the rule: half the full range per source, sources in quadrature', () => {
@@ -91,7 +100,7 @@ describe('reference: R_V carried to the Wesenheit coefficient by CCM89 (Cardelli
   //   R(3.3) = 0.18500 / (0.99890 - 0.60865) = 0.47405
   //   R(2.9) = 0.17516 / (0.99879 - 0.58479) = 0.42310
   // Rounding of the 5-decimal inputs moves R by at most ~1e-4.
-  it('the law\'s coefficient at 1.65, 0.55, 0.80 um', () => {
+  it("the law's coefficient at 1.65, 0.55, 0.80 um", () => {
     expect(Math.abs(wesenheitCoefficient(3.1, 1.65, 0.55, 0.8) - 0.44947)).toBeLessThan(1e-4);
     expect(Math.abs(wesenheitCoefficient(3.3, 1.65, 0.55, 0.8) - 0.47405)).toBeLessThan(1e-4);
     expect(Math.abs(wesenheitCoefficient(2.9, 1.65, 0.55, 0.8) - 0.4231)).toBeLessThan(1e-4);
@@ -120,7 +129,14 @@ describe('the demo release 2026.3', () => {
   it('results.json lists each source with its alternatives, shifts and expected noise; sys is their quadrature sum', async () => {
     const r = await calibrateReleaseDir(join(ROOT, 'content', 'releases', '2026.3'));
     const src = r.systematics!;
-    expect(src.map((s) => s.source)).toEqual(['pl_metallicity', 'hubble_flow_range', 'extinction_law', 'outlier_rejection', 'sn_host_mass', 'sn_standardisation']);
+    expect(src.map((s) => s.source)).toEqual([
+      'pl_metallicity',
+      'hubble_flow_range',
+      'extinction_law',
+      'outlier_rejection',
+      'sn_host_mass',
+      'sn_standardisation',
+    ]);
     expect(src.find((s) => s.source === 'extinction_law')!.alternatives).toEqual(['R_V 3.3', 'R_V 2.9']);
     const sumSq = src.reduce((s, x) => s + x.sigma_h0 ** 2, 0);
     expect(Math.abs(r.h0!.sys - Math.sqrt(sumSq))).toBeLessThan(1e-12);

@@ -24,12 +24,13 @@ function scipyPython(): string {
     const r = spawnSync(p, ['-c', 'import scipy.stats'], { stdio: 'ignore' });
     return !r.error && r.status === 0;
   });
-  if (!ok) throw new Error(`no Python with scipy among ${tried.join(', ')}: run \`node scripts/test-setup.mjs\` (installs Debian python3-scipy when run as root)`);
+  if (!ok)
+    throw new Error(`no Python with scipy among ${tried.join(', ')}: run \`node scripts/test-setup.mjs\` (installs Debian python3-scipy when run as root)`);
   return ok;
 }
 
 describe('reference: Bartlett statistic against scipy.stats.bartlett', () => {
-  it('three invented samples give scipy\'s statistic and p-value', () => {
+  it("three invented samples give scipy's statistic and p-value", () => {
     const samples = [
       [0.3, -1.2, 0.8, 1.9, -0.4, 0.1],
       [2.5, -3.1, 0.7, -1.8, 3.3, -0.2, 1.1],
@@ -46,7 +47,10 @@ print(json.dumps([t, p]))
     try {
       ref = JSON.parse(execFileSync(scipyPython(), ['-c', py, JSON.stringify(samples)], { encoding: 'utf8' }));
     } catch (e) {
-      throw new Error(`python3 with scipy is required for this reference check (Debian python3-scipy, installed by scripts/test-setup.mjs): ${(e as Error).message}`, { cause: e });
+      throw new Error(
+        `python3 with scipy is required for this reference check (Debian python3-scipy, installed by scripts/test-setup.mjs): ${(e as Error).message}`,
+        { cause: e },
+      );
     }
     // scipy uses the sample variance about each sample's mean: chi2 = sum (x - mean)^2, dof = n - 1.
     const groups = samples.map((x) => {
@@ -73,7 +77,12 @@ function homogeneity(seed: number, errorFactor: number): { p: number; host: stri
     const changed: Release =
       errorFactor === 1
         ? release
-        : { ...release, cepheids: release.cepheids.map((c) => (c.system === host ? { ...c, mHErr: c.mHErr * errorFactor, mVErr: c.mVErr * errorFactor, mIErr: c.mIErr * errorFactor } : c)) };
+        : {
+            ...release,
+            cepheids: release.cepheids.map((c) =>
+              c.system === host ? { ...c, mHErr: c.mHErr * errorFactor, mVErr: c.mVErr * errorFactor, mIErr: c.mIErr * errorFactor } : c,
+            ),
+          };
     const run = runLadder(changed, changed.analysis);
     const t = cepheidHostHomogeneity(run.fit!)!;
     return { p: t.p_value, host, hostP: t.groups.find((g) => g.system === host)!.p_value };

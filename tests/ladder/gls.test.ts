@@ -57,7 +57,15 @@ function randomProblem(seed: number, nSystems: number, rowsPerSystem: number): G
 describe('structured GLS (comparison with a dense solve)', () => {
   // without declared globals: one dense p x p system; with them: the distances are eliminated
   // block by block (the prior block's three systems form one component, the others one each)
-  for (const [seed, structured] of [[1, false], [2, false], [3, false], [1, true], [2, true], [3, true], [4, true]] as const) {
+  for (const [seed, structured] of [
+    [1, false],
+    [2, false],
+    [3, false],
+    [1, true],
+    [2, true],
+    [3, true],
+    [4, true],
+  ] as const) {
     it(`agrees with the dense N x N solve to 1e-9 (seed ${seed}, ${structured ? 'block elimination' : 'dense normal matrix'})`, () => {
       const plain = randomProblem(seed, 6 + seed, 12);
       const p0 = plain.nParams;
@@ -97,7 +105,17 @@ describe('structured GLS (comparison with a dense solve)', () => {
     const problem: GlsProblem = {
       nParams: 2,
       paramNames: ['mu:x', 'M_W'],
-      blocks: [{ rows: [{ idx: [0, 1], coef: [1, 1] }, { idx: [0, 1], coef: [1, 1] }], y: [1, 2], components: [{ source: 'c', diagonal: [1, 1] }], diagonal: true }],
+      blocks: [
+        {
+          rows: [
+            { idx: [0, 1], coef: [1, 1] },
+            { idx: [0, 1], coef: [1, 1] },
+          ],
+          y: [1, 2],
+          components: [{ source: 'c', diagonal: [1, 1] }],
+          diagonal: true,
+        },
+      ],
     };
     expect(() => solveGls(problem)).toThrow(SingularFitError);
     expect(() => solveGls(problem)).toThrow(/M_W/);

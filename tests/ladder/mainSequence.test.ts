@@ -19,9 +19,7 @@ import { fitParallaxRung } from '../../src/ladder/parallax.ts';
 import { fitMainSequenceRung, MS_METHOD_FLOOR_MAG } from '../../src/ladder/mainSequence.ts';
 import { buildDistancePriors } from '../../src/ladder/mainSequencePriors.ts';
 import { polyDerivative, polyValue } from '../../src/math/polynomial.ts';
-import {
-  absErr, relErr, MAG_1E6, REL_1E6, REL_1E9, REL_1E12, REL_FIRST_ORDER_PROPAGATION, STAT_SIGMAS,
-} from '../tolerances.ts';
+import { absErr, relErr, MAG_1E6, REL_1E6, REL_1E9, REL_1E12, REL_FIRST_ORDER_PROPAGATION, STAT_SIGMAS } from '../tolerances.ts';
 
 /** 2.5 log10 2: an unresolved equal-mass pair has twice the flux at the same colour. */
 const BINARY_MAG = 2.5 * Math.log10(2);
@@ -48,8 +46,19 @@ const normal = (u: () => number) => Math.sqrt(-2 * Math.log(1 - u())) * Math.cos
 function makeRelease(systems: SystemRow[], parallax: ParallaxRow[], mainSequence: MainSequenceRow[], analysis = AN): Release {
   return {
     manifest: { id: 'test', title: 'test', date: '2026-01-01', previous: null, blinded: false },
-    analysis, analysisKeysSet: [], variants: [], systems, parallax, mainSequence,
-    cepheids: [], snCalibrators: [], snHubbleFlow: [], absentTables: [], inputs: [], notes: null, dir: '/nonexistent',
+    analysis,
+    analysisKeysSet: [],
+    variants: [],
+    systems,
+    parallax,
+    mainSequence,
+    cepheids: [],
+    snCalibrators: [],
+    snHubbleFlow: [],
+    absentTables: [],
+    inputs: [],
+    notes: null,
+    dir: '/nonexistent',
   };
 }
 
@@ -77,7 +86,10 @@ function noiselessRelease(targetPrior: { ebv?: number; ebvErr?: number }, target
       ms.push({ star: `${system}-${k}`, system, color: c0 + ebv, colorErr: 0.005, mag: modelMag(c0, mu, ebv, feh, k % 4 === 0), magErr: 0.01, line: line++ });
     }
   };
-  for (const [system, plx, ebv, feh] of [['anchor-a', 12.5, 0.02, 0.1], ['anchor-b', 6.0, 0.05, -0.1]] as const) {
+  for (const [system, plx, ebv, feh] of [
+    ['anchor-a', 12.5, 0.02, 0.1],
+    ['anchor-b', 6.0, 0.05, -0.1],
+  ] as const) {
     systems.push({ system, kind: 'cluster', ebv, feh, line: line++ });
     for (const k of [1, 2]) parallax.push({ star: `${system}-p${k}`, system, parallaxMas: plx + AN.parallax_zero_point, parallaxErrMas: 0.0005, line: line++ });
     addStars(system, 10 - 5 * Math.log10(plx), ebv, feh, 60);
@@ -159,7 +171,10 @@ describe('edge cases', () => {
     expect(priors.method).toEqual(['parallax', 'parallax']);
     expect(priors.zpLoading).toEqual(px.anchors.map((a) => a.dmu_dzp));
     expect(priors.parts[0].cov).toEqual(px.anchorStatCovariance);
-    expect(priors.parts[1].cov).toEqual([[0, 0], [0, 0]]);
+    expect(priors.parts[1].cov).toEqual([
+      [0, 0],
+      [0, 0],
+    ]);
   });
 
   it('targets but no anchor with main-sequence photometry: an AnalysisError with a hint', () => {
@@ -188,8 +203,9 @@ describe('edge cases', () => {
   it('a Gaussian E prior: very wide equals the free fit; very narrow holds E at the prior', () => {
     const { release } = simulate(13);
     const withPrior = (ebv: number | undefined, ebvErr: number | undefined) =>
-      run({ ...release, systems: release.systems.map((s) => (s.system === 'target-prior' ? { ...s, ebv, ebvErr } : s)) })
-        .ms.targets.find((t) => t.system === 'target-prior')!;
+      run({ ...release, systems: release.systems.map((s) => (s.system === 'target-prior' ? { ...s, ebv, ebvErr } : s)) }).ms.targets.find(
+        (t) => t.system === 'target-prior',
+      )!;
     const free = withPrior(undefined, undefined);
     const wide = withPrior(0.3, 1e4);
     const narrow = withPrior(0.3, 1e-6);
@@ -382,7 +398,14 @@ describe('propagation of anchor and zero-point errors', () => {
   it('a common shift of every anchor moves every target by the same amount: rows of G sum to 1', () => {
     // The target's sensitivities to the locus are central differences of refits converged to 1e-9 mag
     // with a step of 1e-3 (src/ladder/mainSequenceTarget.ts), good to about 1e-6.
-    ms.targetAnchorJacobian.forEach((row) => expect(absErr(row.reduce((s, g) => s + g, 0), 1)).toBeLessThan(REL_1E6));
+    ms.targetAnchorJacobian.forEach((row) =>
+      expect(
+        absErr(
+          row.reduce((s, g) => s + g, 0),
+          1,
+        ),
+      ).toBeLessThan(REL_1E6),
+    );
   });
 
   it('G = d mu_target / d mu_anchor agrees with central finite differences of the refit', () => {
@@ -399,7 +422,7 @@ describe('propagation of anchor and zero-point errors', () => {
     }
   });
 
-  it('the targets\' zero-point loading G K agrees with a finite difference of both rungs in Z0', () => {
+  it("the targets' zero-point loading G K agrees with a finite difference of both rungs in Z0", () => {
     const h = 1e-4;
     const at = (z: number) => run(release, { ...release.analysis, parallax_zero_point: z }).ms;
     const up = at(release.analysis.parallax_zero_point + h);

@@ -30,7 +30,8 @@ function simulateTarget(seed: number, ebv: number, scale: number, n = 200): Targ
     const colorErr = scale * (0.012 + 0.05 * (c0 - 0.3));
     const magErr = 0.78 * colorErr;
     const binary = rng.chance(LOCUS.binaryFraction) ? -BINARY_MAG : 0;
-    const mag = polyValue(LOCUS.coeffs, c0 - LOCUS.pivot) - OPTS.fehSlope * OPTS.feh + MU + OPTS.rV * ebv + binary + rng.gauss(0, LOCUS.scatter) + rng.gauss(0, magErr);
+    const mag =
+      polyValue(LOCUS.coeffs, c0 - LOCUS.pivot) - OPTS.fehSlope * OPTS.feh + MU + OPTS.rV * ebv + binary + rng.gauss(0, LOCUS.scatter) + rng.gauss(0, magErr);
     return { color: c0 + ebv + rng.gauss(0, colorErr), colorErr, mag, magErr };
   });
 }
@@ -73,7 +74,7 @@ describe('free E(B-V) [recovery, 40 seeds per case]', { timeout: 600_000 }, () =
   }
 });
 
-describe('free E(B-V), 100 stars with three times the demo\'s errors [recovery, 100 seeds]', { timeout: 600_000 }, () => {
+describe("free E(B-V), 100 stars with three times the demo's errors [recovery, 100 seeds]", { timeout: 600_000 }, () => {
   // Measured with the colour-at-magnitude fit (src/ladder/mainSequenceTarget.ts): estimates have
   // SD 0.11 about a mean 0.093 (quoted errors 0.1-0.27, pull SD 0.79), none beyond 3 of its own
   // errors, 14 refusals at the lower end of the interval. The magnitude-at-colour fit it replaced
@@ -102,7 +103,12 @@ describe('free E(B-V) that the photometry cannot fix [edge]', () => {
     const rng = createRng(7, 'straight-locus');
     const stars = Array.from({ length: 150 }, () => {
       const c0 = rng.between(0.45, 1.15);
-      return { color: c0 + 0.2 + rng.gauss(0, 0.01), colorErr: 0.01, mag: polyValue(straight.coeffs, c0 - 0.8) + 0.196 + MU + 0.62 + rng.gauss(0, 0.03), magErr: 0.02 };
+      return {
+        color: c0 + 0.2 + rng.gauss(0, 0.01),
+        colorErr: 0.01,
+        mag: polyValue(straight.coeffs, c0 - 0.8) + 0.196 + MU + 0.62 + rng.gauss(0, 0.03),
+        magErr: 0.02,
+      };
     });
     expect(() => fitTarget(stars, straight, OPTS)).toThrow(/E\(B-V\) is not constrained by the photometry/);
   });

@@ -41,7 +41,8 @@ function target(seed: number, fraction = LOCUS.binaryFraction): TargetStarInput[
     const colorErr = 0.014 + 0.072 * ((c0 - 0.26) / 0.9) ** 3;
     const magErr = 0.78 * colorErr;
     const binary = rng.chance(fraction) ? -BINARY_MAG : 0;
-    const mag = polyValue(LOCUS.coeffs, c0 - LOCUS.pivot) - OPTS.fehSlope * FEH + MU + OPTS.rV * EBV + binary + rng.gauss(0, LOCUS.scatter) + rng.gauss(0, magErr);
+    const mag =
+      polyValue(LOCUS.coeffs, c0 - LOCUS.pivot) - OPTS.fehSlope * FEH + MU + OPTS.rV * EBV + binary + rng.gauss(0, LOCUS.scatter) + rng.gauss(0, magErr);
     return { color: c0 + EBV + rng.gauss(0, colorErr), colorErr, mag, magErr };
   });
 }
@@ -63,7 +64,9 @@ describe('a target with large colour errors at the faint red end [recovery]', ()
       dE.push(f.ebv - EBV);
       pulls.push((f.mu - MU) / Math.sqrt(f.covFit[0][0]));
     }
-    console.log(`[faint red end, E prior, ${SEEDS} seeds] mu - true ${mean(d).toFixed(4)} ± ${(sd(d) / Math.sqrt(SEEDS)).toFixed(4)}, E - true ${mean(dE).toFixed(4)} ± ${(sd(dE) / Math.sqrt(SEEDS)).toFixed(4)}, pull SD ${sd(pulls).toFixed(3)}`);
+    console.log(
+      `[faint red end, E prior, ${SEEDS} seeds] mu - true ${mean(d).toFixed(4)} ± ${(sd(d) / Math.sqrt(SEEDS)).toFixed(4)}, E - true ${mean(dE).toFixed(4)} ± ${(sd(dE) / Math.sqrt(SEEDS)).toFixed(4)}, pull SD ${sd(pulls).toFixed(3)}`,
+    );
     // 4 standard errors: about 0.017 mag here, so the former -0.042 mag fails.
     expect(Math.abs(mean(d))).toBeLessThan((STAT_SIGMAS * sd(d)) / Math.sqrt(SEEDS));
     expect(Math.abs(mean(dE))).toBeLessThan((STAT_SIGMAS * sd(dE)) / Math.sqrt(SEEDS));

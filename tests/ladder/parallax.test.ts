@@ -47,7 +47,14 @@ function gridLocalMaxima(w: number, s: number, lo: number, hi: number, n = 100_0
 
 describe('EDSD posterior mode [reference: Bailer-Jones 2015, PASP 127, 994, the mode cubic]', () => {
   const cases: [number, number][] = [
-    [1, 0.1], [1, 0.5], [0.3, 0.25], [2, 1], [0.05, 0.02], [10, 0.5], [-0.5, 1], [0, 0.3],
+    [1, 0.1],
+    [1, 0.5],
+    [0.3, 0.25],
+    [2, 1],
+    [0.05, 0.02],
+    [10, 0.5],
+    [-0.5, 1],
+    [0, 0.3],
   ];
   it.each(cases)('parallax %f mas, error %f mas: the mode is a root of r^3/L - 2r^2 + (w/s^2) r - 1/s^2', (w, s) => {
     const { modeKpc } = edsdPosteriorMode(w, s, L);
@@ -64,7 +71,12 @@ describe('EDSD posterior mode [reference: Bailer-Jones 2015, PASP 127, 994, the 
   });
 
   it('a non-positive parallax gives exactly one positive root (Descartes: coefficient signs +, -, -, -)', () => {
-    for (const [w, s] of [[0, 0.1], [-0.2, 0.1], [-3, 0.5], [-0.01, 2]]) {
+    for (const [w, s] of [
+      [0, 0.1],
+      [-0.2, 0.1],
+      [-3, 0.5],
+      [-0.01, 2],
+    ]) {
       const roots = edsdCubicPositiveRoots(w, s, L);
       expect(roots).toHaveLength(1);
       // Independent count: sign changes of the cubic on a dense grid.
@@ -121,7 +133,12 @@ describe('EDSD posterior quantiles [reference]', () => {
     expect(relErr(q.q95Kpc, 6.29579362 * L)).toBeLessThan(REL_GRID_QUANTILE);
   });
 
-  it.each([[1, 0.1], [0.4, 0.2], [-0.3, 0.5], [6.31, 2.29]])('parallax %f, error %f: quantiles equal a direct integration of P(r) on a uniform grid', (w, s) => {
+  it.each([
+    [1, 0.1],
+    [0.4, 0.2],
+    [-0.3, 0.5],
+    [6.31, 2.29],
+  ])('parallax %f, error %f: quantiles equal a direct integration of P(r) on a uniform grid', (w, s) => {
     const q = edsdPosteriorSummary(w, s, L);
     const n = 400_000;
     const hi = 60;
@@ -169,10 +186,24 @@ function release(systems: SystemRow[], parallax: ParallaxRow[], cepheids: Cephei
 const sys = (system: string, kind: SystemRow['kind'] = 'cluster'): SystemRow => ({ system, kind, line: 2 });
 let lineNo = 2;
 const star = (system: string, id: string, parallaxMas: number, parallaxErrMas: number): ParallaxRow => ({
-  star: id, system, parallaxMas, parallaxErrMas, line: lineNo++,
+  star: id,
+  system,
+  parallaxMas,
+  parallaxErrMas,
+  line: lineNo++,
 });
 const cepheid = (id: string, system: string): CepheidRow => ({
-  star: id, system, periodDays: 10, mH: 5, mHErr: 0.02, mV: 6, mVErr: 0.02, mI: 5.5, mIErr: 0.02, oh: 0, line: 2,
+  star: id,
+  system,
+  periodDays: 10,
+  mH: 5,
+  mHErr: 0.02,
+  mV: 6,
+  mVErr: 0.02,
+  mI: 5.5,
+  mIErr: 0.02,
+  oh: 0,
+  line: 2,
 });
 const analysis = (over: Partial<AnalysisChoices> = {}): AnalysisChoices => ({ ...DEFAULT_ANALYSIS, ...over });
 
@@ -181,8 +212,12 @@ describe('geometric anchors', () => {
   const rel = release(
     [sys('kestrel'), sys('osprey')],
     [
-      star('kestrel', 'k1', 10.0, 0.1), star('kestrel', 'k2', 10.1, 0.2), star('kestrel', 'k3', 9.9, 0.1),
-      star('osprey', 'o1', 4.0, 0.05), star('osprey', 'o2', 4.6, 0.05), star('osprey', 'o3', 4.3, 0.1),
+      star('kestrel', 'k1', 10.0, 0.1),
+      star('kestrel', 'k2', 10.1, 0.2),
+      star('kestrel', 'k3', 9.9, 0.1),
+      star('osprey', 'o1', 4.0, 0.05),
+      star('osprey', 'o2', 4.6, 0.05),
+      star('osprey', 'o3', 4.3, 0.1),
     ],
   );
   const an = analysis({ parallax_zero_point: -0.03, parallax_zero_point_err: 0.01, parallax_floor: 0.004 });
@@ -249,7 +284,10 @@ describe('geometric anchors', () => {
     expect(res.anchorCovariance[1][0]).toBe(res.anchorCovariance[0][1]);
     expect(relErr(res.anchorCovariance[0][0], a.mu_err ** 2)).toBeLessThan(REL_1E12);
     expect(relErr(res.anchorCovariance[1][1], b.mu_err_stat ** 2 + sz2 * b.dmu_dzp ** 2)).toBeLessThan(REL_1E12);
-    expect(res.anchorStatCovariance).toEqual([[a.mu_err_stat ** 2, 0], [0, b.mu_err_stat ** 2]]);
+    expect(res.anchorStatCovariance).toEqual([
+      [a.mu_err_stat ** 2, 0],
+      [0, b.mu_err_stat ** 2],
+    ]);
   });
 });
 
@@ -287,8 +325,11 @@ describe('stars and field stars', () => {
   const rel = release(
     [sys('wren'), sys('scatter', 'field')],
     [
-      star('wren', 'w1', 3.0, 0.1), star('wren', 'w2', 3.1, 0.1),
-      star('scatter', 'cep1', 0.5, 0.05), star('scatter', 'cep2', -0.1, 0.2), star('scatter', 'plain', 0.05, 0.1),
+      star('wren', 'w1', 3.0, 0.1),
+      star('wren', 'w2', 3.1, 0.1),
+      star('scatter', 'cep1', 0.5, 0.05),
+      star('scatter', 'cep2', -0.1, 0.2),
+      star('scatter', 'plain', 0.05, 0.1),
     ],
     [cepheid('cep1', 'scatter'), cepheid('cep2', 'scatter'), cepheid('w1', 'wren')],
   );

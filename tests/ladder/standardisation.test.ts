@@ -55,10 +55,11 @@ function solve3(a: number[][], b: number[]): number[] {
   for (let c = 0; c < 3; c++) {
     const p = m[c][c];
     for (let j = c; j < 4; j++) m[c][j] /= p;
-    for (let r = 0; r < 3; r++) if (r !== c) {
-      const f = m[r][c];
-      for (let j = c; j < 4; j++) m[r][j] -= f * m[c][j];
-    }
+    for (let r = 0; r < 3; r++)
+      if (r !== c) {
+        const f = m[r][c];
+        for (let j = c; j < 4; j++) m[r][j] -= f * m[c][j];
+      }
   }
   return m.map((r) => r[3]);
 }

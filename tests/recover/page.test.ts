@@ -38,13 +38,22 @@ const number = (text: string) => Number(text.replace(/\u2212/g, '-'));
 beforeAll(async () => {
   mkdirSync(releases);
   for (const id of ['2026.2', '2026.3', '2026.4']) cpSync(join(RELEASES, id), join(releases, id), { recursive: true });
-  for (const [id, seeds] of [['2026.3', '6'], ['2026.4', '3']] as const) {
+  for (const [id, seeds] of [
+    ['2026.3', '6'],
+    ['2026.4', '3'],
+  ] as const) {
     const c = capture();
     await main(['recover', join(releases, id), '--seeds', seeds, '--workers', '2', '--out', join(tmp, `${id}.jsonl`)], c.io);
     const file = join(releases, id, 'recovery.json');
     summaries[id] = parseRecoverySummary(file, readFileSync(file, 'utf8'));
   }
-  built = await buildInTemp('rungbook-recover-site-', { releasesDir: releases, base: BASE, site: 'https://reports.example.org', calibrate: calibrateReleaseDir, compare: null });
+  built = await buildInTemp('rungbook-recover-site-', {
+    releasesDir: releases,
+    base: BASE,
+    site: 'https://reports.example.org',
+    calibrate: calibrateReleaseDir,
+    compare: null,
+  });
 }, 600_000);
 
 afterAll(async () => {
@@ -105,7 +114,12 @@ describe('the recovery page', () => {
     const u = capture();
     expect(await main(['unblind', copy, '--by', 'Test', '--key-file', writeKeyFile(tmp, 'k.txt', DEMO_KEY), '--date', '2027-01-01'], u.io)).toBe(0);
     const trueH0 = releaseAndTruth(copy, 'test').truthResults.h0!.value;
-    const files = ['releases/2026.4/recovery/index.html', 'releases/2026.4/figures/recovery-pulls.svg', 'releases/2026.4/figures/recovery-pulls.csv', 'releases/2026.4/figures/recovery-pulls/index.html'];
+    const files = [
+      'releases/2026.4/recovery/index.html',
+      'releases/2026.4/figures/recovery-pulls.svg',
+      'releases/2026.4/figures/recovery-pulls.csv',
+      'releases/2026.4/figures/recovery-pulls/index.html',
+    ];
     // 2 to 4 decimals: one decimal is how the page writes coverages in per cent, where any value may occur
     for (const f of files) {
       const t = readFileSync(join(built.dist, f), 'utf8');

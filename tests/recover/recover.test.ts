@@ -69,7 +69,11 @@ describe('recover on demo release 2026.3, 200 seeds', () => {
   }, 600_000);
 
   it("has the summary's numbers equal to those computed here from the JSON Lines", () => {
-    const rows = seedsText.trimEnd().split('\n').slice(1).map((r) => JSON.parse(r));
+    const rows = seedsText
+      .trimEnd()
+      .split('\n')
+      .slice(1)
+      .map((r) => JSON.parse(r));
     const b = summary.bounds;
     for (const q of summary.quantities) {
       // independent: collect pulls, recompute each pull from estimate, truth and error too
@@ -119,7 +123,7 @@ describe('recover on demo release 2026.3, 200 seeds', () => {
       const q = summary.quantities.find((x) => x.key === key)!;
       expect(Math.abs(q.mean.value)).toBeLessThan(0.2 + 2 / Math.sqrt(200));
       expect(q.sd.value).toBeGreaterThan(0.85 - 2 / Math.sqrt(2 * 199));
-      expect(q.sd.value).toBeLessThan(1.15 + 2 * 1.15 / Math.sqrt(2 * 199));
+      expect(q.sd.value).toBeLessThan(1.15 + (2 * 1.15) / Math.sqrt(2 * 199));
       expect(q.verdict).not.toBe('fail');
     }
   });
@@ -137,7 +141,12 @@ describe('shards', () => {
       shardFiles.push(out);
     }
     // the slices are disjoint and together complete
-    const seedsOf = (f: string) => readFileSync(f, 'utf8').trimEnd().split('\n').slice(1).map((r) => JSON.parse(r).seed as number);
+    const seedsOf = (f: string) =>
+      readFileSync(f, 'utf8')
+        .trimEnd()
+        .split('\n')
+        .slice(1)
+        .map((r) => JSON.parse(r).seed as number);
     const all = shardFiles.flatMap(seedsOf);
     expect(all).toEqual(Array.from({ length: 10 }, (_, i) => 41 + i));
     const merged = join(tmp, 'merged.json');

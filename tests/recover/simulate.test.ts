@@ -192,12 +192,24 @@ describe('seeds files', () => {
   });
 
   it('refuse a shard cut short, a wrong seed, or a shard of another run, naming file and line', () => {
-    const cut = () => mergeSeedFiles([{ file: 'a', text: file(header(1, 2), [1]) }, { file: 'b', text: file(header(2, 2), [3, 4]) }]);
+    const cut = () =>
+      mergeSeedFiles([
+        { file: 'a', text: file(header(1, 2), [1]) },
+        { file: 'b', text: file(header(2, 2), [3, 4]) },
+      ]);
     expect(cut).toThrow(InputError);
     expect(cut).toThrow(/a:2: shard 1\/2 is incomplete/);
-    const wrong = () => mergeSeedFiles([{ file: 'a', text: file(header(1, 2), [1, 3]) }, { file: 'b', text: file(header(2, 2), [3, 4]) }]);
+    const wrong = () =>
+      mergeSeedFiles([
+        { file: 'a', text: file(header(1, 2), [1, 3]) },
+        { file: 'b', text: file(header(2, 2), [3, 4]) },
+      ]);
     expect(wrong).toThrow(/a:3: unexpected seed/);
-    const other = () => mergeSeedFiles([{ file: 'a', text: file(header(1, 2), [1, 2]) }, { file: 'b', text: file(header(2, 2, { code_version: 'w' }), [3, 4]) }]);
+    const other = () =>
+      mergeSeedFiles([
+        { file: 'a', text: file(header(1, 2), [1, 2]) },
+        { file: 'b', text: file(header(2, 2, { code_version: 'w' }), [3, 4]) },
+      ]);
     expect(other).toThrow(/b:1: the file belongs to another run than a \(its "code_version" differs\)/);
     const notJson = () => mergeSeedFiles([{ file: 'a', text: `${headerLine(header(1, 1))}{"seed": 1, "quan` }]);
     expect(notJson).toThrow(/a:2: the line is not JSON/);
@@ -206,7 +218,13 @@ describe('seeds files', () => {
 
 describe('the command line', () => {
   it('refuses bad options with a usage error (exit 2)', async () => {
-    for (const args of [[DEMO], [DEMO, '--seeds', '0'], [DEMO, '--seeds', '5', '--shard', '4/3'], [DEMO, '--seeds', '5', '--shard', '1/3', '--summary', 'x.json'], ['--merge']]) {
+    for (const args of [
+      [DEMO],
+      [DEMO, '--seeds', '0'],
+      [DEMO, '--seeds', '5', '--shard', '4/3'],
+      [DEMO, '--seeds', '5', '--shard', '1/3', '--summary', 'x.json'],
+      ['--merge'],
+    ]) {
       const c = capture();
       expect(await main(['recover', ...args], c.io), args.join(' ')).toBe(2);
       expect(c.err()).toMatch(/rungbook recover: /);

@@ -51,15 +51,7 @@ const bounds = (n: number) => ({
 
 /** Every quantity the generated releases publish with an error (the test also checks no other appears). */
 const PARAMETERS = ['H0', 'M_W', 'b_W', 'Z_W', 'M_B', 'a_B', 'delta_M_host', 'alpha', 'beta', 'sigma_int_sn', 'parallax_zero_point'];
-const DISTANCES = [
-  'mu (anchor)',
-  'mu own rung (anchor)',
-  'mu (ms_target)',
-  'mu own rung (ms_target)',
-  'mu (galaxy)',
-  'mu own rung (galaxy)',
-  'mu (sn_host)',
-];
+const DISTANCES = ['mu (anchor)', 'mu own rung (anchor)', 'mu (ms_target)', 'mu own rung (ms_target)', 'mu (galaxy)', 'mu own rung (galaxy)', 'mu (sn_host)'];
 
 /**
  * Known failures, excused by name with their measured numbers and the reason. (Until the main-sequence rung
@@ -71,7 +63,7 @@ const KNOWN_FAILING: Record<string, string> = {
   sigma_int_cepheid:
     'its error is about 10 % small: over these 1000 seeds mean pull +0.008, SD 1.098, 1-sigma coverage 0.634, ' +
     '2-sigma 0.927 (SD and 2-sigma outside the bounds); without blends, 400 seeds: SD 1.063 +- 0.038, mean -0.15 +- 0.05. ' +
-    'The moment estimator\'s Gaussian-theory spread leaves out the uncertainty of the blend memberships and of the ' +
+    "The moment estimator's Gaussian-theory spread leaves out the uncertainty of the blend memberships and of the " +
     'leverage correction; a fourth-moment sandwich made it worse (SD 1.16) and was not kept',
 };
 
@@ -120,13 +112,16 @@ describe(`recovery over ${SEED_COUNT} seeds with blended Cepheids`, () => {
     });
   }
 
-  it('the table the method notes show (content/methods/measured/recovery.json) is exactly this run\'s', () => {
+  it("the table the method notes show (content/methods/measured/recovery.json) is exactly this run's", () => {
     const m = readMeasured();
     const stale = 'the committed table is not what this run measures: run `npm run recovery:campaign -- --write` and commit it';
     expect(m.seeds, stale).toEqual({ base: SEED_BASE, count: SEED_COUNT });
     expect(m.blend_fraction, stale).toBe(RECOVERY_BLEND_FRACTION);
     const measured = [...summary, ...pooled];
-    expect(m.quantities.map((q) => q.name), stale).toEqual(measured.map((q) => q.name));
+    expect(
+      m.quantities.map((q) => q.name),
+      stale,
+    ).toEqual(measured.map((q) => q.name));
     for (const [i, q] of m.quantities.entries()) {
       const now = measured[i]!;
       expect(q.n, `${q.name}: ${stale}`).toBe(now.n);
@@ -134,7 +129,7 @@ describe(`recovery over ${SEED_COUNT} seeds with blended Cepheids`, () => {
     }
   });
 
-  it('the intrinsic scatters\' asymmetric 68 % intervals cover the truth in [0.63, 0.73] of the seeds', () => {
+  it("the intrinsic scatters' asymmetric 68 % intervals cover the truth in [0.63, 0.73] of the seeds", () => {
     expect(intervals.map((i) => i.name).sort()).toEqual(['sigma_int_cepheid', 'sigma_int_sn']);
     for (const i of intervals) {
       expect(i.n, i.name).toBe(SEED_COUNT);

@@ -28,8 +28,10 @@ export function globalFailures(s: PullSummary): string[] {
   const b = GLOBAL_BOUNDS;
   if (!(Math.abs(s.mean) < b.mean)) out.push(`mean pull ${s.mean.toFixed(3)} (|mean| < ${b.mean})`);
   if (!(s.sd >= b.sd[0] && s.sd <= b.sd[1])) out.push(`SD ${s.sd.toFixed(3)} (in [${b.sd.join(', ')}])`);
-  if (!(s.coverage1 >= b.coverage1[0] && s.coverage1 <= b.coverage1[1])) out.push(`1-sigma coverage ${s.coverage1.toFixed(3)} (in [${b.coverage1.join(', ')}])`);
-  if (!(s.coverage2 >= b.coverage2[0] && s.coverage2 <= b.coverage2[1])) out.push(`2-sigma coverage ${s.coverage2.toFixed(3)} (in [${b.coverage2.join(', ')}])`);
+  if (!(s.coverage1 >= b.coverage1[0] && s.coverage1 <= b.coverage1[1]))
+    out.push(`1-sigma coverage ${s.coverage1.toFixed(3)} (in [${b.coverage1.join(', ')}])`);
+  if (!(s.coverage2 >= b.coverage2[0] && s.coverage2 <= b.coverage2[1]))
+    out.push(`2-sigma coverage ${s.coverage2.toFixed(3)} (in [${b.coverage2.join(', ')}])`);
   return out;
 }
 

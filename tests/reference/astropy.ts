@@ -17,8 +17,7 @@ const HERE = dirname(fileURLToPath(import.meta.url));
 const ROOT = join(HERE, '..', '..');
 const SCRIPT = join(HERE, 'astropy_luminosity_distance.py');
 const PYTHON_CACHE_FILE = join(ROOT, 'node_modules', '.cache', 'rungbook-python');
-const PROBE =
-  'from astropy.cosmology import FlatLambdaCDM; FlatLambdaCDM(H0=70, Om0=0.3, Tcmb0=0).luminosity_distance(0.1)';
+const PROBE = 'from astropy.cosmology import FlatLambdaCDM; FlatLambdaCDM(H0=70, Om0=0.3, Tcmb0=0).luminosity_distance(0.1)';
 
 export interface AstropyLuminosityDistances {
   astropyVersion: string;

@@ -14,12 +14,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { C_KM_S } from '../../src/constants/index.ts';
-import {
-  hubbleFlowLogFactor,
-  kinematicLuminosityDistanceMpc,
-  kinematicSeriesFactor,
-  peculiarVelocityModulusErrorMag,
-} from '../../src/ladder/kinematics.ts';
+import { hubbleFlowLogFactor, kinematicLuminosityDistanceMpc, kinematicSeriesFactor, peculiarVelocityModulusErrorMag } from '../../src/ladder/kinematics.ts';
 import { EXACT_DEFINITION, HALF_UNIT_3RD_DECIMAL, REL_1E12, REL_1E6, absErr, relErr } from '../tolerances.ts';
 import { astropyFlatLcdmLuminosityDistances } from './astropy.ts';
 

@@ -50,7 +50,10 @@ function numpySolve(problem: GlsProblem): { n: number; q: number[]; cov: number[
     try {
       return JSON.parse(execFileSync('python3', [SCRIPT, file], { encoding: 'utf8', maxBuffer: 64 << 20 }));
     } catch (e) {
-      throw new Error(`python3 with numpy is required for this reference check (Debian python3-numpy, installed by scripts/test-setup.mjs): ${(e as Error).message}`, { cause: e });
+      throw new Error(
+        `python3 with numpy is required for this reference check (Debian python3-numpy, installed by scripts/test-setup.mjs): ${(e as Error).message}`,
+        { cause: e },
+      );
     }
   } finally {
     rmSync(dir, { recursive: true, force: true });

@@ -84,7 +84,11 @@ describe('rung registry: every rung has all of its parts', () => {
   }
 
   it('every table is read by some rung', () => {
-    for (const t of TABLE_NAMES) expect(RUNGS.some((r) => r.tables.includes(t)), t).toBe(true);
+    for (const t of TABLE_NAMES)
+      expect(
+        RUNGS.some((r) => r.tables.includes(t)),
+        t,
+      ).toBe(true);
   });
 
   it('the blinded parameters are the Hubble-flow intercept and what the calibrators tie to it (M_B, a_B)', () => {

@@ -61,11 +61,25 @@ describe('rungbook build: failures', () => {
     const c = capture();
     const bad = async (dir: string) => {
       throw new InputError([
-        { code: 'not-finite', file: `${dir}/parallax.ecsv`, line: 14, column: 'parallax', expected: 'a finite number', found: '"nan"', message: 'value is not a number' },
+        {
+          code: 'not-finite',
+          file: `${dir}/parallax.ecsv`,
+          line: 14,
+          column: 'parallax',
+          expected: 'a finite number',
+          found: '"nan"',
+          message: 'value is not a number',
+        },
         { code: 'unknown-system', file: `${dir}/cepheids.ecsv`, line: 9, column: 'system', message: 'system "Nowhere" is not in systems.ecsv' },
       ]);
     };
-    const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist')], { ...c.io, calibrate: bad, compare: null, workDir: join(tmp, 'work'), cacheDir: join(tmp, 'cache') });
+    const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist')], {
+      ...c.io,
+      calibrate: bad,
+      compare: null,
+      workDir: join(tmp, 'work'),
+      cacheDir: join(tmp, 'cache'),
+    });
     expect(code).toBe(1);
     const err = c.err.join('');
     expect(err).toContain('2025.4/parallax.ecsv:14: column "parallax": value is not a number; expected a finite number, found "nan"');
@@ -82,7 +96,8 @@ describe('rungbook build: a full build', () => {
     const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist'), '--site', 'https://reports.example.org'], {
       ...c.io,
       env: { RUNGBOOK_BASE: '/team/h0' },
-      calibrate: calibrateFixture, compare: null,
+      calibrate: calibrateFixture,
+      compare: null,
       workDir: join(tmp, 'work'),
       cacheDir: join(tmp, 'cache'),
     });
@@ -100,7 +115,8 @@ describe('rungbook build: a full build', () => {
     const c = capture();
     const code = await runBuild(['--releases', FIXTURE_RELEASES, '--out', join(tmp, 'dist'), '--progress'], {
       ...c.io,
-      calibrate: calibrateFixture, compare: null,
+      calibrate: calibrateFixture,
+      compare: null,
       workDir: join(tmp, 'work'),
       cacheDir: join(tmp, 'cache'),
     });

@@ -63,7 +63,10 @@ beforeAll(async () => {
   const cache = join(tmp, 'checkout', '.cache', 'results');
   together.push(...(await Promise.all([build(a, join(tmp, 'dist-a'), work, cache), build(b, join(tmp, 'dist-b'), work, cache)])));
   // Each alone, with folders of its own.
-  for (const [set, name] of [[a, 'a'], [b, 'b']] as const) {
+  for (const [set, name] of [
+    [a, 'a'],
+    [b, 'b'],
+  ] as const) {
     const alone = await build(set, join(tmp, `alone-${name}`), join(tmp, `work-${name}`), join(tmp, `cache-${name}`));
     expect(alone.code, alone.stderr).toBe(0);
   }
@@ -75,7 +78,10 @@ describe('two builds at once in one checkout', () => {
     const waited = together.filter((r) => r.stderr.includes('rungbook build: another build'));
     expect(waited).toHaveLength(1);
     expect(waited[0]!.stderr).toMatch(/^rungbook build: another build \(process \d+\) is using .*\/checkout\/\.build; waiting for it to finish\n/);
-    expect(together.map((r) => r.stdout.split('\n')[0])).toEqual([`Built 1 release (2025.4) into ${join(tmp, 'dist-a')}`, `Built 1 release (2026.2) into ${join(tmp, 'dist-b')}`]);
+    expect(together.map((r) => r.stdout.split('\n')[0])).toEqual([
+      `Built 1 release (2025.4) into ${join(tmp, 'dist-a')}`,
+      `Built 1 release (2026.2) into ${join(tmp, 'dist-b')}`,
+    ]);
   });
 
   it('gives each the output it gives alone, byte for byte', () => {

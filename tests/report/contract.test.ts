@@ -88,7 +88,10 @@ function routeOf(path: string): PageRoute | null {
 describe('routes and page files', () => {
   it('names exactly the pages under site/pages (one index.astro per route template)', () => {
     const pageFiles = files(PAGES_DIR);
-    expect(pageFiles.every((f) => f.endsWith('index.astro')), pageFiles.join(', ')).toBe(true);
+    expect(
+      pageFiles.every((f) => f.endsWith('index.astro')),
+      pageFiles.join(', '),
+    ).toBe(true);
     const templates = pageFiles.map((f) => f.replace(/index\.astro$/, ''));
     expect(templates.sort()).toEqual(Object.values(PAGE_ROUTES).sort());
   });
@@ -129,7 +132,17 @@ describe('routes and page files', () => {
     ];
     for (const p of used) expect(routeOf(p), p).not.toBeNull();
     // Each release page named in its navigation is the route of that name.
-    expect(releasePages(id).map((p) => routeOf(p.path))).toEqual(['release', ...RUNG_PAGES.map(() => 'rung'), 'globalFit', 'errorBudget', 'variants', 'systems', 'data', 'compare', 'figures']);
+    expect(releasePages(id).map((p) => routeOf(p.path))).toEqual([
+      'release',
+      ...RUNG_PAGES.map(() => 'rung'),
+      'globalFit',
+      'errorBudget',
+      'variants',
+      'systems',
+      'data',
+      'compare',
+      'figures',
+    ]);
     expect(routeOf(recoveryPage(id).path)).toBe('recovery');
     // Files are not pages.
     expect(routeOf(figureFilePath(releaseFiguresFolder(id), 'ladder-diagram', 'svg'))).toBeNull();
@@ -142,7 +155,9 @@ describe('routes and page files', () => {
     expect(withBase('/team/h0/', 'releases/2026.3/')).toBe('/team/h0/releases/2026.3/');
     expect(withBase('team/h0', '/releases/')).toBe('/team/h0/releases/');
     expect(withBase('/', '')).toBe('/');
-    expect(absoluteUrl('https://ladder.example.org', 'team/h0', 'releases/2026.3/compare/')).toBe('https://ladder.example.org/team/h0/releases/2026.3/compare/');
+    expect(absoluteUrl('https://ladder.example.org', 'team/h0', 'releases/2026.3/compare/')).toBe(
+      'https://ladder.example.org/team/h0/releases/2026.3/compare/',
+    );
     // The comparison's links are the report's routes under the same base.
     const links = buildLinks('https://ladder.example.org', 'team/h0', '2026.2', '2026.3', '2026.2');
     expect(links.page).toBe('https://ladder.example.org/team/h0/releases/2026.3/compare/');
@@ -177,7 +192,15 @@ describe('routes and a built report', () => {
   const generatedFiles = () => {
     const gen = join(built.workDir, 'gen');
     const schemaOf = (f: string) =>
-      f === 'data/site.json' ? siteDataSchema : f.startsWith('data/releases/') ? releaseDataSchema : f.startsWith('data/systems/') ? systemPageFileSchema : f.startsWith('prose/') ? proseFileSchema : null;
+      f === 'data/site.json'
+        ? siteDataSchema
+        : f.startsWith('data/releases/')
+          ? releaseDataSchema
+          : f.startsWith('data/systems/')
+            ? systemPageFileSchema
+            : f.startsWith('prose/')
+              ? proseFileSchema
+              : null;
     return files(gen)
       .filter((f) => f.endsWith('.json') && (f.startsWith('data/') || f.startsWith('prose/')))
       .map((f) => ({ file: f, schema: schemaOf(f), value: JSON.parse(readFileSync(join(gen, f), 'utf8')) as unknown }));
@@ -186,7 +209,12 @@ describe('routes and a built report', () => {
   it('writes only page data that passes the strict schema the site loads it with', () => {
     const all = generatedFiles();
     // Every kind of file is there: the site's list, each release, its system pages and its prose.
-    expect(all.filter((x) => x.file.startsWith('data/releases/')).map((x) => x.file).sort()).toEqual(FIXTURE_IDS.map((id) => `data/releases/${id}.json`).sort());
+    expect(
+      all
+        .filter((x) => x.file.startsWith('data/releases/'))
+        .map((x) => x.file)
+        .sort(),
+    ).toEqual(FIXTURE_IDS.map((id) => `data/releases/${id}.json`).sort());
     expect(all.some((x) => x.file === 'data/site.json')).toBe(true);
     expect(all.filter((x) => x.file.startsWith('data/systems/')).length).toBeGreaterThan(0);
     expect(all.filter((x) => x.file.startsWith('prose/')).length).toBeGreaterThanOrEqual(FIXTURE_IDS.length);
@@ -231,13 +259,17 @@ describe('routes and a built report', () => {
 });
 
 describe('one contract in site/', () => {
-  const siteFiles = files(join(REPO_ROOT, 'site')).map((f) => join(REPO_ROOT, 'site', f)).filter((f) => /\.(astro|ts)$/.test(f));
+  const siteFiles = files(join(REPO_ROOT, 'site'))
+    .map((f) => join(REPO_ROOT, 'site', f))
+    .filter((f) => /\.(astro|ts)$/.test(f));
 
   it('loads the generated collections with the schemas of src/layout/pageSchema.ts, strict all the way down', async () => {
     // site/content.config.ts itself, with Astro's two helpers standing in (they only wrap their argument).
     // (Imported by a computed path: tsc checks site/ with its own configuration, `astro check`.)
     const configPath = '../../site/content.config.ts';
-    const { collections } = (await import(/* @vite-ignore */ configPath)) as { collections: Record<'releases' | 'site' | 'prose' | 'systems', { schema: unknown }> };
+    const { collections } = (await import(/* @vite-ignore */ configPath)) as {
+      collections: Record<'releases' | 'site' | 'prose' | 'systems', { schema: unknown }>;
+    };
     expect(collections.releases.schema).toBe(releaseDataSchema);
     expect(collections.site.schema).toBe(siteDataSchema);
     expect(collections.prose.schema).toBe(proseFileSchema);
@@ -262,8 +294,10 @@ describe('one contract in site/', () => {
       const code = readFileSync(f, 'utf8')
         .replace(/\/\*[\s\S]*?\*\//g, '')
         .replace(/^\s*\/\/.*$/gm, '');
-      for (const m of code.matchAll(/\bas\s+(?:unknown|[A-Z][A-Za-z]*(?:Data|View|Ref|Link|File)\b|\{)/g)) problems.push(`${relative(REPO_ROOT, f)}: cast "${m[0]}"`);
-      for (const m of code.matchAll(/['`](?:releases|latest|history|figures)\/[^'`]*['`]/g)) problems.push(`${relative(REPO_ROOT, f)}: path written by hand ${m[0]}`);
+      for (const m of code.matchAll(/\bas\s+(?:unknown|[A-Z][A-Za-z]*(?:Data|View|Ref|Link|File)\b|\{)/g))
+        problems.push(`${relative(REPO_ROOT, f)}: cast "${m[0]}"`);
+      for (const m of code.matchAll(/['`](?:releases|latest|history|figures)\/[^'`]*['`]/g))
+        problems.push(`${relative(REPO_ROOT, f)}: path written by hand ${m[0]}`);
     }
     expect(problems).toEqual([]);
   });

@@ -44,7 +44,10 @@ beforeAll(async () => {
   const releases = join(tmp, 'releases');
   for (const id of ['2026.3', BLINDED]) cpSync(join(DEMO_RELEASES, id), join(releases, id), { recursive: true });
   const c = capture();
-  const code = await main(['unblind', join(releases, BLINDED), '--by', 'Demo Reader', '--key-file', writeKeyFile(tmp, 'demo-key.txt', DEMO_KEY), '--date', '2027-01-15'], c.io);
+  const code = await main(
+    ['unblind', join(releases, BLINDED), '--by', 'Demo Reader', '--key-file', writeKeyFile(tmp, 'demo-key.txt', DEMO_KEY), '--date', '2027-01-15'],
+    c.io,
+  );
   if (code !== 0) throw new Error(`unblind failed: ${c.err()}`);
   [site, unblindedSite, unblinded] = await Promise.all([
     buildDemo({}, join(tmp, 'blinded')),
@@ -129,13 +132,25 @@ describe('the blinded release in the built report', () => {
     // chance matches (a main-sequence star's colour 0.698 did), so on those pages only the four- and
     // five-decimal and full forms are searched.
     const isSystemPage = (f: string) => f.startsWith(`releases/${BLINDED}/systems/`);
-    expect(leaks(files.filter((f) => !isSystemPage(f)), site.dist, tokens)).toEqual([]);
-    expect(leaks(files.filter(isSystemPage), site.dist, tokens.filter((t) => t !== aB.toFixed(3)))).toEqual([]);
+    expect(
+      leaks(
+        files.filter((f) => !isSystemPage(f)),
+        site.dist,
+        tokens,
+      ),
+    ).toEqual([]);
+    expect(
+      leaks(
+        files.filter(isSystemPage),
+        site.dist,
+        tokens.filter((t) => t !== aB.toFixed(3)),
+      ),
+    ).toEqual([]);
     // and the same search finds it in the unblinded copy's downloads
     expect(leaks([`releases/${BLINDED}/downloads/results.json`], unblindedSite.dist, tokens)).not.toEqual([]);
   });
 
-  it('publishes it nowhere in the pages shared by all releases, apart from other releases\' own values', () => {
+  it("publishes it nowhere in the pages shared by all releases, apart from other releases' own values", () => {
     const shared = listFilesSync(site.dist).filter((f) => !f.startsWith('releases/') && !f.startsWith('_astro/') && TEXT_FILE.test(f));
     expect(shared).toContain('index.html');
     expect(shared).toContain('figures/h0-history.csv');
@@ -153,7 +168,10 @@ describe('the blinded release in the built report', () => {
     const unexplained = found.filter((f) => !others.has(f.split(': ')[1]!));
     expect(unexplained).toEqual([]);
     // and the release's own row of the history has no H0
-    const row = site.text('figures/h0-history.csv').split('\n').find((l) => l.startsWith(`${BLINDED},`))!;
+    const row = site
+      .text('figures/h0-history.csv')
+      .split('\n')
+      .find((l) => l.startsWith(`${BLINDED},`))!;
     expect(row.split(',').slice(0, 4)).toEqual([BLINDED, '2026-11-16', 'True', '']);
   });
 

@@ -83,12 +83,14 @@ describe.each(DEMO_PAIRS.filter(([, b]) => b !== '2026.4'))('comparison %s -> %s
   });
 
   it('names the largest contribution in the opening', () => {
-    const moving = d().attribution.filter((e) => e.differs).sort((x, y) => Math.abs(y.delta_h0) - Math.abs(x.delta_h0));
+    const moving = d()
+      .attribution.filter((e) => e.differs)
+      .sort((x, y) => Math.abs(y.delta_h0) - Math.abs(x.delta_h0));
     const opening = doc().querySelector('.memo')!.textContent!;
     expect(opening).toContain(`${GROUP_TITLE[moving[0]!.group]} ${signedText(moving[0]!.delta_h0, 2)}`);
   });
 
-  it('tables a contribution for every group, equal to the engine\'s and adding up to the shift', () => {
+  it("tables a contribution for every group, equal to the engine's and adding up to the shift", () => {
     const rows = tableRows(doc(), 'attribution');
     const total = rows.at(-1)!;
     expect(total[0]).toBe('Total');
@@ -101,10 +103,14 @@ describe.each(DEMO_PAIRS.filter(([, b]) => b !== '2026.4'))('comparison %s -> %s
     expect(pageNumber(total[3]!)).toBeCloseTo(d().h0!.delta!, 3);
   });
 
-  it('lists the ten rows that moved H0 most, in the engine\'s order', () => {
+  it("lists the ten rows that moved H0 most, in the engine's order", () => {
     const rows = tableRows(doc(), 'top-objects');
     expect(rows.length).toBe(Math.min(10, d().top_objects.length));
-    expect(rows.map((r) => r[1])).toEqual(d().top_objects.slice(0, 10).map((o) => o.id));
+    expect(rows.map((r) => r[1])).toEqual(
+      d()
+        .top_objects.slice(0, 10)
+        .map((o) => o.id),
+    );
   });
 
   it('shows every parameter shift, flagging those the engine flags', () => {
@@ -127,8 +133,10 @@ describe.each(DEMO_PAIRS.filter(([, b]) => b !== '2026.4'))('comparison %s -> %s
     }
   });
 
-  it('gives the waterfall\'s CSV the engine\'s contributions', () => {
-    const [head, ...lines] = readFileSync(join(site.dist, `releases/${b}/figures/compare-attribution.csv`), 'utf8').trim().split('\n');
+  it("gives the waterfall's CSV the engine's contributions", () => {
+    const [head, ...lines] = readFileSync(join(site.dist, `releases/${b}/figures/compare-attribution.csv`), 'utf8')
+      .trim()
+      .split('\n');
     const cols = head!.split(',');
     const rows = lines.map((l) => Object.fromEntries(l.split(',').map((v, i) => [cols[i], v])));
     expect(rows.map((r) => r.group)).toEqual(d().attribution.map((e) => e.group));
@@ -153,7 +161,9 @@ describe.each(DEMO_PAIRS.filter(([, b]) => b !== '2026.4'))('comparison %s -> %s
   it('links the rows that moved H0 in the message to their rows on the system pages', () => {
     const shown = doc().getElementById('paste-message')!.textContent!;
     const rowsLine = shown.split('\n').find((l) => l.startsWith('- largest single rows:'));
-    const withSystem = d().top_objects.slice(0, MARKDOWN_OBJECTS_MAX).filter((o) => o.system !== null);
+    const withSystem = d()
+      .top_objects.slice(0, MARKDOWN_OBJECTS_MAX)
+      .filter((o) => o.system !== null);
     if (withSystem.length === 0) return expect(rowsLine === undefined || !rowsLine.includes('/systems/')).toBe(true);
     expect(rowsLine).toBeDefined();
     const links = [...rowsLine!.matchAll(/\]\((https?:\/\/[^)\s]+)\)/g)].map((m) => m[1]!);
@@ -163,9 +173,13 @@ describe.each(DEMO_PAIRS.filter(([, b]) => b !== '2026.4'))('comparison %s -> %s
 });
 
 describe('a rebuild with nothing changed', () => {
-  it('takes every comparison from the cache and writes the same comparison pages', async () => {
-    const again = await buildDemo({ outDir: join(site.tmp, 'dist-again'), cacheDir: site.cacheDir, workDir: join(site.tmp, 'work-again') });
-    expect(again.summary.comparisons).toEqual(DEMO_PAIRS.map(([a, b]) => ({ a, b, cached: true })));
-    for (const [, b] of DEMO_PAIRS) expect(again.text(comparePage(b)), b).toBe(site.text(comparePage(b)));
-  }, DEMO_BUILD_TIMEOUT_MS);
+  it(
+    'takes every comparison from the cache and writes the same comparison pages',
+    async () => {
+      const again = await buildDemo({ outDir: join(site.tmp, 'dist-again'), cacheDir: site.cacheDir, workDir: join(site.tmp, 'work-again') });
+      expect(again.summary.comparisons).toEqual(DEMO_PAIRS.map(([a, b]) => ({ a, b, cached: true })));
+      for (const [, b] of DEMO_PAIRS) expect(again.text(comparePage(b)), b).toBe(site.text(comparePage(b)));
+    },
+    DEMO_BUILD_TIMEOUT_MS,
+  );
 });

@@ -50,7 +50,13 @@ describe('system pages', () => {
     for (const id of IDS) {
       const systems = column(id, 'systems', 'system');
       expect(systems.length).toBeGreaterThan(10);
-      const links = new Set(Array.from(site.doc(`releases/${id}/systems/index.html`).querySelectorAll('#table-systems-index ~ .table-scroll a, section[aria-labelledby="table-systems-index"] a')).map((a) => a.getAttribute('href')));
+      const links = new Set(
+        Array.from(
+          site
+            .doc(`releases/${id}/systems/index.html`)
+            .querySelectorAll('#table-systems-index ~ .table-scroll a, section[aria-labelledby="table-systems-index"] a'),
+        ).map((a) => a.getAttribute('href')),
+      );
       for (const s of systems) {
         // Demo names are plain, so the folder is the name itself (src/layout/anchors.ts).
         expect(existsSync(join(site.dist, systemPage(id, s))), `${id}/${s}`).toBe(true);
@@ -61,7 +67,12 @@ describe('system pages', () => {
 
   it('anchor every object row of the input files on its system’s page', () => {
     for (const id of IDS) {
-      const tables: [string, string][] = [['cepheids', 'star'], ['sn_calibrators', 'sn'], ['parallax', 'star'], ['main_sequence', 'star']];
+      const tables: [string, string][] = [
+        ['cepheids', 'star'],
+        ['sn_calibrators', 'sn'],
+        ['parallax', 'star'],
+        ['main_sequence', 'star'],
+      ];
       let n = 0;
       for (const [table, idCol] of tables) {
         const objects = column(id, table, idCol);
@@ -133,7 +144,9 @@ describe('leave-one-out on the overview', () => {
     for (const id of ['2026.3', '2026.4']) {
       const overview = site.doc(`releases/${id}/index.html`);
       expect(overview.querySelector('#figure-leave-one-out svg')).not.toBeNull();
-      const [head, ...lines] = readFileSync(join(site.dist, `releases/${id}/figures/leave-one-out.csv`), 'utf8').trim().split('\n');
+      const [head, ...lines] = readFileSync(join(site.dist, `releases/${id}/figures/leave-one-out.csv`), 'utf8')
+        .trim()
+        .split('\n');
       const cols = head!.split(',');
       const rows = lines.map((l) => Object.fromEntries(l.split(',').map((v, k) => [cols[k]!, v])));
       expect(rows.map((r) => r.system)).toEqual(column(id, 'systems', 'system'));
@@ -157,7 +170,9 @@ describe('leave-one-out on the overview', () => {
 describe('history across releases', () => {
   it('lists every parameter of every release, and no H0 value of the blinded one', () => {
     const doc = site.doc('history/index.html');
-    const rows = Array.from(doc.querySelectorAll('section[aria-labelledby="table-parameter-history"] tbody tr')).map((tr) => Array.from(tr.children).map((c) => c.textContent!.trim()));
+    const rows = Array.from(doc.querySelectorAll('section[aria-labelledby="table-parameter-history"] tbody tr')).map((tr) =>
+      Array.from(tr.children).map((c) => c.textContent!.trim()),
+    );
     expect(rows.map((r) => r[0]!.replace(/\s.*$/, ''))).toEqual([...IDS]);
     for (const [i, id] of IDS.entries()) {
       const r = results.get(id)!;

@@ -61,7 +61,9 @@ describe('leave-one-out against an independent refit of an edited copy', () => {
       const e = loo.entries.find((x) => x.system === system)!;
       expect(e.error).toBeNull();
       expect(deleted.systems).toBe(1);
-      expect({ parallax: deleted.parallax, main_sequence: deleted.main_sequence, cepheids: deleted.cepheids, sn_calibrators: deleted.sn_calibrators }).toEqual(e.removed);
+      expect({ parallax: deleted.parallax, main_sequence: deleted.main_sequence, cepheids: deleted.cepheids, sn_calibrators: deleted.sn_calibrators }).toEqual(
+        e.removed,
+      );
       const without = await calibrateReleaseDir(dir);
       expect(without.h0).not.toBeNull();
       expect(e.h0).toBe(without.h0!.value);

@@ -136,4 +136,3 @@ export function listFilesSync(dir: string): string[] {
   walk(dir, '');
   return out.sort();
 }
-

@@ -12,7 +12,33 @@ import { notesHtml, proseHtml, summaryHtml } from '../../src/report/prose.ts';
 import { calibrateFixture } from '../fixtures/report/syntheticResults.ts';
 import { FIXTURE_RELEASES } from './fixtureBuild.ts';
 
-const ALLOWED = new Set(['p', 'br', 'hr', 'em', 'strong', 'del', 'code', 'pre', 'blockquote', 'ul', 'ol', 'li', 'a', 'sup', 'h3', 'h4', 'h5', 'h6', 'table', 'thead', 'tbody', 'tr', 'th', 'td', 'section']);
+const ALLOWED = new Set([
+  'p',
+  'br',
+  'hr',
+  'em',
+  'strong',
+  'del',
+  'code',
+  'pre',
+  'blockquote',
+  'ul',
+  'ol',
+  'li',
+  'a',
+  'sup',
+  'h3',
+  'h4',
+  'h5',
+  'h6',
+  'table',
+  'thead',
+  'tbody',
+  'tr',
+  'th',
+  'td',
+  'section',
+]);
 
 function fragment(html: string): DocumentFragment {
   return JSDOM.fragment(html);
@@ -78,7 +104,9 @@ describe('the summary as HTML', () => {
     const f = fragment(summaryHtml(r));
     expect(f.querySelectorAll('.katex').length).toBeGreaterThanOrEqual(2);
     expect(Array.from(f.querySelectorAll('annotation')).map((a) => a.textContent)).toContainEqual(expect.stringMatching(/^H_0 = \d+\.\d+ \\pm /));
-    const outside = Array.from(f.querySelectorAll('*')).filter((e) => !e.closest('.katex') && !ALLOWED.has(e.tagName.toLowerCase()) && !e.classList.contains('katex'));
+    const outside = Array.from(f.querySelectorAll('*')).filter(
+      (e) => !e.closest('.katex') && !ALLOWED.has(e.tagName.toLowerCase()) && !e.classList.contains('katex'),
+    );
     expect(outside.map((e) => e.tagName)).toEqual([]);
     expect(f.querySelectorAll('script, [onclick], [onerror]').length).toBe(0);
   });

@@ -120,7 +120,8 @@ describe('math', () => {
   it('leaves no raw $$ and renders KaTeX on every rung page and in the summaries', async () => {
     for await (const f of pages()) expect(html(f).includes('$$'), f).toBe(false);
     for (const id of FIXTURE_IDS) {
-      for (const r of RUNG_PAGES) expect(doc(`releases/${id}/${r.slug}/index.html`).querySelectorAll('.method .katex').length, `${id}/${r.slug}`).toBeGreaterThan(0);
+      for (const r of RUNG_PAGES)
+        expect(doc(`releases/${id}/${r.slug}/index.html`).querySelectorAll('.method .katex').length, `${id}/${r.slug}`).toBeGreaterThan(0);
       expect(doc(`releases/${id}/index.html`).querySelectorAll('.prose .katex').length).toBeGreaterThan(0);
     }
   });
@@ -156,7 +157,11 @@ describe('figures', () => {
   });
 
   it('keeps the same figure ids in every release that reaches the rung', () => {
-    const ids = (id: string) => listFilesSync(join(first.dist, 'releases', id, 'figures')).filter((f) => f.endsWith('.svg')).map((f) => f.slice(0, -4)).sort();
+    const ids = (id: string) =>
+      listFilesSync(join(first.dist, 'releases', id, 'figures'))
+        .filter((f) => f.endsWith('.svg'))
+        .map((f) => f.slice(0, -4))
+        .sort();
     expect(ids('2026.1')).toEqual(RELEASE_FIGURES.map((f) => f.id).sort());
     expect(ids('2026.2')).toEqual(ids('2026.1'));
   });
@@ -206,13 +211,18 @@ describe('escaping', () => {
       // The only JavaScript is the site's own bundled enhancement files (sortable tables, figures you
       // can hover), loaded from the site with no inline code: any other script element would be injected.
       for (const script of Array.from(d.querySelectorAll('script'))) {
-        expect(script.getAttribute('src') ?? '', p).toMatch(new RegExp(`^${BASE.replace(/[/.]/g, '\\$&')}_astro/(DataTable|Figure)\\.astro_astro_type_script_index_0_lang\\.[\\w-]+\\.js$`));
+        expect(script.getAttribute('src') ?? '', p).toMatch(
+          new RegExp(`^${BASE.replace(/[/.]/g, '\\$&')}_astro/(DataTable|Figure)\\.astro_astro_type_script_index_0_lang\\.[\\w-]+\\.js$`),
+        );
         expect(script.textContent, p).toBe('');
       }
       const handlers = Array.from(d.querySelectorAll('*')).flatMap((e) => e.getAttributeNames().filter((a) => a.startsWith('on')));
       expect(handlers, p).toEqual([]);
       const hrefs = Array.from(d.querySelectorAll('[href]')).map((e) => e.getAttribute('href')!.trim().toLowerCase());
-      expect(hrefs.filter((h) => h.startsWith('javascript:') || h.startsWith('data:text')), p).toEqual([]);
+      expect(
+        hrefs.filter((h) => h.startsWith('javascript:') || h.startsWith('data:text')),
+        p,
+      ).toEqual([]);
     }
     const overview = doc('releases/2026.1/index.html');
     // The failed check's detail carries the hostile system name and must read back unchanged.
@@ -224,7 +234,9 @@ describe('escaping', () => {
     expect(notes.querySelectorAll('.katex').length).toBe(0);
     expect(notes.querySelector('td code')?.textContent).toBe('code {x}');
     const ms = doc('releases/2026.1/main-sequence/index.html');
-    expect(Array.from(ms.querySelectorAll('section[aria-labelledby="table-targets"] th[scope="row"]')).map((e) => e.textContent?.trim())).toContain(HOSTILE_NAME);
+    expect(Array.from(ms.querySelectorAll('section[aria-labelledby="table-targets"] th[scope="row"]')).map((e) => e.textContent?.trim())).toContain(
+      HOSTILE_NAME,
+    );
     const svg = readFileSync(join(first.dist, 'releases/2026.1/figures/ms-targets.svg'), 'utf8');
     expect(svg).toContain('&lt;script&gt;');
     expect(svg).not.toContain('<script');
@@ -240,7 +252,9 @@ describe('blinding', () => {
     const item = Array.from(home.querySelectorAll('.release-list li')).find((li) => li.querySelector('.release-id')?.textContent === '2026.2')!;
     expect(item.querySelector('.release-h0')?.textContent).toMatch(/blinded/);
     expect(item.querySelector('.release-h0')?.textContent).not.toMatch(/\d\d\.\d/);
-    const history = readFileSync(join(first.dist, 'figures/h0-history.csv'), 'utf8').split('\n').find((l) => l.startsWith('2026.2,'))!;
+    const history = readFileSync(join(first.dist, 'figures/h0-history.csv'), 'utf8')
+      .split('\n')
+      .find((l) => l.startsWith('2026.2,'))!;
     // release,date,blinded,h0,... : the h0 cell is empty for the blinded release.
     expect(history.split(',').slice(0, 4)).toEqual(['2026.2', '2026-05-30', 'True', '']);
     const sup = doc('releases/2026.2/supernovae/index.html');
@@ -263,7 +277,9 @@ describe('data & provenance', () => {
     const sha = results.provenance.inputs[0].sha256;
     expect(d.body.textContent).toContain(sha);
     // Defaults are marked: the fixture sets only parallax_floor and clip_sigma.
-    const defaults = Array.from(d.querySelectorAll('section[aria-labelledby="table-analysis"] tr.row-default th')).map((th) => th.textContent?.trim().replace(/\s*default$/, ''));
+    const defaults = Array.from(d.querySelectorAll('section[aria-labelledby="table-analysis"] tr.row-default th')).map((th) =>
+      th.textContent?.trim().replace(/\s*default$/, ''),
+    );
     expect(defaults).not.toContain('parallax_floor');
     expect(defaults).toContain('r_v');
   });
@@ -301,56 +317,79 @@ describe('rebuilds', () => {
     expect(differ).toEqual([]);
   });
 
-  it('reuses cached results and generated files when nothing changed, with the same output', async () => {
-    let calls = 0;
-    const third = await buildFixture(
-      {
-        outDir: second.dist,
-        workDir: second.workDir,
-        cacheDir: second.cacheDir,
-        calibrate: async (dir) => {
-          calls += 1;
-          return calibrateFixture(dir);
+  it(
+    'reuses cached results and generated files when nothing changed, with the same output',
+    async () => {
+      let calls = 0;
+      const third = await buildFixture(
+        {
+          outDir: second.dist,
+          workDir: second.workDir,
+          cacheDir: second.cacheDir,
+          calibrate: async (dir) => {
+            calls += 1;
+            return calibrateFixture(dir);
+          },
         },
-      },
-      second.tmp,
-    );
-    expect(calls).toBe(0);
-    expect(third.summary.releases.map((r) => [r.cached, r.regenerated])).toEqual(FIXTURE_IDS.map(() => [true, false]));
-    const differ = listFilesSync(first.dist).filter((f) => !readFileSync(join(first.dist, f)).equals(readFileSync(join(second.dist, f))));
-    expect(differ).toEqual([]);
-  }, BUILD_TIMEOUT_MS);
+        second.tmp,
+      );
+      expect(calls).toBe(0);
+      expect(third.summary.releases.map((r) => [r.cached, r.regenerated])).toEqual(FIXTURE_IDS.map(() => [true, false]));
+      const differ = listFilesSync(first.dist).filter((f) => !readFileSync(join(first.dist, f)).equals(readFileSync(join(second.dist, f))));
+      expect(differ).toEqual([]);
+    },
+    BUILD_TIMEOUT_MS,
+  );
 
-  it('leaves the previous site untouched when a build fails', async () => {
-    const before = listFilesSync(second.dist);
-    const index = await readFile(join(second.dist, 'index.html'));
-    // A calibration that fails.
-    await expect(
-      buildFixture({ outDir: second.dist, workDir: second.workDir, cacheDir: null, calibrate: async () => { throw new Error('fixture: calibration refused'); } }, second.tmp),
-    ).rejects.toThrow(/calibration of .*2025\.4 failed: fixture: calibration refused/);
-    // A method note that Astro rejects (no title), so the failure happens inside the site build.
-    const methods = await mkdtemp(join(tmpdir(), 'rungbook-methods-'));
-    await cp(join(REPO_ROOT, 'content/methods'), methods, { recursive: true });
-    const note = join(methods, 'cepheids.md');
-    await writeFile(note, (await readFile(note, 'utf8')).replace(/^title: .*$/m, ''));
-    await expect(buildFixture({ outDir: second.dist, workDir: second.workDir, cacheDir: second.cacheDir, methodsDir: methods }, second.tmp)).rejects.toThrow(/title/);
-    // A formula KaTeX cannot typeset: the site is built, then rejected before it replaces the previous one.
-    await writeFile(note, (await readFile(join(REPO_ROOT, 'content/methods/cepheids.md'), 'utf8')).replace('$$', () => '$$\n\\frac{1}{'));
-    await expect(buildFixture({ outDir: second.dist, workDir: second.workDir, cacheDir: second.cacheDir, methodsDir: methods }, second.tmp)).rejects.toThrow(
-      /math that KaTeX cannot typeset on 3 page\(s\):\n {2}releases\/2025\.4\/cepheids\/index\.html: ParseError/,
-    );
-    await rm(methods, { recursive: true, force: true });
-    expect(listFilesSync(second.dist)).toEqual(before);
-    expect((await readFile(join(second.dist, 'index.html'))).equals(index)).toBe(true);
-  }, BUILD_TIMEOUT_MS);
+  it(
+    'leaves the previous site untouched when a build fails',
+    async () => {
+      const before = listFilesSync(second.dist);
+      const index = await readFile(join(second.dist, 'index.html'));
+      // A calibration that fails.
+      await expect(
+        buildFixture(
+          {
+            outDir: second.dist,
+            workDir: second.workDir,
+            cacheDir: null,
+            calibrate: async () => {
+              throw new Error('fixture: calibration refused');
+            },
+          },
+          second.tmp,
+        ),
+      ).rejects.toThrow(/calibration of .*2025\.4 failed: fixture: calibration refused/);
+      // A method note that Astro rejects (no title), so the failure happens inside the site build.
+      const methods = await mkdtemp(join(tmpdir(), 'rungbook-methods-'));
+      await cp(join(REPO_ROOT, 'content/methods'), methods, { recursive: true });
+      const note = join(methods, 'cepheids.md');
+      await writeFile(note, (await readFile(note, 'utf8')).replace(/^title: .*$/m, ''));
+      await expect(buildFixture({ outDir: second.dist, workDir: second.workDir, cacheDir: second.cacheDir, methodsDir: methods }, second.tmp)).rejects.toThrow(
+        /title/,
+      );
+      // A formula KaTeX cannot typeset: the site is built, then rejected before it replaces the previous one.
+      await writeFile(
+        note,
+        (await readFile(join(REPO_ROOT, 'content/methods/cepheids.md'), 'utf8')).replace('$$', () => '$$\n\\frac{1}{'),
+      );
+      await expect(buildFixture({ outDir: second.dist, workDir: second.workDir, cacheDir: second.cacheDir, methodsDir: methods }, second.tmp)).rejects.toThrow(
+        /math that KaTeX cannot typeset on 3 page\(s\):\n {2}releases\/2025\.4\/cepheids\/index\.html: ParseError/,
+      );
+      await rm(methods, { recursive: true, force: true });
+      expect(listFilesSync(second.dist)).toEqual(before);
+      expect((await readFile(join(second.dist, 'index.html'))).equals(index)).toBe(true);
+    },
+    BUILD_TIMEOUT_MS,
+  );
 
   it('stops with a message naming the file when a method note is missing', async () => {
     const methods = await mkdtemp(join(tmpdir(), 'rungbook-methods-'));
     await cp(join(REPO_ROOT, 'content/methods'), methods, { recursive: true });
     await rm(join(methods, 'hubble-flow.md'));
-    await expect(buildFixture({ outDir: join(second.tmp, 'never'), workDir: second.workDir, cacheDir: second.cacheDir, methodsDir: methods }, second.tmp)).rejects.toThrow(
-      /method note missing in .*: hubble-flow\.md/,
-    );
+    await expect(
+      buildFixture({ outDir: join(second.tmp, 'never'), workDir: second.workDir, cacheDir: second.cacheDir, methodsDir: methods }, second.tmp),
+    ).rejects.toThrow(/method note missing in .*: hubble-flow\.md/);
     expect(existsSync(join(second.tmp, 'never'))).toBe(false);
     expect(REQUIRED_NOTES).toContain('hubble-flow');
     await rm(methods, { recursive: true, force: true });

@@ -16,9 +16,7 @@ const ROOT = join(import.meta.dirname, '..', '..');
 /** Source files under the given folders, as paths relative to the root. */
 function sourceFiles(folders: string[], extension = /\.(ts|mts|mjs)$/): string[] {
   return folders.flatMap((folder) =>
-    (readdirSync(join(ROOT, folder), { recursive: true }) as string[])
-      .filter((f) => extension.test(f))
-      .map((f) => `${folder}/${f.split('\\').join('/')}`),
+    (readdirSync(join(ROOT, folder), { recursive: true }) as string[]).filter((f) => extension.test(f)).map((f) => `${folder}/${f.split('\\').join('/')}`),
   );
 }
 
@@ -62,7 +60,9 @@ describe('import graph of src/ and site/', () => {
       const frontmatter = /^---\r?\n([\s\S]*?)\r?\n---/.exec(readFileSync(join(ROOT, file), 'utf8'))?.[1] ?? '';
       for (const ref of ts.preProcessFile(frontmatter, true, true).importedFiles) {
         if (!ref.fileName.startsWith('.')) continue;
-        const target = relative(ROOT, resolve(ROOT, dirname(file), ref.fileName)).split('\\').join('/');
+        const target = relative(ROOT, resolve(ROOT, dirname(file), ref.fileName))
+          .split('\\')
+          .join('/');
         if (target.startsWith('src/') && !allowed.some((re) => re.test(target))) bad.push(`${file} -> ${target}`);
       }
     }

@@ -33,7 +33,13 @@ export function srcPart(name: string): string {
 /** dependency-cruiser's forbidden rules: no cycle, no upward edge, site/ only through its contract. */
 export function forbiddenRules() {
   const rules: { name: string; comment: string; severity: 'error'; from: Record<string, unknown>; to: Record<string, unknown> }[] = [
-    { name: 'no-cycle', comment: 'an import cycle makes the order of the pipeline unreadable', severity: 'error', from: { path: '^(src|site)/' }, to: { circular: true } },
+    {
+      name: 'no-cycle',
+      comment: 'an import cycle makes the order of the pipeline unreadable',
+      severity: 'error',
+      from: { path: '^(src|site)/' },
+      to: { circular: true },
+    },
   ];
   LAYERS.forEach((layer, i) => {
     const above = LAYERS.slice(i + 1).flat();
@@ -54,6 +60,12 @@ export function forbiddenRules() {
     from: { path: '^site/' },
     to: { path: notForSite.map(srcPart).join('|') },
   });
-  rules.push({ name: 'src-knows-no-astro', comment: 'src/ never imports site/ or Astro', severity: 'error', from: { path: '^src/' }, to: { path: '^site/|node_modules/(astro|@astrojs)/' } });
+  rules.push({
+    name: 'src-knows-no-astro',
+    comment: 'src/ never imports site/ or Astro',
+    severity: 'error',
+    from: { path: '^src/' },
+    to: { path: '^site/|node_modules/(astro|@astrojs)/' },
+  });
   return rules;
 }

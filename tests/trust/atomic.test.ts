@@ -95,28 +95,48 @@ describe('a failed build leaves the site and the caches byte-identical and names
   });
 
   it('fails while the figures are written (after the first figures of a release were written)', async () => {
-    const figures = RELEASE_FIGURES.map((f, i) => (i === 2 ? { id: f.id, render: () => { throw new Error('injected: figure refused'); } } : f));
+    const figures = RELEASE_FIGURES.map((f, i) =>
+      i === 2
+        ? {
+            id: f.id,
+            render: () => {
+              throw new Error('injected: figure refused');
+            },
+          }
+        : f,
+    );
     await expect(buildReport(base({ figures }))).rejects.toThrow(/^figures and pages of release 2025\.4 failed: injected: figure refused/);
     expect(state()).toEqual(before);
   });
 
-  it('fails in the Astro step (a method note without its title)', async () => {
-    const methods = join(tmp, 'methods-no-title');
-    cpSync(join(REPO_ROOT, 'content/methods'), methods, { recursive: true });
-    const note = join(methods, 'cepheids.md');
-    writeFileSync(note, readFileSync(note, 'utf8').replace(/^title: .*$/m, ''));
-    await expect(buildReport(base({ methodsDir: methods }))).rejects.toThrow(/^site build \(Astro\) failed: .*title/s);
-    expect(state()).toEqual(before);
-  }, BUILD_TIMEOUT_MS);
+  it(
+    'fails in the Astro step (a method note without its title)',
+    async () => {
+      const methods = join(tmp, 'methods-no-title');
+      cpSync(join(REPO_ROOT, 'content/methods'), methods, { recursive: true });
+      const note = join(methods, 'cepheids.md');
+      writeFileSync(note, readFileSync(note, 'utf8').replace(/^title: .*$/m, ''));
+      await expect(buildReport(base({ methodsDir: methods }))).rejects.toThrow(/^site build \(Astro\) failed: .*title/s);
+      expect(state()).toEqual(before);
+    },
+    BUILD_TIMEOUT_MS,
+  );
 
-  it('fails the check of the finished site (math KaTeX cannot typeset)', async () => {
-    const methods = join(tmp, 'methods-bad-math');
-    cpSync(join(REPO_ROOT, 'content/methods'), methods, { recursive: true });
-    const note = join(methods, 'cepheids.md');
-    writeFileSync(note, readFileSync(note, 'utf8').replace('$$', () => '$$\n\\frac{1}{'));
-    await expect(buildReport(base({ methodsDir: methods }))).rejects.toThrow(/^site check failed: math that KaTeX cannot typeset/);
-    expect(state()).toEqual(before);
-  }, BUILD_TIMEOUT_MS);
+  it(
+    'fails the check of the finished site (math KaTeX cannot typeset)',
+    async () => {
+      const methods = join(tmp, 'methods-bad-math');
+      cpSync(join(REPO_ROOT, 'content/methods'), methods, { recursive: true });
+      const note = join(methods, 'cepheids.md');
+      writeFileSync(
+        note,
+        readFileSync(note, 'utf8').replace('$$', () => '$$\n\\frac{1}{'),
+      );
+      await expect(buildReport(base({ methodsDir: methods }))).rejects.toThrow(/^site check failed: math that KaTeX cannot typeset/);
+      expect(state()).toEqual(before);
+    },
+    BUILD_TIMEOUT_MS,
+  );
 
   it('says on the command line which step failed and that nothing was changed', async () => {
     let err = '';
@@ -138,15 +158,19 @@ describe('a failed build leaves the site and the caches byte-identical and names
     expect(state()).toEqual(before);
   });
 
-  it('moves the site and the caches forward when the build succeeds', async () => {
-    await buildReport(base());
-    const after = state();
-    expect(after.cache.length).toBe(5); // two new results.json entries
-    expect(after.work).not.toEqual(before.work);
-    const home = readFileSync(join(paths.dist, 'index.html'), 'utf8');
-    expect(home).toContain('Changed title of 2026.1');
-    expect(readdirSync(paths.work).filter((f) => f.endsWith('.previous'))).toEqual([]);
-  }, BUILD_TIMEOUT_MS);
+  it(
+    'moves the site and the caches forward when the build succeeds',
+    async () => {
+      await buildReport(base());
+      const after = state();
+      expect(after.cache.length).toBe(5); // two new results.json entries
+      expect(after.work).not.toEqual(before.work);
+      const home = readFileSync(join(paths.dist, 'index.html'), 'utf8');
+      expect(home).toContain('Changed title of 2026.1');
+      expect(readdirSync(paths.work).filter((f) => f.endsWith('.previous'))).toEqual([]);
+    },
+    BUILD_TIMEOUT_MS,
+  );
 });
 
 describe('the work state of a build (src/report/workState.ts)', () => {

@@ -82,7 +82,9 @@ describe('a clean install on the oldest supported Node', () => {
   });
 
   it('the undici that astro reaches through unifont is the one jsdom uses, a 7.x release', () => {
-    const versions = Object.entries(lock.packages).filter(([path]) => path.endsWith('node_modules/undici')).map(([path, p]) => `${path}@${p.version}`);
+    const versions = Object.entries(lock.packages)
+      .filter(([path]) => path.endsWith('node_modules/undici'))
+      .map(([path, p]) => `${path}@${p.version}`);
     expect(versions).toHaveLength(1);
     expect(versions[0]).toMatch(/^node_modules\/undici@7\.\d+\.\d+$/);
     expect(pkg.overrides).toEqual({ unifont: { undici: '^7.25.0' } });

@@ -90,13 +90,19 @@ function executableProblems(d: Document, p: string, latest: string): string[] {
   // The only scripts are the site's own bundled files (sortable tables, figures you can hover): a
   // module loaded from the site's _astro folder, with no inline code. Anything else was injected.
   for (const script of Array.from(d.querySelectorAll('script'))) {
-    if (!/^\/h0\/_astro\/(DataTable|Figure)\.astro_astro_type_script_index_0_lang\.[\w-]+\.js$/.test(script.getAttribute('src') ?? '') || script.textContent !== '') problems.push(`${p}: script element`);
+    if (
+      !/^\/h0\/_astro\/(DataTable|Figure)\.astro_astro_type_script_index_0_lang\.[\w-]+\.js$/.test(script.getAttribute('src') ?? '') ||
+      script.textContent !== ''
+    )
+      problems.push(`${p}: script element`);
   }
   if (d.querySelectorAll('iframe, frame, object, embed, form, base, applet').length > 0) problems.push(`${p}: frame, object, form or base`);
   const all = Array.from(d.querySelectorAll('*'));
   for (const a of all.flatMap((e) => e.getAttributeNames().filter((n) => n.toLowerCase().startsWith('on')))) problems.push(`${p}: event handler ${a}`);
   const targets = all.flatMap((e) =>
-    ['href', 'src', 'action', 'formaction', 'xlink:href', 'srcset', 'poster', 'data'].flatMap((a) => (e.hasAttribute(a) ? [{ tag: e.tagName, value: e.getAttribute(a)! }] : [])),
+    ['href', 'src', 'action', 'formaction', 'xlink:href', 'srcset', 'poster', 'data'].flatMap((a) =>
+      e.hasAttribute(a) ? [{ tag: e.tagName, value: e.getAttribute(a)! }] : [],
+    ),
   );
   for (const t of targets) {
     // Browsers ignore blanks and control characters inside a scheme ("java\tscript:").
@@ -105,7 +111,8 @@ function executableProblems(d: Document, p: string, latest: string): string[] {
     if (v.startsWith('data:') && `${t.tag} ${t.value}` !== 'LINK data:,') problems.push(`${p}: ${t.tag} ${t.value.slice(0, 80)}`);
   }
   // The only meta refresh is the /latest/ redirect, to a page of ours.
-  for (const m of Array.from(d.querySelectorAll('meta[http-equiv]'))) if (m.getAttribute('content') !== `0; url=/h0/releases/${latest}/`) problems.push(`${p}: refresh ${m.getAttribute('content')}`);
+  for (const m of Array.from(d.querySelectorAll('meta[http-equiv]')))
+    if (m.getAttribute('content') !== `0; url=/h0/releases/${latest}/`) problems.push(`${p}: refresh ${m.getAttribute('content')}`);
   return problems;
 }
 
@@ -272,28 +279,32 @@ describe('hostile text: read back unchanged as text', () => {
 });
 
 describe('hostile text: a hostile release id', () => {
-  it('is refused before anything is written, naming it', async () => {
-    const dir = tempDir('rungbook-hostile-id-');
-    try {
-      const folder = 'x<script>';
-      copyDemo('2026.1', dir, folder);
-      setManifestId(join(dir, folder), folder);
-      let err = '';
-      const code = await main(['build', '--releases', dir, '--out', join(dir, 'dist')], {
-        stdout: () => undefined,
-        stderr: (s: string) => void (err += s),
-        workDir: join(dir, 'work'),
-        cacheDir: join(dir, 'cache'),
-      } as Parameters<typeof main>[1]);
-      expect(code).toBe(1);
-      expect(err).toContain('release id "x<script>"');
-      expect(err).toContain('cannot be used in a URL');
-      expect(existsSync(join(dir, 'dist'))).toBe(false);
-      expect(readdirSync(dir).filter((f) => f.startsWith('.dist'))).toEqual([]);
-    } finally {
-      rmSync(dir, { recursive: true, force: true });
-    }
-  }, BUILD_TIMEOUT_MS);
+  it(
+    'is refused before anything is written, naming it',
+    async () => {
+      const dir = tempDir('rungbook-hostile-id-');
+      try {
+        const folder = 'x<script>';
+        copyDemo('2026.1', dir, folder);
+        setManifestId(join(dir, folder), folder);
+        let err = '';
+        const code = await main(['build', '--releases', dir, '--out', join(dir, 'dist')], {
+          stdout: () => undefined,
+          stderr: (s: string) => void (err += s),
+          workDir: join(dir, 'work'),
+          cacheDir: join(dir, 'cache'),
+        } as Parameters<typeof main>[1]);
+        expect(code).toBe(1);
+        expect(err).toContain('release id "x<script>"');
+        expect(err).toContain('cannot be used in a URL');
+        expect(existsSync(join(dir, 'dist'))).toBe(false);
+        expect(readdirSync(dir).filter((f) => f.startsWith('.dist'))).toEqual([]);
+      } finally {
+        rmSync(dir, { recursive: true, force: true });
+      }
+    },
+    BUILD_TIMEOUT_MS,
+  );
 });
 
 describe('hostile corpus: text of a release never runs as code', () => {
@@ -311,7 +322,10 @@ describe('hostile corpus: text of a release never runs as code', () => {
 
   const writeRelease = (id: string, notes: string) => {
     mkdirSync(join(corpus, id), { recursive: true });
-    writeFileSync(join(corpus, id, 'release.yaml'), `id: ${JSON.stringify(id)}\ntitle: "Corpus release ${id}"\ndate: "2026-01-01"\nprevious: null\nblinded: false\n`);
+    writeFileSync(
+      join(corpus, id, 'release.yaml'),
+      `id: ${JSON.stringify(id)}\ntitle: "Corpus release ${id}"\ndate: "2026-01-01"\nprevious: null\nblinded: false\n`,
+    );
     writeFileSync(join(corpus, id, 'notes.md'), notes);
   };
 
@@ -344,7 +358,9 @@ describe('hostile corpus: text of a release never runs as code', () => {
         });
       }
       setManifestValue(dir, 'title', JSON.stringify(names.title));
-      const yaml = readFileSync(join(dir, 'release.yaml'), 'utf8').replace('"plain variant one"', JSON.stringify(names.variants[0])).replace('"plain variant two"', JSON.stringify(names.variants[1]));
+      const yaml = readFileSync(join(dir, 'release.yaml'), 'utf8')
+        .replace('"plain variant one"', JSON.stringify(names.variants[0]))
+        .replace('"plain variant two"', JSON.stringify(names.variants[1]));
       writeFileSync(join(dir, 'release.yaml'), yaml);
     }
     const io = {
@@ -380,7 +396,10 @@ describe('hostile corpus: text of a release never runs as code', () => {
       if (match) {
         const notes = d.querySelector('[aria-labelledby="notes"] .prose');
         notesText.set(match[1]!, notes?.textContent ?? null);
-        notesMarkup.set(match[1]!, notes ? notes.querySelectorAll('script, style, img, iframe, object, embed, form, input, base, svg, math, .katex').length : -1);
+        notesMarkup.set(
+          match[1]!,
+          notes ? notes.querySelectorAll('script, style, img, iframe, object, embed, form, input, base, svg, math, .katex').length : -1,
+        );
       }
       if (/^releases\/names\/(cepheids|supernovae|variants)?\/?index\.html$/.test(p)) {
         namesShown.set(p, {
@@ -407,7 +426,8 @@ describe('hostile corpus: text of a release never runs as code', () => {
     expect(payloads.length + names.ids.length + 1 + names.variants.length).toBeGreaterThanOrEqual(30);
     expect(err).toBe('');
     expect(code).toBe(0);
-    for (const id of [...payloads.map((_, i) => folderOf(i)), 'notes-control', 'names', 'names-control']) expect(existsSync(join(corpusDist, 'releases', id, 'index.html')), id).toBe(true);
+    for (const id of [...payloads.map((_, i) => folderOf(i)), 'notes-control', 'names', 'names-control'])
+      expect(existsSync(join(corpusDist, 'releases', id, 'index.html')), id).toBe(true);
   });
 
   it('leaves no canary: no payload ran during the build', () => {
@@ -428,8 +448,27 @@ describe('hostile corpus: text of a release never runs as code', () => {
   it('gives no page of a notes release an element or attribute that the control release does not have', () => {
     const control = signature('notes-control');
     // The control holds every construct of the notes (so the comparison is not vacuous).
-    for (const x of ['h3[id]', 'h6[id]', 'blockquote', 'table', 'th[align]', 'pre', 'del', 'br', 'sup', 'section[data-footnotes]', 'a[data-footnote-ref]', 'ol[start]']) expect(control.has(x), x).toBe(true);
-    payloads.forEach((p, i) => expect([...signature(folderOf(i))].filter((x) => !control.has(x)), p.name).toEqual([]));
+    for (const x of [
+      'h3[id]',
+      'h6[id]',
+      'blockquote',
+      'table',
+      'th[align]',
+      'pre',
+      'del',
+      'br',
+      'sup',
+      'section[data-footnotes]',
+      'a[data-footnote-ref]',
+      'ol[start]',
+    ])
+      expect(control.has(x), x).toBe(true);
+    payloads.forEach((p, i) =>
+      expect(
+        [...signature(folderOf(i))].filter((x) => !control.has(x)),
+        p.name,
+      ).toEqual([]),
+    );
   });
 
   it('gives no page of the names release an element or attribute that its control does not have', () => {

@@ -110,7 +110,11 @@ export function writeHostileRelease(parent: string, name = '2026.1'): HostileRel
   // Stars: the first rows of each star table (and the same star wherever it appears).
   for (const table of ['parallax', 'cepheids', 'main_sequence'] as const) {
     const lines = readFileSync(join(dir, `${table}.ecsv`), 'utf8');
-    const firstStars = lines.split('\n').filter((l) => !l.startsWith('#')).slice(1, 4).map((l) => l.split(',')[0]!);
+    const firstStars = lines
+      .split('\n')
+      .filter((l) => !l.startsWith('#'))
+      .slice(1, 4)
+      .map((l) => l.split(',')[0]!);
     for (const s of firstStars) if (!stars.has(s)) stars.set(s, HOSTILE[stars.size % HOSTILE.length]!);
   }
   // Supernovae: every calibrator and the first Hubble-flow rows.
@@ -170,14 +174,24 @@ export function notesPayloads(canaryDir: string): NotesPayload[] {
   const c = (name: string) => join(canaryDir, name);
   const imp = "import fs from 'node:fs'";
   const exp = (name: string) => `export const ran = ${writes(c(name))}`;
-  const p = (name: string, kind: NotesPayload['kind'], notes: string, shows: string[], canary: string | null = c(name)): NotesPayload => ({ name, kind, notes, shows, canary });
+  const p = (name: string, kind: NotesPayload['kind'], notes: string, shows: string[], canary: string | null = c(name)): NotesPayload => ({
+    name,
+    kind,
+    notes,
+    shows,
+    canary,
+  });
   const long = `import ${'a'.repeat(100_000)} from 'node:fs'`;
   const braces = `{${'{'.repeat(20_000)}${viaImport(c('long-braces'))}${'}'.repeat(20_000)}}`;
   return [
     p('esm-paragraphs', 'esm', `${imp}\n\n${exp('esm-paragraphs')}\n`, [imp, exp('esm-paragraphs')]),
     p('esm-one-paragraph', 'esm', `${imp}\n${exp('esm-one-paragraph')}\n`, [imp, exp('esm-one-paragraph')]),
-    p('esm-after-text', 'esm', `What changed.\n\nexport const ran = (await import('node:fs')).writeFileSync(${JSON.stringify(c('esm-after-text'))}, 'ran')\n`, ["export const ran = (await import('node:fs'))"]),
-    p('esm-export-default', 'esm', `${imp}\n\nexport default function Notes() { return ${writes(c('esm-export-default'))} }\n`, ['export default function Notes() { return fs.writeFileSync(']),
+    p('esm-after-text', 'esm', `What changed.\n\nexport const ran = (await import('node:fs')).writeFileSync(${JSON.stringify(c('esm-after-text'))}, 'ran')\n`, [
+      "export const ran = (await import('node:fs'))",
+    ]),
+    p('esm-export-default', 'esm', `${imp}\n\nexport default function Notes() { return ${writes(c('esm-export-default'))} }\n`, [
+      'export default function Notes() { return fs.writeFileSync(',
+    ]),
     p('esm-list-items', 'esm', `- ${imp}\n- ${exp('esm-list-items')}\n`, [imp, exp('esm-list-items')]),
     p('esm-ordered-list', 'esm', `3. ${imp}\n4. ${exp('esm-ordered-list')}\n`, [imp, exp('esm-ordered-list')]),
     p('esm-headings', 'esm', `# ${imp}\n\n## ${exp('esm-headings')}\n`, [imp, exp('esm-headings')]),
@@ -185,36 +199,111 @@ export function notesPayloads(canaryDir: string): NotesPayload[] {
     p('esm-block-quote', 'esm', `> ${imp}\n>\n> ${exp('esm-block-quote')}\n`, [imp, exp('esm-block-quote')]),
     p('esm-lazy-quote', 'esm', `> quoted\n${imp}\n\n> ${exp('esm-lazy-quote')}\n`, [imp, exp('esm-lazy-quote')]),
     p('esm-table', 'esm', `| ${imp} | b |\n|---|:-:|\n| ${exp('esm-table')} | export {} |\n`, [imp, exp('esm-table'), 'export {}']),
-    p('esm-character-references', 'esm', `&#105;mport fs from 'node:fs'\n\n&#x65;xport const ran = ${writes(c('esm-character-references'))}\n`, [imp, `export const ran = ${writes(c('esm-character-references'))}`]),
+    p('esm-character-references', 'esm', `&#105;mport fs from 'node:fs'\n\n&#x65;xport const ran = ${writes(c('esm-character-references'))}\n`, [
+      imp,
+      `export const ran = ${writes(c('esm-character-references'))}`,
+    ]),
     p('esm-footnote', 'esm', `A note.[^a]\n\n[^a]: ${imp}\n\n    ${exp('esm-footnote')}\n`, [imp, exp('esm-footnote')]),
     p('esm-code', 'esm', `    ${imp}\n    ${exp('esm-code')}\n\n\`\`\`mdx {exec}\n${imp}\n${exp('esm-code')}\n\`\`\`\n`, [imp, exp('esm-code')]),
     p('esm-emphasis', 'esm', `*${imp}*\n\n**${exp('esm-emphasis')}**\n`, [imp, exp('esm-emphasis')]),
     p('esm-hard-break', 'esm', `First line\\\n${imp}\n\n${exp('esm-hard-break')}\n`, [imp, exp('esm-hard-break')]),
     p('expression-inline', 'expression', `An expression {${viaImport(c('expression-inline'))}} in text.\n`, [`{${viaImport(c('expression-inline'))}}`]),
     p('expression-flow', 'expression', `{${viaImport(c('expression-flow'))}}\n`, [`{${viaImport(c('expression-flow'))}}`]),
-    p('expression-template', 'expression', `A template \${${viaImport(c('expression-template'))}} and \`{x}\`.\n`, [`\${${viaImport(c('expression-template'))}}`, '{x}']),
+    p('expression-template', 'expression', `A template \${${viaImport(c('expression-template'))}} and \`{x}\`.\n`, [
+      `\${${viaImport(c('expression-template'))}}`,
+      '{x}',
+    ]),
     p('expression-link', 'expression', `[{${viaImport(c('expression-link'))}}](https://example.org/{x})\n`, [`{${viaImport(c('expression-link'))}}`]),
     p('jsx-component', 'jsx', `<Canary run={${viaImport(c('jsx-component'))}} />\n`, [`<Canary run={${viaImport(c('jsx-component'))}} />`]),
-    p('jsx-fragment', 'jsx', `Text <>{${viaImport(c('jsx-fragment'))}}</> and <Fragment set:html={"<b>x</b>"} />.\n`, [`<>{${viaImport(c('jsx-fragment'))}}</>`, '<Fragment set:html={"<b>x</b>"} />']),
-    p('html-script', 'html', `<script>require('node:fs').writeFileSync(${JSON.stringify(c('html-script'))}, 'ran')</script>\n\nand <script type="module">${viaImport(c('html-script'))}</script> inline.\n`, ["<script>require('node:fs')", '<script type="module">'], null),
-    p('html-attributes', 'html', `<img src=x onerror="fetch('/steal')"> <a href="javascript:alert(1)" onclick="x()">a</a> <div style="background:url(javascript:x)" id="main">d</div> <svg onload=alert(1)>\n`, ['<img src=x onerror="fetch(\'/steal\')">', '<div style="background:url(javascript:x)" id="main">'], null),
-    p('html-embedded', 'html', `<iframe srcdoc="<script>parent.x()</script>"></iframe>\n\n<object data="x.swf"></object><form action="/x"><input name=a></form><base href="https://example.org/">\n`, ['<iframe srcdoc="<script>parent.x()</script>"></iframe>', '<base href="https://example.org/">'], null),
-    p('comment-hiding-expression', 'comment', `<!-- -->{${viaImport(c('comment-hiding-expression'))}}\n`, [`<!-- -->{${viaImport(c('comment-hiding-expression'))}}`]),
+    p('jsx-fragment', 'jsx', `Text <>{${viaImport(c('jsx-fragment'))}}</> and <Fragment set:html={"<b>x</b>"} />.\n`, [
+      `<>{${viaImport(c('jsx-fragment'))}}</>`,
+      '<Fragment set:html={"<b>x</b>"} />',
+    ]),
+    p(
+      'html-script',
+      'html',
+      `<script>require('node:fs').writeFileSync(${JSON.stringify(c('html-script'))}, 'ran')</script>\n\nand <script type="module">${viaImport(c('html-script'))}</script> inline.\n`,
+      ["<script>require('node:fs')", '<script type="module">'],
+      null,
+    ),
+    p(
+      'html-attributes',
+      'html',
+      `<img src=x onerror="fetch('/steal')"> <a href="javascript:alert(1)" onclick="x()">a</a> <div style="background:url(javascript:x)" id="main">d</div> <svg onload=alert(1)>\n`,
+      ['<img src=x onerror="fetch(\'/steal\')">', '<div style="background:url(javascript:x)" id="main">'],
+      null,
+    ),
+    p(
+      'html-embedded',
+      'html',
+      `<iframe srcdoc="<script>parent.x()</script>"></iframe>\n\n<object data="x.swf"></object><form action="/x"><input name=a></form><base href="https://example.org/">\n`,
+      ['<iframe srcdoc="<script>parent.x()</script>"></iframe>', '<base href="https://example.org/">'],
+      null,
+    ),
+    p('comment-hiding-expression', 'comment', `<!-- -->{${viaImport(c('comment-hiding-expression'))}}\n`, [
+      `<!-- -->{${viaImport(c('comment-hiding-expression'))}}`,
+    ]),
     p('comment-block', 'comment', `<!--\n${imp}\n${exp('comment-block')}\n-->\n`, [imp, exp('comment-block')]),
-    p('comment-unclosed', 'comment', `Before.\n\n<!-- never closed\n\n${imp}\n\n${exp('comment-unclosed')}\n`, ['<!-- never closed', imp, exp('comment-unclosed')]),
-    p('front-matter', 'frontmatter', `---\nlayout: ./evil.js\ntitle: x\n---\n\n${imp}\n\n${exp('front-matter')}\n`, ['layout: ./evil.js', imp, exp('front-matter')]),
-    p('math-delimiters', 'math', `$$\n\\href{javascript:alert(1)}{click}\n$$\n\nInline $\\htmlData{onclick=x}{y}$ and $5 and $6, \\\\(a\\\\).\n`, ['\\href{javascript:alert(1)}{click}', '$\\htmlData{onclick=x}{y}$ and $5 and $6'], null),
+    p('comment-unclosed', 'comment', `Before.\n\n<!-- never closed\n\n${imp}\n\n${exp('comment-unclosed')}\n`, [
+      '<!-- never closed',
+      imp,
+      exp('comment-unclosed'),
+    ]),
+    p('front-matter', 'frontmatter', `---\nlayout: ./evil.js\ntitle: x\n---\n\n${imp}\n\n${exp('front-matter')}\n`, [
+      'layout: ./evil.js',
+      imp,
+      exp('front-matter'),
+    ]),
+    p(
+      'math-delimiters',
+      'math',
+      `$$\n\\href{javascript:alert(1)}{click}\n$$\n\nInline $\\htmlData{onclick=x}{y}$ and $5 and $6, \\\\(a\\\\).\n`,
+      ['\\href{javascript:alert(1)}{click}', '$\\htmlData{onclick=x}{y}$ and $5 and $6'],
+      null,
+    ),
     p('long-line', 'long line', `${long}\n\n${braces}\n`, [long, braces], c('long-braces')),
-    p('control-characters', 'control characters', `${imp}\u0001\u001b[31m red \u001b[0m\u007f\u0085\u0008 end\n\nnul\u0000here\u000b and a form\u000cfeed\n\n${exp('control-characters')}\n`, [`${imp}\u0001\u001b[31m red \u001b[0m\u007f\u0085\u0008 end`, 'nul\ufffdhere', exp('control-characters')]),
+    p(
+      'control-characters',
+      'control characters',
+      `${imp}\u0001\u001b[31m red \u001b[0m\u007f\u0085\u0008 end\n\nnul\u0000here\u000b and a form\u000cfeed\n\n${exp('control-characters')}\n`,
+      [`${imp}\u0001\u001b[31m red \u001b[0m\u007f\u0085\u0008 end`, 'nul\ufffdhere', exp('control-characters')],
+    ),
   ];
 }
 
 /** Benign notes with every construct Markdown makes (the elements a page of notes may hold). */
 export const CONTROL_NOTES = [
-  '# Heading', '', '## Sub', '', '### Subsub', '', '#### Deep', '',
-  'A paragraph with *emphasis*, **strong**, ~~struck~~, `code`, a [link](https://example.org/), a line\\', 'break and a note.[^n]', '',
-  '- one', '- two', '', '3. three', '4. four', '', '> quoted', '', '| left | middle | right |', '|:--|:-:|--:|', '| a | b | c |', '',
-  '```', 'code block', '```', '', '---', '', '[^n]: The note.', '',
+  '# Heading',
+  '',
+  '## Sub',
+  '',
+  '### Subsub',
+  '',
+  '#### Deep',
+  '',
+  'A paragraph with *emphasis*, **strong**, ~~struck~~, `code`, a [link](https://example.org/), a line\\',
+  'break and a note.[^n]',
+  '',
+  '- one',
+  '- two',
+  '',
+  '3. three',
+  '4. four',
+  '',
+  '> quoted',
+  '',
+  '| left | middle | right |',
+  '|:--|:-:|--:|',
+  '| a | b | c |',
+  '',
+  '```',
+  'code block',
+  '```',
+  '',
+  '---',
+  '',
+  '[^n]: The note.',
+  '',
 ].join('\n');
 
 /** Names that are code if compiled: system, Cepheid host and supernova ids, the title and variant names. */

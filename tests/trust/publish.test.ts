@@ -68,7 +68,9 @@ describe('rungbook publish', () => {
     // The results are exactly what `rungbook calibrate` writes for the folder.
     expect(rec.results).toEqual(parseResults(readFileSync(join(tmp, 'before.json'), 'utf8')));
     // Every file of the folder (the record itself excepted), with its size and SHA-256.
-    const files = readdirSync(dir).filter((f) => f !== PUBLISHED_FILE).sort();
+    const files = readdirSync(dir)
+      .filter((f) => f !== PUBLISHED_FILE)
+      .sort();
     expect(files.length).toBe(8);
     expect(rec.files).toEqual(files.map((f) => ({ file: f, bytes: readFileSync(join(dir, f)).length, sha256: sha(join(dir, f)) })));
   });
@@ -90,7 +92,11 @@ describe('rungbook publish', () => {
 
   it('refuses a bad date or a missing folder as a usage error', async () => {
     const fresh = copyDemo('2026.2', parent);
-    for (const args of [['--date', '2026-02-30'], ['--date', 'yesterday'], ['--by', '  ']]) {
+    for (const args of [
+      ['--date', '2026-02-30'],
+      ['--date', 'yesterday'],
+      ['--by', '  '],
+    ]) {
       const r = await run(['publish', fresh, ...args]);
       expect(r.code, args.join(' ')).toBe(2);
     }
@@ -237,7 +243,12 @@ describe('the report of a published release', () => {
     const recomputedH0 = published.h0!.value + 1.5;
     const d0 = digitsToTellApart(published.h0!.value, recomputedH0);
     expect(rows.length).toBe(2);
-    expect(rows[0]).toEqual(['H0', String(Number(published.h0!.value.toPrecision(d0))), String(Number(recomputedH0.toPrecision(d0))), expect.stringMatching(/^\+1\.5 \(\+2\.\d %\)$/)]);
+    expect(rows[0]).toEqual([
+      'H0',
+      String(Number(published.h0!.value.toPrecision(d0))),
+      String(Number(recomputedH0.toPrecision(d0))),
+      expect.stringMatching(/^\+1\.5 \(\+2\.\d %\)$/),
+    ]);
     expect(rows[1]![0]).toBe('M_W');
     expect(rows[1]![3]).toMatch(/^\u22120\.01 \(/);
     expect(d.querySelector('.published-notice')!.textContent).toContain(`2 of `);
@@ -285,13 +296,23 @@ describe('comparing published results with a recomputation (src/publish/drift.ts
     ]);
     const residual = e.find((x) => x.path.endsWith('.residual'))!;
     expect(residual.delta).toBeCloseTo(0.5, 12);
-    expect(changeOf(e.find((x) => x.path.endsWith('.length'))!)).toMatchObject({ published: `${a.rungs.supernovae.hubble_flow.length} items`, change: 'changed' });
+    expect(changeOf(e.find((x) => x.path.endsWith('.length'))!)).toMatchObject({
+      published: `${a.rungs.supernovae.hubble_flow.length} items`,
+      change: 'changed',
+    });
   });
 
   it('shows each moved pair with enough digits to tell them apart', () => {
     expect(digitsToTellApart(70.0, 70.5)).toBe(4);
     expect(digitsToTellApart(70.123456, 70.123457)).toBe(9);
-    const c = changeOf({ path: 'h0.value', label: 'H0', published: 70.123456, recomputed: 70.123457, delta: 70.123457 - 70.123456, relative: (70.123457 - 70.123456) / 70.123456 });
+    const c = changeOf({
+      path: 'h0.value',
+      label: 'H0',
+      published: 70.123456,
+      recomputed: 70.123457,
+      delta: 70.123457 - 70.123456,
+      relative: (70.123457 - 70.123456) / 70.123456,
+    });
     expect([c.published, c.recomputed]).toEqual(['70.123456', '70.123457']);
   });
 });

@@ -41,7 +41,10 @@ export function setManifestValue(dir: string, key: string, yamlValue: string): v
   const text = readFileSync(file, 'utf8');
   const re = new RegExp(`^(\\s*)${key}: .*$`, 'm');
   if (!re.test(text)) throw new Error(`release.yaml of ${dir} has no key ${key}`);
-  writeFileSync(file, text.replace(re, (_m, indent: string) => `${indent}${key}: ${yamlValue}`));
+  writeFileSync(
+    file,
+    text.replace(re, (_m, indent: string) => `${indent}${key}: ${yamlValue}`),
+  );
 }
 
 export interface EditableTable {

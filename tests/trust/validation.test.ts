@@ -56,7 +56,10 @@ describe('unknown keys, as the command line reports them', () => {
   it('names the line of a misspelt analysis key and suggests the known one', async () => {
     const r = await calibrateEdited(join(tmp, 'keys'), 'typo', (d) => setManifestValue(d, 'clip_sigma', '3.5\n  clip_sigmaa: 4'));
     expect(r.code).toBe(1);
-    const line = readFileSync(join(r.dir, 'release.yaml'), 'utf8').split('\n').findIndex((l) => l.includes('clip_sigmaa')) + 1;
+    const line =
+      readFileSync(join(r.dir, 'release.yaml'), 'utf8')
+        .split('\n')
+        .findIndex((l) => l.includes('clip_sigmaa')) + 1;
     expect(r.err).toContain(`${join(r.dir, 'release.yaml')}:${line}: column "analysis.clip_sigmaa": `);
     expect(r.err).toContain('(did you mean "clip_sigma"?)');
     expect(existsSync(r.json)).toBe(false);
@@ -85,7 +88,9 @@ describe('a ladder that cannot reach a geometric anchor names the system', () =>
       }),
     );
     expect(r.code).toBe(1);
-    expect(r.err).toContain('rungbook calibrate: The ladder cannot reach a geometric anchor from "Rowanstead": this supernova host has no Cepheids and no distance of its own.');
+    expect(r.err).toContain(
+      'rungbook calibrate: The ladder cannot reach a geometric anchor from "Rowanstead": this supernova host has no Cepheids and no distance of its own.',
+    );
     expect(existsSync(r.json)).toBe(false);
   });
 
@@ -107,7 +112,9 @@ describe('a ladder that cannot reach a geometric anchor names the system', () =>
       }),
     );
     expect(r.code).toBe(1);
-    expect(r.err).toMatch(/rungbook calibrate: main-sequence target\(s\) "Fernhollow", "Greywick", "Hollinford", "Wrenmere" but no geometric anchor has main-sequence rows/);
+    expect(r.err).toMatch(
+      /rungbook calibrate: main-sequence target\(s\) "Fernhollow", "Greywick", "Hollinford", "Wrenmere" but no geometric anchor has main-sequence rows/,
+    );
   });
 });
 
@@ -116,29 +123,52 @@ describe('numerically degenerate releases: an explanation or a valid result, nev
   const ok: { name: string; results: Results }[] = [];
   const outcomes = new Map<string, Awaited<ReturnType<typeof calibrateEdited>>>();
   const cases: [string, (dir: string) => void][] = [
-    ['one-anchor-star', (d) => editTable(d, 'parallax', (t, col) => {
-      const first = t.rows.findIndex((r) => r[col('system')] === 'Alder');
-      t.rows = t.rows.filter((r, i) => r[col('system')] !== 'Alder' || i === first);
-    })],
-    ['single-cepheid-host', (d) => editTable(d, 'cepheids', (t, col) => {
-      const first = t.rows.findIndex((r) => r[col('system')] === 'Ivyreach');
-      t.rows = t.rows.filter((r, i) => r[col('system')] !== 'Ivyreach' || i === first);
-    })],
-    ['all-sn-cut', (d) => {
-      setManifestValue(d, 'z_min', '0.2');
-      setManifestValue(d, 'z_max', '0.3');
-    }],
-    ['one-period', (d) => editTable(d, 'cepheids', (t, col) => {
-      for (const r of t.rows) r[col('period')] = '10';
-    })],
-    ['single-flow-sn', (d) => editTable(d, 'sn_hubble_flow', (t) => {
-      t.rows = t.rows.slice(0, 1);
-    })],
+    [
+      'one-anchor-star',
+      (d) =>
+        editTable(d, 'parallax', (t, col) => {
+          const first = t.rows.findIndex((r) => r[col('system')] === 'Alder');
+          t.rows = t.rows.filter((r, i) => r[col('system')] !== 'Alder' || i === first);
+        }),
+    ],
+    [
+      'single-cepheid-host',
+      (d) =>
+        editTable(d, 'cepheids', (t, col) => {
+          const first = t.rows.findIndex((r) => r[col('system')] === 'Ivyreach');
+          t.rows = t.rows.filter((r, i) => r[col('system')] !== 'Ivyreach' || i === first);
+        }),
+    ],
+    [
+      'all-sn-cut',
+      (d) => {
+        setManifestValue(d, 'z_min', '0.2');
+        setManifestValue(d, 'z_max', '0.3');
+      },
+    ],
+    [
+      'one-period',
+      (d) =>
+        editTable(d, 'cepheids', (t, col) => {
+          for (const r of t.rows) r[col('period')] = '10';
+        }),
+    ],
+    [
+      'single-flow-sn',
+      (d) =>
+        editTable(d, 'sn_hubble_flow', (t) => {
+          t.rows = t.rows.slice(0, 1);
+        }),
+    ],
     ['no-calibrators', (d) => unlinkSync(join(d, 'sn_calibrators.ecsv'))],
     ['series-not-positive', (d) => setManifestValue(d, 'j0', '1e9')],
-    ['covariance-not-a-covariance', (d) => editTable(d, 'sn_hubble_flow', (t, col) => {
-      t.rows[4]![col('cov_mb_c')] = '0.5';
-    })],
+    [
+      'covariance-not-a-covariance',
+      (d) =>
+        editTable(d, 'sn_hubble_flow', (t, col) => {
+          t.rows[4]![col('cov_mb_c')] = '0.5';
+        }),
+    ],
   ];
 
   beforeAll(async () => {
@@ -170,14 +200,22 @@ describe('numerically degenerate releases: an explanation or a valid result, nev
   });
 
   it('q0 and j0 that make the distance series negative: explained, naming the keys and a supernova', () => {
-    explained('series-not-positive', /With q0 = -0\.55 and j0 = 1000000000, the kinematic distance series is not positive at z = [\d.]+ \(Hubble-flow supernova "hf-\d+", sn_hubble_flow line \d+\)/);
+    explained(
+      'series-not-positive',
+      /With q0 = -0\.55 and j0 = 1000000000, the kinematic distance series is not positive at z = [\d.]+ \(Hubble-flow supernova "hf-\d+", sn_hubble_flow line \d+\)/,
+    );
   });
 
   it('a light-curve covariance that is no covariance: refused as input, naming file, line and column', () => {
     const r = outcomes.get('covariance-not-a-covariance')!;
     expect(r.code).toBe(1);
-    const line = readFileSync(join(r.dir, 'sn_hubble_flow.ecsv'), 'utf8').split('\n').findIndex((l) => l.startsWith('hf-0005,')) + 1;
-    expect(r.err).toMatch(new RegExp(`sn_hubble_flow\\.ecsv:${line}: column "cov_mb_c": the covariance implies a correlation of [\\d.]+ between m_b and c, beyond ±1`));
+    const line =
+      readFileSync(join(r.dir, 'sn_hubble_flow.ecsv'), 'utf8')
+        .split('\n')
+        .findIndex((l) => l.startsWith('hf-0005,')) + 1;
+    expect(r.err).toMatch(
+      new RegExp(`sn_hubble_flow\\.ecsv:${line}: column "cov_mb_c": the covariance implies a correlation of [\\d.]+ between m_b and c, beyond ±1`),
+    );
   });
 
   it('a host with one Cepheid, a single Hubble-flow supernova: valid results with finite numbers', () => {
@@ -203,23 +241,27 @@ describe('numerically degenerate releases: an explanation or a valid result, nev
     expect(r.out).toContain('H0 not measured: the ladder stops at the cepheids rung.');
   });
 
-  it('builds the releases that calibrate into a report with no NaN or infinity on any page or in any download', async () => {
-    expect(ok.map((o) => o.name).sort()).toEqual(['no-calibrators', 'single-cepheid-host', 'single-flow-sn']);
-    // Only the releases that calibrate go into the report.
-    for (const [name] of cases) if (!ok.some((o) => o.name === name)) rmSync(join(parent, name), { recursive: true });
-    const dist = join(tmp, 'degenerate-dist');
-    const b = await run(['build', '--releases', parent, '--out', dist], { workDir: join(tmp, 'degenerate-work'), cacheDir: join(tmp, 'degenerate-cache') });
-    expect(b.err).toBe('');
-    expect(b.code).toBe(0);
-    const files = listFilesSync(dist);
-    const pages = files.filter((f) => f.endsWith('.html'));
-    expect(pages.length).toBeGreaterThan(3 * 20);
-    for (const f of pages) {
-      const text = readFileSync(join(dist, f), 'utf8').replace(/<[^>]*>/g, ' ');
-      expect(text, f).not.toMatch(/\bNaN\b|Infinity|∞/);
-    }
-    for (const f of files.filter((x) => /\.(csv|ecsv|json)$/.test(x))) {
-      expect(readFileSync(join(dist, f), 'utf8'), f).not.toMatch(/(^|[,\s:"])(-?inf|nan|NaN|-?Infinity)([,\s"]|$)/m);
-    }
-  }, BUILD_TIMEOUT_MS);
+  it(
+    'builds the releases that calibrate into a report with no NaN or infinity on any page or in any download',
+    async () => {
+      expect(ok.map((o) => o.name).sort()).toEqual(['no-calibrators', 'single-cepheid-host', 'single-flow-sn']);
+      // Only the releases that calibrate go into the report.
+      for (const [name] of cases) if (!ok.some((o) => o.name === name)) rmSync(join(parent, name), { recursive: true });
+      const dist = join(tmp, 'degenerate-dist');
+      const b = await run(['build', '--releases', parent, '--out', dist], { workDir: join(tmp, 'degenerate-work'), cacheDir: join(tmp, 'degenerate-cache') });
+      expect(b.err).toBe('');
+      expect(b.code).toBe(0);
+      const files = listFilesSync(dist);
+      const pages = files.filter((f) => f.endsWith('.html'));
+      expect(pages.length).toBeGreaterThan(3 * 20);
+      for (const f of pages) {
+        const text = readFileSync(join(dist, f), 'utf8').replace(/<[^>]*>/g, ' ');
+        expect(text, f).not.toMatch(/\bNaN\b|Infinity|∞/);
+      }
+      for (const f of files.filter((x) => /\.(csv|ecsv|json)$/.test(x))) {
+        expect(readFileSync(join(dist, f), 'utf8'), f).not.toMatch(/(^|[,\s:"])(-?inf|nan|NaN|-?Infinity)([,\s"]|$)/m);
+      }
+    },
+    BUILD_TIMEOUT_MS,
+  );
 });

@@ -18,7 +18,14 @@ import { GROUP_TITLE, signedText } from './words.ts';
 export function comparisonFigures(r: DiffReport): FigureSpec[] {
   const out: FigureSpec[] = [];
   for (const f of figuresDrawn(r)) {
-    const spec = f === 'attribution' ? waterfall(r) : overlayFigure(r, r.overlays.find((o) => o.id === f)!, f);
+    const spec =
+      f === 'attribution'
+        ? waterfall(r)
+        : overlayFigure(
+            r,
+            r.overlays.find((o) => o.id === f)!,
+            f,
+          );
     if (spec) out.push(spec);
   }
   return out;
@@ -50,7 +57,13 @@ function waterfallSteps(r: DiffReport, origin: number, total: number): Step[] {
 type WaterfallRow = { y: string; x1: number; x2: number; up: boolean; total: boolean; text: string; tx: number };
 
 /** Bars, value labels, the origin's line, the sigma bar under the total, the stamp and the legend. */
-function waterfallMarks(rows: WaterfallRow[], origin: number, total: number, sigma: number | null, blinded: boolean): { marks: Plot.Markish[]; marginTop: number } {
+function waterfallMarks(
+  rows: WaterfallRow[],
+  origin: number,
+  total: number,
+  sigma: number | null,
+  blinded: boolean,
+): { marks: Plot.Markish[]; marginTop: number } {
   const items: LegendItem[] = [
     { label: 'raises H₀', kind: 'band', fill: INK },
     { label: 'lowers H₀', kind: 'band', fill: 'white' },
@@ -61,13 +74,21 @@ function waterfallMarks(rows: WaterfallRow[], origin: number, total: number, sig
   const marks: Plot.Markish[] = [
     Plot.gridX({ stroke: GREY, strokeOpacity: 0.2 }),
     Plot.ruleX([origin], { stroke: INK, strokeDasharray: '4,3' }),
-    Plot.barX(rows.filter((d) => !d.total), { y: 'y', x1: 'x1', x2: 'x2', fill: (d: WaterfallRow) => (d.up ? INK : 'white'), stroke: INK, strokeWidth: 1, insetTop: 6, insetBottom: 6 }),
-    Plot.barX(rows.filter((d) => d.total), { y: 'y', x1: 'x1', x2: 'x2', fill: LIGHT, stroke: INK, strokeWidth: 1, insetTop: 4, insetBottom: 4 }),
+    Plot.barX(
+      rows.filter((d) => !d.total),
+      { y: 'y', x1: 'x1', x2: 'x2', fill: (d: WaterfallRow) => (d.up ? INK : 'white'), stroke: INK, strokeWidth: 1, insetTop: 6, insetBottom: 6 },
+    ),
+    Plot.barX(
+      rows.filter((d) => d.total),
+      { y: 'y', x1: 'x1', x2: 'x2', fill: LIGHT, stroke: INK, strokeWidth: 1, insetTop: 4, insetBottom: 4 },
+    ),
     Plot.text(rows, { y: 'y', x: 'tx', text: 'text', dx: 6, textAnchor: 'start', fill: INK }),
   ];
   if (sigma !== null && sigma > 0) {
     const end = origin + total;
-    marks.push(Plot.ruleY([{ y: 'Total shift', x1: r5(end - sigma), x2: r5(end + sigma) }], { y: 'y', x1: 'x1', x2: 'x2', stroke: INK, strokeWidth: 1.5, dy: 12 }));
+    marks.push(
+      Plot.ruleY([{ y: 'Total shift', x1: r5(end - sigma), x2: r5(end + sigma) }], { y: 'y', x1: 'x1', x2: 'x2', stroke: INK, strokeWidth: 1.5, dy: 12 }),
+    );
   }
   if (blinded) marks.push(blindedStamp());
   marks.push(...leg.marks);
@@ -102,7 +123,15 @@ function waterfall(r: DiffReport): FigureSpec | null {
   const unit = 'km/s/Mpc';
   const xLabel = h0a !== null ? `H₀ (${unit})` : `Shift of H₀ from release ${r.a} (${unit}${blinded ? ', blinded scale' : ''})`;
 
-  const rows: WaterfallRow[] = steps.map((s) => ({ y: s.label, x1: r5(Math.min(s.start, s.end)), x2: r5(Math.max(s.start, s.end)), up: s.delta >= 0, total: s.kind === 'total', text: signedText(s.delta, 2), tx: r5(Math.max(s.start, s.end)) }));
+  const rows: WaterfallRow[] = steps.map((s) => ({
+    y: s.label,
+    x1: r5(Math.min(s.start, s.end)),
+    x2: r5(Math.max(s.start, s.end)),
+    up: s.delta >= 0,
+    total: s.kind === 'total',
+    text: signedText(s.delta, 2),
+    tx: r5(Math.max(s.start, s.end)),
+  }));
   const { marks, marginTop } = waterfallMarks(rows, origin, detail.total, sigma, blinded);
   // Room on the right for the value labels.
   const xs = rows.flatMap((d) => [d.x1, d.x2]).concat(sigma ? [origin + detail.total - sigma, origin + detail.total + sigma] : []);
@@ -179,9 +208,17 @@ function overlayMarks(r: DiffReport, o: Overlay, rows: OverlayRow[], ladder: boo
   ];
   if (pick('a', true).length) items.push({ label: `changed or removed (${r.a})`, kind: 'dot', symbol: 'times', filled: false });
   if (pick('b', true).length) items.push({ label: `changed or added (${r.b})`, kind: 'dot', symbol: 'triangle', filled: false });
-  for (const [side, model] of [['a', o.a.model], ['b', o.b.model]] as const) {
+  for (const [side, model] of [
+    ['a', o.a.model],
+    ['b', o.b.model],
+  ] as const) {
     if (model.length < 2) continue;
-    marks.push(Plot.line(model.map((m) => ({ x: r5(m.x), y: r5(m.y) })), { x: 'x', y: 'y', stroke: side === 'a' ? GREY : INK, strokeWidth: side === 'a' ? 2 : 1.5, strokeDasharray: side === 'a' ? '6,4' : undefined }));
+    marks.push(
+      Plot.line(
+        model.map((m) => ({ x: r5(m.x), y: r5(m.y) })),
+        { x: 'x', y: 'y', stroke: side === 'a' ? GREY : INK, strokeWidth: side === 'a' ? 2 : 1.5, strokeDasharray: side === 'a' ? '6,4' : undefined },
+      ),
+    );
     items.push({ label: `fit ${side === 'a' ? r.a : r.b}`, kind: 'line', width: side === 'a' ? 2 : 1.5, dash: side === 'a' ? '6,4' : undefined });
   }
   if (o.blinded) marks.push(blindedStamp());
@@ -202,7 +239,14 @@ function overlayCsv(r: DiffReport, o: Overlay, all: Drawn[], cats: string[]): Fi
         col('distance_err', 'float64', 'Mpc', 'first order from the error of the distance modulus'),
         col('status', 'string', undefined, 'same, or corrected when any input row of the system changed; added or removed for supernovae'),
       ],
-      rows: all.map((d) => ({ release: d.side === 'a' ? r.a : r.b, id: d.p.id, rung: cats[d.p.x] ?? String(d.p.x), distance: d.p.y, distance_err: d.p.y_err, status: d.p.status })),
+      rows: all.map((d) => ({
+        release: d.side === 'a' ? r.a : r.b,
+        id: d.p.id,
+        rung: cats[d.p.x] ?? String(d.p.x),
+        distance: d.p.y,
+        distance_err: d.p.y_err,
+        status: d.p.status,
+      })),
     };
   }
   return {
@@ -234,13 +278,18 @@ function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): Figure
   const all: Drawn[] = [...o.a.points.map((p) => ({ side: 'a' as const, p })), ...o.b.points.map((p) => ({ side: 'b' as const, p }))];
   if (all.length === 0) return null;
   // Thin each side on its own (changed points always kept), so both stay visible.
-  const ta = thin(all.filter((d) => d.side === 'a'), (d) => d.p.changed);
-  const tb = thin(all.filter((d) => d.side === 'b'), (d) => d.p.changed);
+  const ta = thin(
+    all.filter((d) => d.side === 'a'),
+    (d) => d.p.changed,
+  );
+  const tb = thin(
+    all.filter((d) => d.side === 'b'),
+    (d) => d.p.changed,
+  );
   const ladder = o.id === 'ladder-diagram';
   const cats = o.x_categories ?? [];
   // The ladder is drawn as the release pages draw it: rungs as rows, distance across; a above b in each row.
-  const pos = (d: Drawn) =>
-    ladder ? { x: r5(d.p.y), y: r5(d.p.x + (d.side === 'a' ? -0.17 : 0.17)) } : { x: r5(d.p.x), y: r5(d.p.y) };
+  const pos = (d: Drawn) => (ladder ? { x: r5(d.p.y), y: r5(d.p.x + (d.side === 'a' ? -0.17 : 0.17)) } : { x: r5(d.p.x), y: r5(d.p.y) });
   const rows: OverlayRow[] = [...ta.rows, ...tb.rows].map((d) => ({ ...pos(d), side: d.side, changed: d.p.changed, rejected: d.p.rejected }));
   const marginLeft = ladder ? 110 : 60;
   const { marks, marginTop } = overlayMarks(r, o, rows, ladder, marginLeft);
@@ -252,7 +301,9 @@ function overlayFigure(r: DiffReport, o: Overlay, figure: CompareFigure): Figure
     marginLeft,
     x: ladder
       ? { type: 'log', label: AXIS[o.id].x, tickFormat: distanceTickText }
-      : o.x_log ? { type: 'log', label: AXIS[o.id].x } : { label: AXIS[o.id].x, nice: true },
+      : o.x_log
+        ? { type: 'log', label: AXIS[o.id].x }
+        : { label: AXIS[o.id].x, nice: true },
     y: ladder
       ? { label: null, domain: [cats.length - 0.5, -0.5], ticks: cats.map((_, i) => i), tickFormat: (i: number) => cats[i] ?? '' }
       : { label: AXIS[o.id].y, reverse: o.id === 'pl-relation', nice: true },

@@ -52,11 +52,17 @@ function paramDecimals(p: ParameterShift): number {
 
 /** The memo's opening sentence on H0 (src/diff/vocabulary.ts decides what it states). */
 function headlineText(r: DiffReport): { text: string; flagged: boolean } {
-  if (r.identical) return { text: `Nothing changed: releases ${r.a} and ${r.b} have identical inputs and analysis choices, and every result is the same.`, flagged: false };
+  if (r.identical)
+    return { text: `Nothing changed: releases ${r.a} and ${r.b} have identical inputs and analysis choices, and every result is the same.`, flagged: false };
   const hl = h0Headline(r, TYPOGRAPHIC);
-  if (hl.case === 'not-measured') return { text: `H₀ is not measured in both releases (${r.a}: ${r.releases.a.reached}; ${r.b}: ${r.releases.b.reached}); the other results are compared below.`, flagged: false };
+  if (hl.case === 'not-measured')
+    return {
+      text: `H₀ is not measured in both releases (${r.a}: ${r.releases.a.reached}; ${r.b}: ${r.releases.b.reached}); the other results are compared below.`,
+      flagged: false,
+    };
   // the blinding sentence itself stands in its own marked line below the headline
-  if (hl.case === 'withheld') return { text: 'H₀ and its shift are withheld because of blinding. Everything that does not follow from H₀ is compared below.', flagged: false };
+  if (hl.case === 'withheld')
+    return { text: 'H₀ and its shift are withheld because of blinding. Everything that does not follow from H₀ is compared below.', flagged: false };
   const size = `${hl.shift} ${H0_UNIT}`;
   const values = hl.values ? `, from ${hl.values.a} to ${hl.values.b}` : ' (a shift of blinded values: the true shift times the common hidden factor)';
   const sigma =
@@ -71,10 +77,13 @@ function headlineText(r: DiffReport): { text: string; flagged: boolean } {
 
 function contributionsText(r: DiffReport): string | null {
   if (r.blinding.shift_hidden && (r.blinding.a || r.blinding.b)) return null; // said by the blinding line
-  if (!r.h0 || r.h0.delta === null || r.attribution.length === 0 || r.identical) return r.attribution_note && !r.identical ? `No attribution: ${r.attribution_note}.` : null;
+  if (!r.h0 || r.h0.delta === null || r.attribution.length === 0 || r.identical)
+    return r.attribution_note && !r.identical ? `No attribution: ${r.attribution_note}.` : null;
   const { moving, cancelling } = rankedContributions(r);
   if (moving.length === 0) return null;
-  const parts = moving.slice(0, 3).map((e) => `${GROUP_TITLE[e.group]} ${signedText(e.delta_h0, 2)}${cancelling || e.fraction === null ? '' : ` (${fixed(100 * e.fraction, 0)} %)`}`);
+  const parts = moving
+    .slice(0, 3)
+    .map((e) => `${GROUP_TITLE[e.group]} ${signedText(e.delta_h0, 2)}${cancelling || e.fraction === null ? '' : ` (${fixed(100 * e.fraction, 0)} %)`}`);
   const rest = moving.length > 3 ? `, and ${moving.length - 3} more group${moving.length - 3 === 1 ? '' : 's'}` : '';
   return `What moved it: ${parts.join(', ')}${rest} ${H0_UNIT}${cancelling ? ', partly cancelling' : ''}.`;
 }
@@ -108,7 +117,12 @@ function keyValues(r: DiffReport): KeyValue[] {
   kv.push({ label: 'Shift', value: h.delta === null ? 'withheld (blinding)' : `${signedText(h.delta, 2)} ${H0_UNIT}`, blinded: blinded && h.delta !== null });
   if (h.sigma_diff !== null) kv.push({ label: 'σ of the difference', value: `${fixed(h.sigma_diff, 2)} ${H0_UNIT}`, blinded: false });
   if (h.sigma_naive !== null) kv.push({ label: 'Naive quadrature sum (not used)', value: `${fixed(h.sigma_naive, 2)} ${H0_UNIT}`, blinded: false });
-  if (h.delta !== null) kv.push({ label: 'Shift / σ of the difference', value: h.deterministic ? 'no spread (choices or fixed-noise values)' : sigmaText(h.delta_sigma), blinded: false });
+  if (h.delta !== null)
+    kv.push({
+      label: 'Shift / σ of the difference',
+      value: h.deterministic ? 'no spread (choices or fixed-noise values)' : sigmaText(h.delta_sigma),
+      blinded: false,
+    });
   if (h.ratio !== null && blinded) kv.push({ label: `H₀ ratio ${r.b} / ${r.a}`, value: fixed(h.ratio, 5), blinded: false });
   return kv;
 }
@@ -145,7 +159,9 @@ function attributionTable(r: DiffReport): TableView | null {
       caption:
         `The contributions add up to the total shift (relative difference ${r.attribution_detail.sum_rel_error.toExponential(1)}). ` +
         '"Sum of row estimates" adds the linear estimates of the rows listed below; it differs from the contribution where rows interact.' +
-        (oneSign ? '' : ' Shares are not shown: the contributions have both signs and partly cancel, so a share of the total would be misleading (it can exceed 100 %); read the contributions themselves.') +
+        (oneSign
+          ? ''
+          : ' Shares are not shown: the contributions have both signs and partly cancel, so a share of the total would be misleading (it can exceed 100 %); read the contributions themselves.') +
         (blinded ? ' Blinded: contributions are in blinded km/s/Mpc.' : ''),
       marks: rows.map(() => (blinded ? 'blinded' : null)),
     },
@@ -179,7 +195,9 @@ function objectsTable(r: DiffReport): TableView | null {
     ],
     rows,
     {
-      caption: r.objects_not_estimated ? `${int(r.objects_not_estimated)} changed rows have no estimate (for example a row of a system the other release lacks).` : null,
+      caption: r.objects_not_estimated
+        ? `${int(r.objects_not_estimated)} changed rows have no estimate (for example a row of a system the other release lacks).`
+        : null,
       marks: rows.map(() => (r.blinding.a || r.blinding.b ? 'blinded' : null)),
       links: r.top_objects.map((o) => {
         // A removed row is on the previous release's pages, every other on this release's.
@@ -237,7 +255,8 @@ function columnsTable(r: DiffReport): TableView | null {
         c.median === null ? '—' : signedText(c.median, decimalsFor(c.median, c.largest)),
         c.largest === null ? '—' : signedText(c.largest, decimalsFor(c.median, c.largest)),
         c.largest_id ?? '—',
-        [c.appeared ? `${int(c.appeared)} gained a value` : '', c.disappeared ? `${int(c.disappeared)} lost their value` : ''].filter(Boolean).join(', ') || '—',
+        [c.appeared ? `${int(c.appeared)} gained a value` : '', c.disappeared ? `${int(c.disappeared)} lost their value` : ''].filter(Boolean).join(', ') ||
+          '—',
       ]);
     }
   }
@@ -273,7 +292,12 @@ function analysisTable(r: DiffReport): TableView | null {
           ['a', `In ${r.a}`, null, false],
           ['b', `In ${r.b}`, null, false],
         ],
-        ic.analysis.map((c) => [c.key, ANALYSIS_UNITS[c.key] || '—', `${analysisValueText(c.a)}${c.set_a ? '' : ' (default)'}`, `${analysisValueText(c.b)}${c.set_b ? '' : ' (default)'}`]),
+        ic.analysis.map((c) => [
+          c.key,
+          ANALYSIS_UNITS[c.key] || '—',
+          `${analysisValueText(c.a)}${c.set_a ? '' : ' (default)'}`,
+          `${analysisValueText(c.b)}${c.set_b ? '' : ' (default)'}`,
+        ]),
       )
     : null;
 }
@@ -305,7 +329,10 @@ function cellsTable(r: DiffReport): TableView | null {
           ['unit', 'Unit', null, false],
         ],
         ic.cells.map((c) => [`${c.table}:${c.line_b}`, c.id, c.column, cellText(c.a), cellText(c.b), c.unit ?? '—']),
-        { limit: PAGE_CELLS_MAX, caption: `All ${int(ic.cells.length)} changed values are in the output of \`rungbook diff --format json\` on the two release folders.` },
+        {
+          limit: PAGE_CELLS_MAX,
+          caption: `All ${int(ic.cells.length)} changed values are in the output of \`rungbook diff --format json\` on the two release folders.`,
+        },
       )
     : null;
 }
@@ -363,7 +390,11 @@ function systemTable(r: DiffReport): TableView | null {
   const shown = r.systems.filter((s) => s.a !== null || s.b !== null);
   if (shown.length === 0) return null;
   const order = [...shown].sort(
-    (x, y) => Number(y.flagged) - Number(x.flagged) || Number(y.inputs_changed) - Number(x.inputs_changed) || Math.abs(y.delta_sigma ?? 0) - Math.abs(x.delta_sigma ?? 0) || x.id.localeCompare(y.id),
+    (x, y) =>
+      Number(y.flagged) - Number(x.flagged) ||
+      Number(y.inputs_changed) - Number(x.inputs_changed) ||
+      Math.abs(y.delta_sigma ?? 0) - Math.abs(x.delta_sigma ?? 0) ||
+      x.id.localeCompare(y.id),
   );
   const rows = order.map((s: SystemShift) => [
     s.id,
@@ -389,7 +420,11 @@ function systemTable(r: DiffReport): TableView | null {
       ['inputs', 'Inputs changed', null, false],
     ],
     rows,
-    { limit: PAGE_SYSTEMS_MAX, marks: order.map(markOf), caption: 'Flagged systems first, then those whose input rows changed, then by the size of the shift in σ.' },
+    {
+      limit: PAGE_SYSTEMS_MAX,
+      marks: order.map(markOf),
+      caption: 'Flagged systems first, then those whose input rows changed, then by the size of the shift in σ.',
+    },
   );
 }
 

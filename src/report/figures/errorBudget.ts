@@ -23,7 +23,15 @@ export function errorBudget(r: Results): FigureSpec | null {
   );
   const max = Math.max(...rows.map((d) => d.sigma), r.h0.total);
   const marks: Plot.Markish[] = [
-    Plot.barX(rows, { y: 'label', x: 'sigma', fill: (d: (typeof rows)[number]) => (d.kind === 'statistical' ? LIGHT : 'white'), stroke: INK, strokeWidth: 1, insetTop: 3, insetBottom: 3 }),
+    Plot.barX(rows, {
+      y: 'label',
+      x: 'sigma',
+      fill: (d: (typeof rows)[number]) => (d.kind === 'statistical' ? LIGHT : 'white'),
+      stroke: INK,
+      strokeWidth: 1,
+      insetTop: 3,
+      insetBottom: 3,
+    }),
     Plot.text(rows, { y: 'label', x: 'sigma', text: 'share', textAnchor: 'start', dx: 6, fill: INK }),
     Plot.ruleX([0], { stroke: INK }),
     ...leg.marks,
@@ -47,10 +55,19 @@ export function errorBudget(r: Results): FigureSpec | null {
       'Contribution of each source to the uncertainty of H0, in km/s/Mpc, with its share of the total variance (shares add up to 100 %; the bars themselves add in quadrature). Grey: statistical; white: systematic (from the variants).',
     alt:
       `Total uncertainty ${fixed(r.h0.total, 2)} km/s/Mpc (statistical ${fixed(r.h0.stat, 2)}, systematic ${fixed(r.h0.sys, 2)}). ` +
-      `${listText(r.budget.map((b) => `${b.label}: ${fixed(b.sigma_h0, 2)} km/s/Mpc, ${percent(b.fraction)} of the variance (${b.kind})`), 20)}.`,
+      `${listText(
+        r.budget.map((b) => `${b.label}: ${fixed(b.sigma_h0, 2)} km/s/Mpc, ${percent(b.fraction)} of the variance (${b.kind})`),
+        20,
+      )}.`,
     ...out,
     csv: {
-      columns: [col('source', 'string'), col('label', 'string'), col('kind', 'string'), col('sigma_h0', 'float64', 'km / (Mpc s)'), col('fraction', 'float64', '', 'share of the variance of H0')],
+      columns: [
+        col('source', 'string'),
+        col('label', 'string'),
+        col('kind', 'string'),
+        col('sigma_h0', 'float64', 'km / (Mpc s)'),
+        col('fraction', 'float64', '', 'share of the variance of H0'),
+      ],
       rows: r.budget.map((b) => ({ source: b.source, label: b.label, kind: b.kind, sigma_h0: b.sigma_h0, fraction: b.fraction })),
     },
     thinned: null,

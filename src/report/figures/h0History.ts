@@ -27,11 +27,15 @@ export function h0History(all: readonly Results[]): FigureSpec | null {
   const notes = ordered
     .filter((r) => r.h0 === null || r.blinded)
     .map((r) => ({ label: clip(r.release.id, 20), text: r.blinded && r.h0 !== null ? 'BLINDED' : 'no H0 (ladder stops earlier)' }));
-  const leg = legend([
-    { label: 'H0', kind: 'dot', symbol: 'circle', filled: true },
-    { label: 'statistical', kind: 'line', width: 4 },
-    { label: 'total', kind: 'line', width: 1 },
-  ], undefined, 90);
+  const leg = legend(
+    [
+      { label: 'H0', kind: 'dot', symbol: 'circle', filled: true },
+      { label: 'statistical', kind: 'line', width: 4 },
+      { label: 'total', kind: 'line', width: 1 },
+    ],
+    undefined,
+    90,
+  );
   const xs = rows.flatMap((d) => [d.tLo, d.tHi]);
   const domain: [number, number] = xs.length ? [Math.min(...xs) - 0.5, Math.max(...xs) + 0.5] : [60, 80];
   const mid = (domain[0] + domain[1]) / 2;
@@ -57,15 +61,34 @@ export function h0History(all: readonly Results[]): FigureSpec | null {
     title: 'H0 across releases',
     caption: 'H0 of each release, oldest at the top, with its statistical error (thick bar) and total error (thin bar). Blinded releases show no value.',
     alt: `H0 of ${ordered.length} releases: ${listText(
-      ordered.map((r) => `${r.release.id}: ${r.h0 === null ? 'no H0' : r.blinded ? 'blinded' : `${pm(r.h0.value, r.h0.stat)} (stat) ± ${pm(r.h0.sys, null)} (sys) km/s/Mpc`}`),
+      ordered.map(
+        (r) =>
+          `${r.release.id}: ${r.h0 === null ? 'no H0' : r.blinded ? 'blinded' : `${pm(r.h0.value, r.h0.stat)} (stat) ± ${pm(r.h0.sys, null)} (sys) km/s/Mpc`}`,
+      ),
       20,
     )}.`,
     ...out,
     csv: {
-      columns: [col('release', 'string'), col('date', 'string'), col('blinded', 'bool'), col('h0', 'float64', 'km / (Mpc s)', 'empty when blinded or not measured'), col('h0_stat', 'float64', 'km / (Mpc s)'), col('h0_sys', 'float64', 'km / (Mpc s)'), col('h0_total', 'float64', 'km / (Mpc s)')],
+      columns: [
+        col('release', 'string'),
+        col('date', 'string'),
+        col('blinded', 'bool'),
+        col('h0', 'float64', 'km / (Mpc s)', 'empty when blinded or not measured'),
+        col('h0_stat', 'float64', 'km / (Mpc s)'),
+        col('h0_sys', 'float64', 'km / (Mpc s)'),
+        col('h0_total', 'float64', 'km / (Mpc s)'),
+      ],
       rows: ordered.map((r) => {
         const hide = r.h0 === null || r.blinded;
-        return { release: r.release.id, date: r.release.date, blinded: r.blinded, h0: hide ? null : r.h0!.value, h0_stat: r.h0?.stat ?? null, h0_sys: r.h0?.sys ?? null, h0_total: r.h0?.total ?? null };
+        return {
+          release: r.release.id,
+          date: r.release.date,
+          blinded: r.blinded,
+          h0: hide ? null : r.h0!.value,
+          h0_stat: r.h0?.stat ?? null,
+          h0_sys: r.h0?.sys ?? null,
+          h0_total: r.h0?.total ?? null,
+        };
       }),
     },
     thinned: null,

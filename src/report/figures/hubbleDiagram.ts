@@ -22,15 +22,18 @@ export const SN_CLASSES: Record<Cls, { label: string; symbol: Plot.SymbolType; f
 };
 export function snMarks(rows: { x: number; y: number; cls: Cls }[]): Plot.Markish[] {
   return (['outside', 'fit', 'rejected'] as Cls[]).map((k) =>
-    Plot.dot(rows.filter((d) => d.cls === k), {
-      x: 'x',
-      y: 'y',
-      r: k === 'rejected' ? 4 : 2.2,
-      symbol: SN_CLASSES[k].symbol,
-      fill: SN_CLASSES[k].filled ? INK : 'white',
-      stroke: k === 'fit' ? 'none' : INK,
-      strokeWidth: k === 'rejected' ? 1.5 : 0.8,
-    }),
+    Plot.dot(
+      rows.filter((d) => d.cls === k),
+      {
+        x: 'x',
+        y: 'y',
+        r: k === 'rejected' ? 4 : 2.2,
+        symbol: SN_CLASSES[k].symbol,
+        fill: SN_CLASSES[k].filled ? INK : 'white',
+        stroke: k === 'fit' ? 'none' : INK,
+        strokeWidth: k === 'rejected' ? 1.5 : 0.8,
+      },
+    ),
   );
 }
 
@@ -62,7 +65,12 @@ export function hubbleDiagram(r: Results): FigureSpec | null {
     label: 'Hubble diagram of the Hubble-flow supernovae',
     height: 420 + leg.marginTop,
     marginTop: leg.marginTop,
-    x: { type: 'log', label: 'Redshift z (CMB frame)', tickFormat: (z: number) => (Math.abs(Math.log10(z) - Math.round(Math.log10(z))) < 1e-9 || [0.02, 0.05].some((v) => Math.abs(v - z) < 1e-12) ? String(z) : '') },
+    x: {
+      type: 'log',
+      label: 'Redshift z (CMB frame)',
+      tickFormat: (z: number) =>
+        Math.abs(Math.log10(z) - Math.round(Math.log10(z))) < 1e-9 || [0.02, 0.05].some((v) => Math.abs(v - z) < 1e-12) ? String(z) : '',
+    },
     y: { label: 'Distance modulus μ (mag)', nice: true },
     marks,
   });
@@ -82,7 +90,15 @@ export function hubbleDiagram(r: Results): FigureSpec | null {
       (r.h0 ? ` H0 = ${pm(r.h0.value, r.h0.stat)} km/s/Mpc (statistical)${blinded ? ', BLINDED' : ''}.` : ''),
     ...out,
     csv: {
-      columns: [col('sn', 'string'), col('z', 'float64'), col('mu', 'float64', 'mag'), col('mu_err', 'float64', 'mag'), col('model_mu', 'float64', 'mag', 'mu - residual'), col('in_sample', 'bool'), col('rejected', 'bool')],
+      columns: [
+        col('sn', 'string'),
+        col('z', 'float64'),
+        col('mu', 'float64', 'mag'),
+        col('mu_err', 'float64', 'mag'),
+        col('model_mu', 'float64', 'mag', 'mu - residual'),
+        col('in_sample', 'bool'),
+        col('rejected', 'bool'),
+      ],
       rows: flow.map((s) => ({ sn: s.sn, z: s.z, mu: s.mu, mu_err: s.m_corr_err, model_mu: s.mu - s.residual, in_sample: s.in_sample, rejected: s.rejected })),
     },
     thinned: t.note,

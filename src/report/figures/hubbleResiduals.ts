@@ -34,7 +34,12 @@ export function hubbleResiduals(r: Results): FigureSpec | null {
     label: 'Hubble-diagram residuals against redshift',
     height: 320 + leg.marginTop,
     marginTop: leg.marginTop,
-    x: { type: 'log', label: 'Redshift z (CMB frame)', tickFormat: (z: number) => (Math.abs(Math.log10(z) - Math.round(Math.log10(z))) < 1e-9 || [0.02, 0.05].some((v) => Math.abs(v - z) < 1e-12) ? String(z) : '') },
+    x: {
+      type: 'log',
+      label: 'Redshift z (CMB frame)',
+      tickFormat: (z: number) =>
+        Math.abs(Math.log10(z) - Math.round(Math.log10(z))) < 1e-9 || [0.02, 0.05].some((v) => Math.abs(v - z) < 1e-12) ? String(z) : '',
+    },
     y: { label: 'Residual (mag)', nice: true },
     marks,
   });
@@ -47,7 +52,14 @@ export function hubbleResiduals(r: Results): FigureSpec | null {
     alt: `${int(flow.length)} residuals; root mean square of the ${int(kept.length)} in the fit is ${fixed(rms, 3)} mag; fitted scatter ${fixed(s, 3)} mag; ${int(flow.filter((x) => x.rejected).length)} rejected.`,
     ...out,
     csv: {
-      columns: [col('sn', 'string'), col('line', 'int64'), col('z', 'float64'), col('residual', 'float64', 'mag'), col('in_sample', 'bool'), col('rejected', 'bool')],
+      columns: [
+        col('sn', 'string'),
+        col('line', 'int64'),
+        col('z', 'float64'),
+        col('residual', 'float64', 'mag'),
+        col('in_sample', 'bool'),
+        col('rejected', 'bool'),
+      ],
       rows: flow.map((x) => ({ sn: x.sn, line: x.line, z: x.z, residual: x.residual, in_sample: x.in_sample, rejected: x.rejected })),
     },
     thinned: t.note,

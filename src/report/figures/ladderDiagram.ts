@@ -98,7 +98,14 @@ function ladderMarks(r: Results, drawn: Point[], kinds: readonly Point['kind'][]
     ...leg.marks,
   ];
   if (r.rungs.supernovae.hubble_flow.length === 0) {
-    marks.push(Plot.text(['not reached in this release'], { x: Math.sqrt(Math.min(...drawn.map((p) => p.d)) * Math.max(...drawn.map((p) => p.d))), y: 3, fill: GREY, fontStyle: 'italic' }));
+    marks.push(
+      Plot.text(['not reached in this release'], {
+        x: Math.sqrt(Math.min(...drawn.map((p) => p.d)) * Math.max(...drawn.map((p) => p.d))),
+        y: 3,
+        fill: GREY,
+        fontStyle: 'italic',
+      }),
+    );
   }
   if (blinded) marks.push(blindedStamp());
   return marks;
@@ -114,7 +121,10 @@ function ladderInWords(systemsPts: readonly Point[], flowPts: readonly Point[]):
       return `${name}: ${int(flowPts.length)} supernovae from ${distanceText(Math.min(...ds))} to ${distanceText(Math.max(...ds))}`;
     }
     if (ps.length === 0) return `${name}: none`;
-    return `${name}: ${listText(ps.map((p) => `${p.name} ${distanceText(p.d)} (μ = ${pm(p.mu, p.muErr)} mag)`), 8)}`;
+    return `${name}: ${listText(
+      ps.map((p) => `${p.name} ${distanceText(p.d)} (μ = ${pm(p.mu, p.muErr)} mag)`),
+      8,
+    )}`;
   });
 }
 
@@ -131,7 +141,16 @@ function ladderCsv(points: readonly Point[]): NonNullable<FigureSpec['csv']> {
       col('distance_lo', 'float64', 'Mpc', 'distance at mu - mu_err'),
       col('distance_hi', 'float64', 'Mpc', 'distance at mu + mu_err'),
     ],
-    rows: points.map((p) => ({ name: p.name, kind: p.kind, rung: RUNGS[p.rung]!, mu: p.mu, mu_err: p.muErr, distance: p.d, distance_lo: p.dLo, distance_hi: p.dHi })),
+    rows: points.map((p) => ({
+      name: p.name,
+      kind: p.kind,
+      rung: RUNGS[p.rung]!,
+      mu: p.mu,
+      mu_err: p.muErr,
+      distance: p.d,
+      distance_lo: p.dLo,
+      distance_hi: p.dHi,
+    })),
   };
 }
 
@@ -146,10 +165,14 @@ export function ladderDiagram(r: Results): FigureSpec | null {
 
   const kinds = (['cluster', 'field', 'galaxy', 'supernova'] as const).filter((k) => drawn.some((p) => p.kind === k));
   const blinded = r.blinded && flowPts.length > 0;
-  const leg = legend([
-    ...kinds.map((k) => ({ label: SYMBOLS[k].label, kind: 'dot' as const, symbol: SYMBOLS[k].symbol, filled: SYMBOLS[k].filled })),
-    { label: '± 1σ', kind: 'line' as const, width: 1 },
-  ], undefined, 110);
+  const leg = legend(
+    [
+      ...kinds.map((k) => ({ label: SYMBOLS[k].label, kind: 'dot' as const, symbol: SYMBOLS[k].symbol, filled: SYMBOLS[k].filled })),
+      { label: '± 1σ', kind: 'line' as const, width: 1 },
+    ],
+    undefined,
+    110,
+  );
 
   const height = 330 + leg.marginTop;
   const out = renderSvg({

@@ -59,8 +59,10 @@ export function leaveOneOutFigure(r: Results, loo: LeaveOneOut): FigureSpec | nu
       'For each system, the change of H0 when every row naming it is removed and the whole ladder refitted (a full refit, not a linear estimate), with the σ of that change (the two fits share all other data, so σ² is the difference of their variances). A point far from zero in units of its bar means one system drives the result.' +
       (r.blinded ? ' While the release is blinded the shifts are shown relative to H0.' : ''),
     alt:
-      `${ok.length} systems left out one at a time, shifts in ${unit}; the largest is ${text(worst)}. ${listText(ok.map((x) => text(x.e)), 30)}.` +
-      (failed.length ? ` Cannot be left out: ${failed.map((e) => e.system).join(', ')}.` : ''),
+      `${ok.length} systems left out one at a time, shifts in ${unit}; the largest is ${text(worst)}. ${listText(
+        ok.map((x) => text(x.e)),
+        30,
+      )}.` + (failed.length ? ` Cannot be left out: ${failed.map((e) => e.system).join(', ')}.` : ''),
     ...out,
     csv: {
       columns: [

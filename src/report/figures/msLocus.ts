@@ -37,15 +37,18 @@ export function starClass(s: MainSequenceStarResult): keyof typeof STAR_CLASSES 
 
 export function starMarks(rows: { c: number; m: number; cls: keyof typeof STAR_CLASSES }[]): Plot.Markish[] {
   return (Object.keys(STAR_CLASSES) as (keyof typeof STAR_CLASSES)[]).map((k) =>
-    Plot.dot(rows.filter((d) => d.cls === k), {
-      x: 'c',
-      y: 'm',
-      r: k === 'used' ? 2.2 : 3,
-      symbol: STAR_CLASSES[k].symbol,
-      fill: STAR_CLASSES[k].filled ? INK : 'white',
-      stroke: k === 'used' ? 'none' : INK,
-      strokeWidth: 1,
-    }),
+    Plot.dot(
+      rows.filter((d) => d.cls === k),
+      {
+        x: 'c',
+        y: 'm',
+        r: k === 'used' ? 2.2 : 3,
+        symbol: STAR_CLASSES[k].symbol,
+        fill: STAR_CLASSES[k].filled ? INK : 'white',
+        stroke: k === 'used' ? 'none' : INK,
+        strokeWidth: 1,
+      },
+    ),
   );
 }
 

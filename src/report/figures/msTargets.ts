@@ -38,7 +38,10 @@ export function msTargets(r: Results): FigureSpec | null {
   for (const n of names) {
     const sh = shapeOf(n);
     marks.push(
-      Plot.dot(rows.filter((d) => d.system === n), { x: 'c', y: 'm', r: 3, symbol: sh.symbol, fill: sh.filled ? INK : 'white', stroke: INK, strokeWidth: 0.8, strokeOpacity: 1 }),
+      Plot.dot(
+        rows.filter((d) => d.system === n),
+        { x: 'c', y: 'm', r: 3, symbol: sh.symbol, fill: sh.filled ? INK : 'white', stroke: INK, strokeWidth: 0.8, strokeOpacity: 1 },
+      ),
     );
   }
   marks.push(...leg.marks);

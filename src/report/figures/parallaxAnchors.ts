@@ -22,11 +22,15 @@ export function parallaxAnchors(r: Results): FigureSpec | null {
     totLo: r5(a.mu - a.mu_err),
     totHi: r5(a.mu + a.mu_err),
   }));
-  const leg = legend([
-    { label: 'μ', kind: 'dot', symbol: 'circle', filled: false },
-    { label: 'statistical error', kind: 'line', width: 4 },
-    { label: 'with zero-point error', kind: 'line', width: 1 },
-  ], undefined, 150);
+  const leg = legend(
+    [
+      { label: 'μ', kind: 'dot', symbol: 'circle', filled: false },
+      { label: 'statistical error', kind: 'line', width: 4 },
+      { label: 'with zero-point error', kind: 'line', width: 1 },
+    ],
+    undefined,
+    150,
+  );
   const out = renderSvg({
     id: ID,
     label: 'Distance modulus of each parallax anchor',
@@ -49,7 +53,10 @@ export function parallaxAnchors(r: Results): FigureSpec | null {
     caption:
       'Distance modulus of each anchor from its stars’ zero-point corrected parallaxes. Thick bar: statistical error (with the error scale and floor); thin bar: including the shared zero-point error.',
     alt: `Distance moduli of ${anchors.length} anchors: ${listText(
-      anchors.map((a) => `${a.system}: μ = ${pm(a.mu, a.mu_err)} mag (statistical ${fixed(a.mu_err_stat, 4)}), ${distanceText(distanceMpcFromModulus(a.mu))}, from ${a.n_stars} stars`),
+      anchors.map(
+        (a) =>
+          `${a.system}: μ = ${pm(a.mu, a.mu_err)} mag (statistical ${fixed(a.mu_err_stat, 4)}), ${distanceText(distanceMpcFromModulus(a.mu))}, from ${a.n_stars} stars`,
+      ),
     )}.`,
     ...out,
     csv: {

@@ -92,9 +92,18 @@ export function parallaxPosteriors(r: Results): FigureSpec | null {
     marks: [
       Plot.link([{ a: lo, b: hi }], { x1: 'a', y1: 'a', x2: 'b', y2: 'b', stroke: GREY, strokeDasharray: '4,3' }),
       Plot.link(rows, { x1: 'inv', x2: 'inv', y1: 'q05', y2: 'q95', stroke: GREY, strokeWidth: 0.7 }),
-      Plot.dot(rows.filter((d) => d.cls === 'ok'), { x: 'inv', y: 'q50', r: 2.5, fill: INK }),
-      Plot.dot(rows.filter((d) => d.cls === 'low'), { x: 'inv', y: 'q50', r: 3, fill: 'white', stroke: INK }),
-      Plot.dot(rows.filter((d) => d.cls === 'bimodal'), { x: 'inv', y: 'q50', r: 4, symbol: 'triangle', fill: 'white', stroke: INK }),
+      Plot.dot(
+        rows.filter((d) => d.cls === 'ok'),
+        { x: 'inv', y: 'q50', r: 2.5, fill: INK },
+      ),
+      Plot.dot(
+        rows.filter((d) => d.cls === 'low'),
+        { x: 'inv', y: 'q50', r: 3, fill: 'white', stroke: INK },
+      ),
+      Plot.dot(
+        rows.filter((d) => d.cls === 'bimodal'),
+        { x: 'inv', y: 'q50', r: 4, symbol: 'triangle', fill: 'white', stroke: INK },
+      ),
       ...leg.marks,
     ],
   });

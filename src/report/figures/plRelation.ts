@@ -27,8 +27,14 @@ export function plRelation(r: Results): FigureSpec | null {
   ];
   const marks: Plot.Markish[] = [
     Plot.gridY({ stroke: GREY, strokeOpacity: 0.2 }),
-    Plot.dot(rows.filter((d) => !d.rejected), { x: 'p', y: 'w', r: 2.2, fill: 'white', stroke: INK, strokeWidth: 0.7 }),
-    Plot.dot(rows.filter((d) => d.rejected), { x: 'p', y: 'w', r: 4, symbol: 'times', stroke: INK, strokeWidth: 1.5 }),
+    Plot.dot(
+      rows.filter((d) => !d.rejected),
+      { x: 'p', y: 'w', r: 2.2, fill: 'white', stroke: INK, strokeWidth: 0.7 },
+    ),
+    Plot.dot(
+      rows.filter((d) => d.rejected),
+      { x: 'p', y: 'w', r: 4, symbol: 'times', stroke: INK, strokeWidth: 1.5 },
+    ),
   ];
   if (MW && bW) {
     const line = [pMin, pMax].map((p) => ({ p: r5(p), w: r5(MW.value + bW.value * (p - pivot)) }));
@@ -55,7 +61,9 @@ export function plRelation(r: Results): FigureSpec | null {
       'Wesenheit magnitude of each Cepheid minus its host’s fitted distance modulus, against the logarithm of the period; the line is the fitted relation at [O/H] = 0. Crosses: rejected by the outlier rule.',
     alt:
       `${int(ceph.length)} Cepheids in ${hosts} systems, log period from ${fixed(pMin, 2)} to ${fixed(pMax, 2)}; ${int(nRej)} rejected. ` +
-      (MW && bW ? `Fitted M_W = ${pm(MW.value, MW.err)} mag at log P = ${fixed(pivot, 2)}, slope b_W = ${pm(bW.value, bW.err)} mag/dex` : 'No fitted relation') +
+      (MW && bW
+        ? `Fitted M_W = ${pm(MW.value, MW.err)} mag at log P = ${fixed(pivot, 2)}, slope b_W = ${pm(bW.value, bW.err)} mag/dex`
+        : 'No fitted relation') +
       (r.parameters.Z_W ? `, metallicity term Z_W = ${pm(r.parameters.Z_W.value, r.parameters.Z_W.err)} mag/dex` : '') +
       `; intrinsic scatter ${fixed(r.fit.scatter.cepheids, 3)} mag.`,
     ...out,
@@ -71,7 +79,17 @@ export function plRelation(r: Results): FigureSpec | null {
         col('residual', 'float64', 'mag'),
         col('rejected', 'bool'),
       ],
-      rows: ceph.map((c) => ({ star: c.star, system: c.system, log_period: c.log_period, w: c.w, w_err: c.w_err, oh: c.oh, abs_w: c.abs_w, residual: c.residual, rejected: c.rejected })),
+      rows: ceph.map((c) => ({
+        star: c.star,
+        system: c.system,
+        log_period: c.log_period,
+        w: c.w,
+        w_err: c.w_err,
+        oh: c.oh,
+        abs_w: c.abs_w,
+        residual: c.residual,
+        rejected: c.rejected,
+      })),
     },
     thinned: t.note,
     blinded: false,

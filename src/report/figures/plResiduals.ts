@@ -24,7 +24,11 @@ export interface ResidualPoint {
  * src/report/figures/systemFigures.ts): a zero line, ± the intrinsic scatter dashed, kept Cepheids
  * as open circles and rejected ones as crosses, both hoverable, and the legend for them.
  */
-export function residualLayers(rows: readonly ResidualPoint[], scatter: number, o: { pointLabel: string; scatterLabel: string; dotR: number; dotStroke: number }) {
+export function residualLayers(
+  rows: readonly ResidualPoint[],
+  scatter: number,
+  o: { pointLabel: string; scatterLabel: string; dotR: number; dotStroke: number },
+) {
   const leg = legend([
     { label: o.pointLabel, kind: 'dot', symbol: 'circle', filled: false },
     ...(rows.some((d) => d.rejected) ? [{ label: 'rejected', kind: 'dot' as const, symbol: 'times' as const, filled: false }] : []),
@@ -51,8 +55,24 @@ export function residualLayers(rows: readonly ResidualPoint[], scatter: number, 
 /** The CSV of a residual figure: one row per Cepheid, with a link to its row on its system's page. */
 export function residualCsv(release: string, ceph: readonly Cepheid[]): FigureSpec['csv'] {
   return {
-    columns: [col('star', 'string'), col('system', 'string'), col('line', 'int64', '', 'line in the input file'), col('log_period', 'float64'), col('residual', 'float64', 'mag'), col('rejected', 'bool'), col('page', 'string', '', 'the Cepheid’s row on its system’s page (site-relative link)')],
-    rows: ceph.map((c) => ({ star: c.star, system: c.system, line: c.line, log_period: c.log_period, residual: c.residual, rejected: c.rejected, page: objectLink(release, c.system, c.star) })),
+    columns: [
+      col('star', 'string'),
+      col('system', 'string'),
+      col('line', 'int64', '', 'line in the input file'),
+      col('log_period', 'float64'),
+      col('residual', 'float64', 'mag'),
+      col('rejected', 'bool'),
+      col('page', 'string', '', 'the Cepheid’s row on its system’s page (site-relative link)'),
+    ],
+    rows: ceph.map((c) => ({
+      star: c.star,
+      system: c.system,
+      line: c.line,
+      log_period: c.log_period,
+      residual: c.residual,
+      rejected: c.rejected,
+      page: objectLink(release, c.system, c.star),
+    })),
   };
 }
 
@@ -80,7 +100,8 @@ export function plResiduals(r: Results): FigureSpec | null {
   return {
     id: ID,
     title: 'Period–luminosity residuals',
-    caption: 'Residual of each Cepheid from the fitted relation (observed minus model) against log period. Dashed: ± the fitted intrinsic scatter. Crosses: rejected.',
+    caption:
+      'Residual of each Cepheid from the fitted relation (observed minus model) against log period. Dashed: ± the fitted intrinsic scatter. Crosses: rejected.',
     alt: `${int(ceph.length)} residuals; root mean square of the ${int(kept.length)} kept is ${fixed(rms, 3)} mag, fitted intrinsic scatter ${fixed(s, 3)} mag; the largest residual is ${fixed(worst.residual, 2)} mag (${worst.star}, line ${worst.line}).`,
     ...out,
     csv: residualCsv(r.release.id, ceph),

@@ -119,10 +119,7 @@ const DASH_SYMBOL = {
   },
 };
 const BAND_SYMBOL = {
-  draw(
-    context: { moveTo(x: number, y: number): void; lineTo(x: number, y: number): void; closePath(): void },
-    _size: number,
-  ) {
+  draw(context: { moveTo(x: number, y: number): void; lineTo(x: number, y: number): void; closePath(): void }, _size: number) {
     context.moveTo(-9, -5);
     context.lineTo(9, -5);
     context.lineTo(9, 5);
@@ -186,9 +183,7 @@ export function legend(items: LegendItem[], width = FIGURE_WIDTH, marginLeft = 6
         }),
       );
     } else {
-      marks.push(
-        Plot.dot([0], { ...at, symbol: BAND_SYMBOL as unknown as Plot.SymbolType, r: 4, fill: p.item.fill, stroke: GREY, strokeWidth: 0.5 }),
-      );
+      marks.push(Plot.dot([0], { ...at, symbol: BAND_SYMBOL as unknown as Plot.SymbolType, r: 4, fill: p.item.fill, stroke: GREY, strokeWidth: 0.5 }));
     }
     marks.push(Plot.text([p.item.label], { frameAnchor: 'top-left', dx: p.x + 24, dy: dy - 6, textAnchor: 'start', lineAnchor: 'top', fontSize: FONT_SIZE }));
   }

@@ -78,7 +78,10 @@ export function recoveryPulls(s: RecoverySummary): FigureSpec | null {
       'A histogram shifted from zero shows a bias; one wider than the curve, errors that are too small; one narrower, errors that are too large.',
     alt:
       `Pull distributions of ${qs.length} quantities over ${s.seeds.calibrated} simulated releases of release ${s.release.id}; verdict ${s.verdict}. ` +
-      `${listText(qs.map((q) => `${describeQuantity(q.key)}: mean ${fixed(q.mean.value, 2)}, SD ${fixed(q.sd.value, 2)}`), 60)}.`,
+      `${listText(
+        qs.map((q) => `${describeQuantity(q.key)}: mean ${fixed(q.mean.value, 2)}, SD ${fixed(q.sd.value, 2)}`),
+        60,
+      )}.`,
     ...out,
     csv: {
       columns: [col('quantity', 'string'), col('bin_low', 'float64'), col('bin_high', 'float64'), col('count', 'int64'), col('density', 'float64')],

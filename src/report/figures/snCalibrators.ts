@@ -18,7 +18,7 @@ export function snCalibrators(r: Results): FigureSpec | null {
   const hostErr = new Map(r.systems.map((s) => [s.id, s.mu_err ?? 0]));
   const data = cal.map((c) => {
     const m = c.m_corr - c.mu;
-    const err = Math.hypot(c.m_corr_err, c.system ? hostErr.get(c.system) ?? 0 : 0);
+    const err = Math.hypot(c.m_corr_err, c.system ? (hostErr.get(c.system) ?? 0) : 0);
     return { sn: c.sn, host: c.system ?? '', label: clip(`${c.sn} (${c.system ?? '?'})`, 30), m, err, rejected: c.rejected };
   });
   const kept = data.flatMap((d, i) => (d.rejected ? [] : [i]));
@@ -39,8 +39,14 @@ export function snCalibrators(r: Results): FigureSpec | null {
   }
   marks.push(
     Plot.ruleY(rows, { y: 'label', x1: 'lo', x2: 'hi', stroke: INK }),
-    Plot.dot(rows.filter((d) => !d.rejected), { y: 'label', x: 'm', r: 4, fill: INK, className: 'hover-kept' }),
-    Plot.dot(rows.filter((d) => d.rejected), { y: 'label', x: 'm', r: 5, symbol: 'times', stroke: INK, strokeWidth: 1.5, className: 'hover-rejected' }),
+    Plot.dot(
+      rows.filter((d) => !d.rejected),
+      { y: 'label', x: 'm', r: 4, fill: INK, className: 'hover-kept' },
+    ),
+    Plot.dot(
+      rows.filter((d) => d.rejected),
+      { y: 'label', x: 'm', r: 5, symbol: 'times', stroke: INK, strokeWidth: 1.5, className: 'hover-rejected' },
+    ),
     ...leg.marks,
   );
   if (blinded) marks.push(blindedStamp());
@@ -81,7 +87,17 @@ export function snCalibrators(r: Results): FigureSpec | null {
         col('rejected', 'bool'),
         col('page', 'string', '', 'the supernova’s row on its host’s page (site-relative link)'),
       ],
-      rows: cal.map((c, i) => ({ sn: c.sn, system: c.system, m_corr: c.m_corr, m_corr_err: c.m_corr_err, host_mu: c.mu, abs_mag: data[i]!.m, abs_mag_err: data[i]!.err, rejected: c.rejected, page: c.system === null ? null : objectLink(r.release.id, c.system, c.sn) })),
+      rows: cal.map((c, i) => ({
+        sn: c.sn,
+        system: c.system,
+        m_corr: c.m_corr,
+        m_corr_err: c.m_corr_err,
+        host_mu: c.mu,
+        abs_mag: data[i]!.m,
+        abs_mag_err: data[i]!.err,
+        rejected: c.rejected,
+        page: c.system === null ? null : objectLink(r.release.id, c.system, c.sn),
+      })),
     },
     thinned: null,
     blinded,

@@ -66,7 +66,10 @@ export function systemSnCalibrators(r: Results, system: string): FigureSpec | nu
   const marks: Plot.Markish[] = [];
   if (MB) marks.push(Plot.rectX([0], { x1: MB.value - MB.err, x2: MB.value + MB.err, fill: PALE }), Plot.ruleX([MB.value], { stroke: GREY, strokeWidth: 1.5 }));
   marks.push(
-    Plot.dot(rows.filter((d) => !d.own), { y: 'label', x: 'm', r: 3, fill: 'white', stroke: GREY }),
+    Plot.dot(
+      rows.filter((d) => !d.own),
+      { y: 'label', x: 'm', r: 3, fill: 'white', stroke: GREY },
+    ),
     Plot.dot(own, { y: 'label', x: 'm', r: 5, fill: INK, className: 'hover-own' }),
     ...leg.marks,
   );
@@ -88,8 +91,22 @@ export function systemSnCalibrators(r: Results, system: string): FigureSpec | nu
     alt: `${own.length} supernova${own.length === 1 ? '' : 'e'} of ${system} among ${cal.length} calibrators: ${own.map((d) => `${cal[d.row]!.sn} at ${fixed(d.m, 3)} mag`).join('; ')}${MB ? `; fitted M_B ${fixed(MB.value, 3)} mag` : ''}.`,
     ...out,
     csv: {
-      columns: [col('sn', 'string'), col('system', 'string'), col('line', 'int64'), col('abs_mag', 'float64', 'mag', 'm_corr - host_mu'), col('rejected', 'bool'), col('page', 'string')],
-      rows: cal.map((c) => ({ sn: c.sn, system: c.system, line: c.line, abs_mag: c.m_corr - c.mu, rejected: c.rejected, page: c.system === null ? null : objectLink(r.release.id, c.system, c.sn) })),
+      columns: [
+        col('sn', 'string'),
+        col('system', 'string'),
+        col('line', 'int64'),
+        col('abs_mag', 'float64', 'mag', 'm_corr - host_mu'),
+        col('rejected', 'bool'),
+        col('page', 'string'),
+      ],
+      rows: cal.map((c) => ({
+        sn: c.sn,
+        system: c.system,
+        line: c.line,
+        abs_mag: c.m_corr - c.mu,
+        rejected: c.rejected,
+        page: c.system === null ? null : objectLink(r.release.id, c.system, c.sn),
+      })),
     },
     thinned: null,
     blinded,
@@ -134,8 +151,26 @@ export function systemCmd(r: Results, system: string): FigureSpec | null {
     alt: `${int(stars.length)} stars of ${system}, ${int(used.length)} used in the fit, on the anchors’ locus of degree ${locus.degree}.`,
     ...out,
     csv: {
-      columns: [col('star', 'string'), col('system', 'string'), col('line', 'int64'), col('color0', 'float64', 'mag'), col('abs_mag', 'float64', 'mag'), col('p_binary', 'float64'), col('used', 'bool'), col('page', 'string')],
-      rows: stars.map((s) => ({ star: s.star, system: s.system, line: s.line, color0: s.color0, abs_mag: s.abs_mag, p_binary: s.p_binary, used: s.used, page: objectLink(r.release.id, s.system, s.star) })),
+      columns: [
+        col('star', 'string'),
+        col('system', 'string'),
+        col('line', 'int64'),
+        col('color0', 'float64', 'mag'),
+        col('abs_mag', 'float64', 'mag'),
+        col('p_binary', 'float64'),
+        col('used', 'bool'),
+        col('page', 'string'),
+      ],
+      rows: stars.map((s) => ({
+        star: s.star,
+        system: s.system,
+        line: s.line,
+        color0: s.color0,
+        abs_mag: s.abs_mag,
+        p_binary: s.p_binary,
+        used: s.used,
+        page: objectLink(r.release.id, s.system, s.star),
+      })),
     },
     thinned: null,
     blinded: false,

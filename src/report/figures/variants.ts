@@ -60,10 +60,21 @@ export function variants(r: Results): FigureSpec | null {
       (r.blinded ? ' While the release is blinded, every value is scaled by the same hidden factor: read the ratios to the baseline, not the values.' : ''),
     alt:
       `Baseline H0 = ${pm(h0.value, h0.stat)} km/s/Mpc (statistical), total error ${fixed(h0.total, 2)}${bl}. ` +
-      `${listText(r.variants.map((v) => (v.h0 === null ? `${v.name}: failed` : `${v.name}: ${pm(v.h0, v.h0_stat)}, shift ${v.delta_h0 === null ? '—' : fixed(v.delta_h0, 2)}`)), 20)}.`,
+      `${listText(
+        r.variants.map((v) =>
+          v.h0 === null ? `${v.name}: failed` : `${v.name}: ${pm(v.h0, v.h0_stat)}, shift ${v.delta_h0 === null ? '—' : fixed(v.delta_h0, 2)}`,
+        ),
+        20,
+      )}.`,
     ...out,
     csv: {
-      columns: [col('name', 'string'), col('h0', 'float64', 'km / (Mpc s)'), col('h0_stat', 'float64', 'km / (Mpc s)'), col('delta_h0', 'float64', 'km / (Mpc s)'), col('error', 'string')],
+      columns: [
+        col('name', 'string'),
+        col('h0', 'float64', 'km / (Mpc s)'),
+        col('h0_stat', 'float64', 'km / (Mpc s)'),
+        col('delta_h0', 'float64', 'km / (Mpc s)'),
+        col('error', 'string'),
+      ],
       rows: [
         { name: 'baseline', h0: h0.value, h0_stat: h0.stat, delta_h0: 0, error: null },
         ...r.variants.map((v) => ({ name: v.name, h0: v.h0, h0_stat: v.h0_stat, delta_h0: v.delta_h0, error: v.error })),
