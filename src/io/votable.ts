@@ -97,12 +97,8 @@ function readFields(table: XmlNode, scannable: string, tableLine: number, proble
   });
 }
 
-export function readVotable(bytes: Uint8Array): ParsedTable {
-  const decoded = decodeUtf8(bytes);
-  if ('problem' in decoded) return { problems: [decoded.problem] };
-  const text = decoded.text;
-  const problems: Problem[] = [];
-
+/** The document parsed, after the checks that it is UTF-8 and well-formed XML; null (with the problem pushed) when not. */
+function parseDocument(text: string, problems: Problem[]): XmlNode | null {
   const declared = /^\s*<\?xml[^>]*encoding\s*=\s*["']([^"']+)["']/.exec(text);
   if (declared && !/^(utf-8|utf8|us-ascii|ascii)$/i.test(declared[1])) {
     problems.push({
@@ -112,12 +108,12 @@ export function readVotable(bytes: Uint8Array): ParsedTable {
       expected: 'encoding="UTF-8"',
       found: shown(declared[1]),
     });
-    return { problems };
+    return null;
   }
   const valid = XMLValidator.validate(text);
   if (valid !== true) {
     problems.push({ code: 'bad-xml', line: valid.err.line, message: `the file is not well-formed XML: ${valid.err.msg}` });
-    return { problems };
+    return null;
   }
   const parser = new XMLParser({
     ignoreAttributes: false,
@@ -128,7 +124,46 @@ export function readVotable(bytes: Uint8Array): ParsedTable {
     trimValues: false,
     isArray: (name) => ARRAYS.has(name),
   });
-  const doc = parser.parse(text) as XmlNode;
+  return parser.parse(text) as XmlNode;
+}
+
+/** The TABLEDATA rows, each with its line; null (with the problem pushed) for a serialisation not read. */
+function readRows(table: XmlNode, scannable: string, tableLine: number, problems: Problem[]): RawRow[] | null {
+  const data = table.DATA as XmlNode | undefined;
+  const rows: RawRow[] = [];
+  if (data && typeof data === 'object') {
+    for (const other of ['BINARY', 'BINARY2', 'FITS']) {
+      if (data[other] !== undefined) {
+        problems.push({
+          code: 'unsupported-serialisation',
+          line: tagLines(scannable, other)[0] ?? tableLine,
+          message: `the ${other} serialisation of VOTable is not read`,
+          expected: 'TABLEDATA (rows as <TR><TD>...</TD></TR>)',
+          found: other,
+          hint: 'write the table with the TABLEDATA serialisation, or as ECSV',
+        });
+        return null;
+      }
+    }
+    const tabledata = data.TABLEDATA as XmlNode | undefined;
+    const trs = tabledata && typeof tabledata === 'object' ? asArray(tabledata.TR) : [];
+    const trLines = tagLines(scannable, 'TR');
+    trs.forEach((tr, i) => {
+      const tds = Array.isArray(tr.TD) ? tr.TD : tr.TD === undefined ? [] : [tr.TD];
+      rows.push({ line: trLines[i] ?? tableLine, cells: tds.map((td) => tdText(td).trim()) });
+    });
+  }
+  return rows;
+}
+
+export function readVotable(bytes: Uint8Array): ParsedTable {
+  const decoded = decodeUtf8(bytes);
+  if ('problem' in decoded) return { problems: [decoded.problem] };
+  const text = decoded.text;
+  const problems: Problem[] = [];
+
+  const doc = parseDocument(text, problems);
+  if (doc === null) return { problems };
   const scannable = blankNonMarkup(text);
   const root = doc.VOTABLE;
   if (root === undefined || typeof root !== 'object') {
@@ -166,29 +201,7 @@ export function readVotable(bytes: Uint8Array): ParsedTable {
     return { problems };
   }
 
-  const data = table.DATA as XmlNode | undefined;
-  const rows: RawRow[] = [];
-  if (data && typeof data === 'object') {
-    for (const other of ['BINARY', 'BINARY2', 'FITS']) {
-      if (data[other] !== undefined) {
-        problems.push({
-          code: 'unsupported-serialisation',
-          line: tagLines(scannable, other)[0] ?? tableLine,
-          message: `the ${other} serialisation of VOTable is not read`,
-          expected: 'TABLEDATA (rows as <TR><TD>...</TD></TR>)',
-          found: other,
-          hint: 'write the table with the TABLEDATA serialisation, or as ECSV',
-        });
-        return { problems };
-      }
-    }
-    const tabledata = data.TABLEDATA as XmlNode | undefined;
-    const trs = tabledata && typeof tabledata === 'object' ? asArray(tabledata.TR) : [];
-    const trLines = tagLines(scannable, 'TR');
-    trs.forEach((tr, i) => {
-      const tds = Array.isArray(tr.TD) ? tr.TD : tr.TD === undefined ? [] : [tr.TD];
-      rows.push({ line: trLines[i] ?? tableLine, cells: tds.map((td) => tdText(td).trim()) });
-    });
-  }
+  const rows = readRows(table, scannable, tableLine, problems);
+  if (rows === null) return { problems };
   return { table: { columns, headerLine: tableLine, rows }, problems };
 }
