@@ -124,22 +124,8 @@ export function isIsoDate(s: string): boolean {
   return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
 }
 
-/**
- * Parse and check blinding.json. Throws InputError naming the file and the field.
- * `file` is the path shown in messages.
- */
-export function parseBlindingRecord(text: string, file: string): BlindingRecord {
-  const issues: InputIssue[] = [];
-  const bad = (field: string, expected: string, found: unknown): void => {
-    issues.push({
-      code: 'bad-blinding-record',
-      file,
-      column: field,
-      message: `blinding.json: ${field} is not valid`,
-      expected,
-      found: JSON.stringify(found) ?? String(found),
-    });
-  };
+/** The text as one JSON object, or an InputError naming the file. */
+function recordObject(text: string, file: string): Record<string, unknown> {
   let data: unknown;
   try {
     data = JSON.parse(text.replace(/^\uFEFF/, ''));
@@ -160,7 +146,46 @@ export function parseBlindingRecord(text: string, file: string): BlindingRecord 
       { code: 'bad-blinding-record', file, message: 'blinding.json must hold one JSON object', expected: 'an object', found: typeof data },
     ]);
   }
-  const o = data as Record<string, unknown>;
+  return data as Record<string, unknown>;
+}
+
+/** The `unblinded` entry: null, or {by, date, offset_mag, salt} checked field by field (each problem through `bad`). */
+function readUnblinded(o: Record<string, unknown>, bad: (field: string, expected: string, found: unknown) => void): UnblindingEntry | null {
+  let unblinded: UnblindingEntry | null = null;
+  if (o.unblinded !== null) {
+    const u = o.unblinded as Record<string, unknown> | undefined;
+    if (!u || typeof u !== 'object' || Array.isArray(u)) bad('unblinded', 'null or {by, date, offset_mag, salt}', o.unblinded);
+    else {
+      if (typeof u.by !== 'string' || u.by.trim() === '') bad('unblinded.by', 'a name', u.by);
+      if (typeof u.date !== 'string' || !isIsoDate(u.date)) bad('unblinded.date', 'a date YYYY-MM-DD', u.date);
+      else if (typeof o.blinded_on === 'string' && u.date < o.blinded_on) bad('unblinded.date', `a date not before blinded_on (${o.blinded_on})`, u.date);
+      if (typeof u.offset_mag !== 'number' || !Number.isFinite(u.offset_mag)) bad('unblinded.offset_mag', 'a number', u.offset_mag);
+      if (typeof u.salt !== 'string' || !HEX64.test(u.salt)) bad('unblinded.salt', '64 lower-case hex digits', u.salt);
+      const extra = Object.keys(u).filter((k) => !['by', 'date', 'offset_mag', 'salt'].includes(k));
+      if (extra.length) bad('unblinded', 'only by, date, offset_mag, salt', extra.join(', '));
+      unblinded = { by: u.by as string, date: u.date as string, offset_mag: u.offset_mag as number, salt: u.salt as string };
+    }
+  }
+  return unblinded;
+}
+
+/**
+ * Parse and check blinding.json. Throws InputError naming the file and the field.
+ * `file` is the path shown in messages.
+ */
+export function parseBlindingRecord(text: string, file: string): BlindingRecord {
+  const issues: InputIssue[] = [];
+  const bad = (field: string, expected: string, found: unknown): void => {
+    issues.push({
+      code: 'bad-blinding-record',
+      file,
+      column: field,
+      message: `blinding.json: ${field} is not valid`,
+      expected,
+      found: JSON.stringify(found) ?? String(found),
+    });
+  };
+  const o = recordObject(text, file);
   const str = (k: string, test: (s: string) => boolean, expected: string): string => {
     const v = o[k];
     if (typeof v !== 'string' || !test(v)) bad(k, expected, v);
@@ -188,21 +213,7 @@ export function parseBlindingRecord(text: string, file: string): BlindingRecord 
   const keyCheck = str('key_check', (x) => HEX64.test(x), '64 lower-case hex digits');
   const commitment = str('commitment', (x) => HEX64.test(x), '64 lower-case hex digits');
   const blindedOn = str('blinded_on', isIsoDate, 'a date YYYY-MM-DD');
-  let unblinded: UnblindingEntry | null = null;
-  if (o.unblinded !== null) {
-    const u = o.unblinded as Record<string, unknown> | undefined;
-    if (!u || typeof u !== 'object' || Array.isArray(u)) bad('unblinded', 'null or {by, date, offset_mag, salt}', o.unblinded);
-    else {
-      if (typeof u.by !== 'string' || u.by.trim() === '') bad('unblinded.by', 'a name', u.by);
-      if (typeof u.date !== 'string' || !isIsoDate(u.date)) bad('unblinded.date', 'a date YYYY-MM-DD', u.date);
-      else if (typeof o.blinded_on === 'string' && u.date < o.blinded_on) bad('unblinded.date', `a date not before blinded_on (${o.blinded_on})`, u.date);
-      if (typeof u.offset_mag !== 'number' || !Number.isFinite(u.offset_mag)) bad('unblinded.offset_mag', 'a number', u.offset_mag);
-      if (typeof u.salt !== 'string' || !HEX64.test(u.salt)) bad('unblinded.salt', '64 lower-case hex digits', u.salt);
-      const extra = Object.keys(u).filter((k) => !['by', 'date', 'offset_mag', 'salt'].includes(k));
-      if (extra.length) bad('unblinded', 'only by, date, offset_mag, salt', extra.join(', '));
-      unblinded = { by: u.by as string, date: u.date as string, offset_mag: u.offset_mag as number, salt: u.salt as string };
-    }
-  }
+  const unblinded = readUnblinded(o, bad);
   const known = ['schema', 'blinding_id', 'table', 'column', 'rows', 'scheme', 'key_check', 'commitment', 'blinded_on', 'unblinded'];
   const extra = Object.keys(o).filter((k) => !known.includes(k));
   if (extra.length) bad(extra[0]!, `only the keys ${known.join(', ')}`, extra.join(', '));
