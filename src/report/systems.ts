@@ -133,9 +133,8 @@ function objectsOf(r: Results, system: string) {
 }
 type SystemObjects = ReturnType<typeof objectsOf>;
 
-/** The object tables of a system page (only those with rows), every row anchored. */
-function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
-  const taken = new Set<string>();
+/** The Cepheid and supernova tables of a system page (null when a table has no rows). */
+function extragalacticTables(o: SystemObjects, files: ObjectFiles, taken: Set<string>): (TableView | null)[] {
   return [
     objectTable(
       'system-cepheids',
@@ -178,6 +177,12 @@ function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
       })),
       taken,
     ),
+  ];
+}
+
+/** The parallax and main-sequence star tables of a system page (null when a table has no rows). */
+function starTables(o: SystemObjects, files: ObjectFiles, taken: Set<string>): (TableView | null)[] {
+  return [
     objectTable(
       'system-parallax',
       'Parallax stars',
@@ -224,7 +229,13 @@ function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
       })),
       taken,
     ),
-  ].filter((t): t is TableView => t !== null);
+  ];
+}
+
+/** The object tables of a system page (only those with rows), every row anchored; anchors are unique across them (`taken`). */
+function objectTables(o: SystemObjects, files: ObjectFiles): TableView[] {
+  const taken = new Set<string>();
+  return [...extragalacticTables(o, files, taken), ...starTables(o, files, taken)].filter((t): t is TableView => t !== null);
 }
 
 const kv = (label: string, value: string, blinded = false): KeyValue => ({ label, value, blinded });
