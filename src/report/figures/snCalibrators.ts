@@ -75,31 +75,37 @@ export function snCalibrators(r: Results): FigureSpec | null {
       (MB ? `; fitted M_B = ${pm(MB.value, MB.err)} mag${blinded ? ' (BLINDED)' : ''}` : '') +
       `. ${listText(data.map((d) => `${d.sn} in ${d.host}: ${pm(d.m, d.err)} mag${d.rejected ? ' (rejected)' : ''}`))}.`,
     ...out,
-    csv: {
-      columns: [
-        col('sn', 'string'),
-        col('system', 'string'),
-        col('m_corr', 'float64', 'mag', 'standardised peak magnitude'),
-        col('m_corr_err', 'float64', 'mag'),
-        col('host_mu', 'float64', 'mag'),
-        col('abs_mag', 'float64', 'mag', 'm_corr - host_mu'),
-        col('abs_mag_err', 'float64', 'mag', 'with the host distance error'),
-        col('rejected', 'bool'),
-        col('page', 'string', '', 'the supernova’s row on its host’s page (site-relative link)'),
-      ],
-      rows: cal.map((c, i) => ({
-        sn: c.sn,
-        system: c.system,
-        m_corr: c.m_corr,
-        m_corr_err: c.m_corr_err,
-        host_mu: c.mu,
-        abs_mag: data[i]!.m,
-        abs_mag_err: data[i]!.err,
-        rejected: c.rejected,
-        page: c.system === null ? null : objectLink(r.release.id, c.system, c.sn),
-      })),
-    },
+    csv: calibratorCsv(r, data),
     thinned: null,
     blinded,
+  };
+}
+
+/** The figure's table: each calibrator with its host modulus and the absolute magnitude it implies, linked to its row. */
+function calibratorCsv(r: Results, data: readonly { m: number; err: number }[]): FigureSpec['csv'] {
+  const cal = r.rungs.supernovae.calibrators;
+  return {
+    columns: [
+      col('sn', 'string'),
+      col('system', 'string'),
+      col('m_corr', 'float64', 'mag', 'standardised peak magnitude'),
+      col('m_corr_err', 'float64', 'mag'),
+      col('host_mu', 'float64', 'mag'),
+      col('abs_mag', 'float64', 'mag', 'm_corr - host_mu'),
+      col('abs_mag_err', 'float64', 'mag', 'with the host distance error'),
+      col('rejected', 'bool'),
+      col('page', 'string', '', 'the supernova’s row on its host’s page (site-relative link)'),
+    ],
+    rows: cal.map((c, i) => ({
+      sn: c.sn,
+      system: c.system,
+      m_corr: c.m_corr,
+      m_corr_err: c.m_corr_err,
+      host_mu: c.mu,
+      abs_mag: data[i]!.m,
+      abs_mag_err: data[i]!.err,
+      rejected: c.rejected,
+      page: c.system === null ? null : objectLink(r.release.id, c.system, c.sn),
+    })),
   };
 }
