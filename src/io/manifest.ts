@@ -404,6 +404,24 @@ function variantNameProblem(value: unknown, line: number | undefined, where: str
   return null;
 }
 
+/** A variant otherwise sound that has no name, or overrides nothing (it would repeat the baseline); null when neither. */
+function incompleteVariant(name: string | undefined, overrideCount: number, itemLine: number, where: string): Problem | null {
+  if (name === undefined) {
+    return { code: 'bad-variant-name', line: itemLine, column: `${where}.name`, message: 'a variant has no name', expected: 'name: <text>', found: 'no name' };
+  }
+  if (overrideCount === 0) {
+    return {
+      code: 'empty-variant',
+      line: itemLine,
+      column: where,
+      message: 'the variant overrides no analysis key, so it would repeat the baseline',
+      expected: 'at least one analysis key',
+      found: 'only a name',
+    };
+  }
+  return null;
+}
+
 /** One entry of the variants list: its name and overrides when sound (problems added otherwise). */
 function readVariant(
   item: unknown,
@@ -467,27 +485,10 @@ function readVariant(
     (overrides as Record<string, unknown>)[k] = value;
     overrideLines[k] = keyLine;
   }
-  if (name === undefined && ok) {
+  const incomplete = ok ? incompleteVariant(name, Object.keys(overrides).length, itemLine, where) : null;
+  if (incomplete) {
     ok = false;
-    problems.push({
-      code: 'bad-variant-name',
-      line: itemLine,
-      column: `${where}.name`,
-      message: 'a variant has no name',
-      expected: 'name: <text>',
-      found: 'no name',
-    });
-  }
-  if (Object.keys(overrides).length === 0 && ok) {
-    ok = false;
-    problems.push({
-      code: 'empty-variant',
-      line: itemLine,
-      column: where,
-      message: 'the variant overrides no analysis key, so it would repeat the baseline',
-      expected: 'at least one analysis key',
-      found: 'only a name',
-    });
+    problems.push(incomplete);
   }
   return ok ? { name: name!, overrides, overrideLines, itemLine } : null;
 }
