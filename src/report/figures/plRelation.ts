@@ -67,31 +67,37 @@ export function plRelation(r: Results): FigureSpec | null {
       (r.parameters.Z_W ? `, metallicity term Z_W = ${pm(r.parameters.Z_W.value, r.parameters.Z_W.err)} mag/dex` : '') +
       `; intrinsic scatter ${fixed(r.fit.scatter.cepheids, 3)} mag.`,
     ...out,
-    csv: {
-      columns: [
-        col('star', 'string'),
-        col('system', 'string'),
-        col('log_period', 'float64', '', 'log10 of the period in days'),
-        col('w', 'float64', 'mag', 'apparent Wesenheit magnitude'),
-        col('w_err', 'float64', 'mag'),
-        col('oh', 'float64', 'dex'),
-        col('abs_w', 'float64', 'mag', 'W minus the host distance modulus'),
-        col('residual', 'float64', 'mag'),
-        col('rejected', 'bool'),
-      ],
-      rows: ceph.map((c) => ({
-        star: c.star,
-        system: c.system,
-        log_period: c.log_period,
-        w: c.w,
-        w_err: c.w_err,
-        oh: c.oh,
-        abs_w: c.abs_w,
-        residual: c.residual,
-        rejected: c.rejected,
-      })),
-    },
+    csv: cepheidCsv(r),
     thinned: t.note,
     blinded: false,
+  };
+}
+
+/** The figure's table: every Cepheid with its magnitudes and residual. */
+function cepheidCsv(r: Results): FigureSpec['csv'] {
+  const ceph = r.rungs.cepheids;
+  return {
+    columns: [
+      col('star', 'string'),
+      col('system', 'string'),
+      col('log_period', 'float64', '', 'log10 of the period in days'),
+      col('w', 'float64', 'mag', 'apparent Wesenheit magnitude'),
+      col('w_err', 'float64', 'mag'),
+      col('oh', 'float64', 'dex'),
+      col('abs_w', 'float64', 'mag', 'W minus the host distance modulus'),
+      col('residual', 'float64', 'mag'),
+      col('rejected', 'bool'),
+    ],
+    rows: ceph.map((c) => ({
+      star: c.star,
+      system: c.system,
+      log_period: c.log_period,
+      w: c.w,
+      w_err: c.w_err,
+      oh: c.oh,
+      abs_w: c.abs_w,
+      residual: c.residual,
+      rejected: c.rejected,
+    })),
   };
 }
