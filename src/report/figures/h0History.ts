@@ -68,30 +68,35 @@ export function h0History(all: readonly Results[]): FigureSpec | null {
       20,
     )}.`,
     ...out,
-    csv: {
-      columns: [
-        col('release', 'string'),
-        col('date', 'string'),
-        col('blinded', 'bool'),
-        col('h0', 'float64', 'km / (Mpc s)', 'empty when blinded or not measured'),
-        col('h0_stat', 'float64', 'km / (Mpc s)'),
-        col('h0_sys', 'float64', 'km / (Mpc s)'),
-        col('h0_total', 'float64', 'km / (Mpc s)'),
-      ],
-      rows: ordered.map((r) => {
-        const hide = r.h0 === null || r.blinded;
-        return {
-          release: r.release.id,
-          date: r.release.date,
-          blinded: r.blinded,
-          h0: hide ? null : r.h0!.value,
-          h0_stat: r.h0?.stat ?? null,
-          h0_sys: r.h0?.sys ?? null,
-          h0_total: r.h0?.total ?? null,
-        };
-      }),
-    },
+    csv: historyCsv(ordered),
     thinned: null,
     blinded: false,
+  };
+}
+
+/** The figure's table: each release's H0 and errors, the value left empty when blinded or not measured. */
+function historyCsv(ordered: readonly Results[]): FigureSpec['csv'] {
+  return {
+    columns: [
+      col('release', 'string'),
+      col('date', 'string'),
+      col('blinded', 'bool'),
+      col('h0', 'float64', 'km / (Mpc s)', 'empty when blinded or not measured'),
+      col('h0_stat', 'float64', 'km / (Mpc s)'),
+      col('h0_sys', 'float64', 'km / (Mpc s)'),
+      col('h0_total', 'float64', 'km / (Mpc s)'),
+    ],
+    rows: ordered.map((r) => {
+      const hide = r.h0 === null || r.blinded;
+      return {
+        release: r.release.id,
+        date: r.release.date,
+        blinded: r.blinded,
+        h0: hide ? null : r.h0!.value,
+        h0_stat: r.h0?.stat ?? null,
+        h0_sys: r.h0?.sys ?? null,
+        h0_total: r.h0?.total ?? null,
+      };
+    }),
   };
 }
