@@ -163,6 +163,20 @@ export interface TableDiff {
   removed: RowChangeRef[];
 }
 
+/** The cells of one row that changed between the releases, with both values and both lines. */
+function changedCells(table: TableName, id: string, row: AnyRow, other: AnyRow): ChangedCell[] {
+  return changedColumns(table, row, other).map((c) => ({
+    table,
+    id,
+    column: c.name,
+    unit: c.unit,
+    a: (row[c.field] as number | string | undefined) ?? null,
+    b: (other[c.field] as number | string | undefined) ?? null,
+    line_a: row.line,
+    line_b: other.line,
+  }));
+}
+
 export function diffTable(a: Release, b: Release, table: TableName): TableDiff {
   const ra = tableRows(a, table);
   const rb = tableRows(b, table);
@@ -187,18 +201,7 @@ export function diffTable(a: Release, b: Release, table: TableName): TableDiff {
     if (status === 'same') unchanged++;
     else if (status === 'corrected') corrected++;
     else remeasured++;
-    for (const c of changedColumns(table, row, other)) {
-      cells.push({
-        table,
-        id,
-        column: c.name,
-        unit: c.unit,
-        a: (row[c.field] as number | string | undefined) ?? null,
-        b: (other[c.field] as number | string | undefined) ?? null,
-        line_a: row.line,
-        line_b: other.line,
-      });
-    }
+    cells.push(...changedCells(table, id, row, other));
   }
   for (const row of rb) {
     const id = rowId(table, row);
