@@ -206,6 +206,33 @@ function systemMu(s: SystemResult): string {
 
 // --- rung pages ---------------------------------------------------------------
 
+/** Stars whose per-star distance is weak or two-peaked (display only). */
+function flaggedStarsTable(flagged: Results['rungs']['parallax']['stars'], p: PageInputs): TableView {
+  return tableView(
+    'flagged-stars',
+    'Stars with weak or two-peaked distances',
+    [
+      ['star', 'Star', null, false],
+      ['system', 'System', null, false],
+      ['line', 'Line', null, true],
+      ['plx', 'Corrected parallax', 'mas', true],
+      ['frac', 'σ/parallax', null, true],
+      ['q', 'Distance 5 / 50 / 95 %', 'pc', true],
+      ['flag', 'Flag', null, false],
+    ],
+    flagged.map((s) => [
+      s.star,
+      s.system,
+      String(s.line),
+      pm(s.parallax_corr_mas, s.parallax_err_mas),
+      fixed(s.frac_err, 2),
+      `${sig(s.dist_q05_pc, 3)} / ${sig(s.dist_q50_pc, 3)} / ${sig(s.dist_q95_pc, 3)}`,
+      [s.low_significance ? 'parallax/error < 5' : '', s.bimodal ? 'bimodal' : ''].filter(Boolean).join(', '),
+    ]),
+    { caption: 'Display only: these per-star distances do not enter the fit.', limit: TABLE_LIMIT, downloads: p.tableDownload('parallax_stars') },
+  );
+}
+
 function parallaxRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note' | 'title' | 'figures'> {
   const { anchors, stars } = r.rungs.parallax;
   const a = r.analysis;
@@ -242,33 +269,7 @@ function parallaxRung(r: Results, p: PageInputs): Omit<RungData, 'slug' | 'note'
       ),
     );
   }
-  if (flagged.length > 0) {
-    tables.push(
-      tableView(
-        'flagged-stars',
-        'Stars with weak or two-peaked distances',
-        [
-          ['star', 'Star', null, false],
-          ['system', 'System', null, false],
-          ['line', 'Line', null, true],
-          ['plx', 'Corrected parallax', 'mas', true],
-          ['frac', 'σ/parallax', null, true],
-          ['q', 'Distance 5 / 50 / 95 %', 'pc', true],
-          ['flag', 'Flag', null, false],
-        ],
-        flagged.map((s) => [
-          s.star,
-          s.system,
-          String(s.line),
-          pm(s.parallax_corr_mas, s.parallax_err_mas),
-          fixed(s.frac_err, 2),
-          `${sig(s.dist_q05_pc, 3)} / ${sig(s.dist_q50_pc, 3)} / ${sig(s.dist_q95_pc, 3)}`,
-          [s.low_significance ? 'parallax/error < 5' : '', s.bimodal ? 'bimodal' : ''].filter(Boolean).join(', '),
-        ]),
-        { caption: 'Display only: these per-star distances do not enter the fit.', limit: TABLE_LIMIT, downloads: p.tableDownload('parallax_stars') },
-      ),
-    );
-  }
+  if (flagged.length > 0) tables.push(flaggedStarsTable(flagged, p));
   return {
     reached: anchors.length > 0 || stars.length > 0,
     status: anchors.length > 0 ? `${anchors.length} geometric anchors from ${int(stars.length)} stars.` : 'No parallax data in this release.',
